@@ -1,0 +1,96 @@
+package dev.bracket.bounds;
+
+import java.util.Collection;
+import java.util.Collections;
+import java.util.EnumSet;
+import java.util.List;
+import java.util.Set;
+import java.util.stream.Collectors;
+
+/**
+ * A set of assumptions held jointly: their constraints are intersected. Written as
+ * comma-separated identifiers, e.g. {@code mtr-positive,mts-positive}; the canonical order is
+ * the declaration order of {@link Assumption}.
+ */
+public final class AssumptionSet {
+
+    private final Set<Assumption> members;
+
+    private AssumptionSet(Set<Assumption> members) {
+        this.members = Collections.unmodifiableSet(members);
+    }
+
+    public static AssumptionSet of(Assumption first, Assumption... rest) {
+        return new AssumptionSet(EnumSet.of(first, rest));
+    }
+
+    public static AssumptionSet of(Collection<Assumption> assumptions) {
+        if (assumptions.isEmpty()) {
+            throw new IllegalArgumentException("an assumption set needs at least one assumption (use worst-case for none)");
+        }
+        return new AssumptionSet(EnumSet.copyOf(assumptions));
+    }
+
+    /** Parses comma-separated identifiers; blank entries are an error. */
+    public static AssumptionSet parse(String text) {
+        if (text == null || text.isBlank()) {
+            throw new IllegalArgumentException("empty assumption set; known assumptions: " + Assumption.knownIds());
+        }
+        EnumSet<Assumption> set = EnumSet.noneOf(Assumption.class);
+        for (String part : text.split(",", -1)) {
+            if (part.isBlank()) {
+                throw new IllegalArgumentException("empty entry in assumption set '" + text + "'");
+            }
+            set.add(Assumption.fromId(part));
+        }
+        return new AssumptionSet(set);
+    }
+
+    /** Every single assumption, each as its own set: the default report. */
+    public static List<AssumptionSet> eachSingle() {
+        return EnumSet.allOf(Assumption.class).stream().map(AssumptionSet::of).collect(Collectors.toList());
+    }
+
+    public Set<Assumption> members() {
+        return members;
+    }
+
+    public boolean contains(Assumption a) {
+        return members.contains(a);
+    }
+
+    /** The identifiers in canonical order. */
+    public List<String> ids() {
+        return members.stream().map(Assumption::id).collect(Collectors.toList());
+    }
+
+    /** The plain-words meaning of the whole set, one clause per assumption. */
+    public String meaning() {
+        return members.stream().map(Assumption::meaning).collect(Collectors.joining("; and "));
+    }
+
+    /** Intersects the constraints of every member, starting from the outcome range (Manski 1990). */
+    public UnobservedMeans constrain(OutcomeRange range, double mu1, double mu0) {
+        UnobservedMeans box = UnobservedMeans.unrestricted(range);
+        for (Assumption a : members) {
+            box = a.constrain(box, mu1, mu0, range.better());
+        }
+        return box;
+    }
+
+    @Override
+    public boolean equals(Object o) {
+        return o instanceof AssumptionSet other && members.equals(other.members);
+    }
+
+    @Override
+    public int hashCode() {
+        return members.hashCode();
+    }
+
+    /** Canonical comma-separated identifiers. */
+    @Override
+    public String toString() {
+        return String.join(",", ids());
+    }
+}

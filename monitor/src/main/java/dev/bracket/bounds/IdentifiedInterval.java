@@ -1,0 +1,49 @@
+package dev.bracket.bounds;
+
+/**
+ * The identified set of the average treatment effect under some assumptions: [lower, upper]
+ * when the status is {@link BoundStatus#IDENTIFIED}. For the other statuses the ends are
+ * {@code NaN} and must not be read; use {@link #isIdentified()} first.
+ */
+public record IdentifiedInterval(double lower, double upper, BoundStatus status) {
+
+    public IdentifiedInterval {
+        if (status == BoundStatus.IDENTIFIED && !(lower <= upper)) {
+            throw new IllegalArgumentException("identified interval needs lower <= upper (" + lower + ", " + upper + ")");
+        }
+    }
+
+    public static IdentifiedInterval of(double lower, double upper) {
+        return new IdentifiedInterval(lower, upper, BoundStatus.IDENTIFIED);
+    }
+
+    public static IdentifiedInterval refuted() {
+        return new IdentifiedInterval(Double.NaN, Double.NaN, BoundStatus.REFUTED);
+    }
+
+    public static IdentifiedInterval insufficientData() {
+        return new IdentifiedInterval(Double.NaN, Double.NaN, BoundStatus.INSUFFICIENT_DATA);
+    }
+
+    public boolean isIdentified() {
+        return status == BoundStatus.IDENTIFIED;
+    }
+
+    /** {@code upper - lower}; NaN unless identified. */
+    public double width() {
+        return upper - lower;
+    }
+
+    /** True when the whole interval lies strictly above or strictly below zero. */
+    public boolean excludesZero() {
+        return isIdentified() && (lower > 0 || upper < 0);
+    }
+
+    /** +1 when the interval lies above zero, -1 below, 0 when it contains zero or is not identified. */
+    public int identifiedSign() {
+        if (!isIdentified()) {
+            return 0;
+        }
+        return lower > 0 ? 1 : upper < 0 ? -1 : 0;
+    }
+}

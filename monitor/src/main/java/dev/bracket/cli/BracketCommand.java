@@ -1,0 +1,65 @@
+package dev.bracket.cli;
+
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+
+import java.io.PrintWriter;
+
+/** The {@code bracket} launcher: subcommands for calculation, monitoring, replay and the demo. */
+@Command(name = "bracket",
+        mixinStandardHelpOptions = true,
+        versionProvider = BracketCommand.Version.class,
+        description = {
+                "Honest intervals for the average treatment effect when treatment was not randomised.",
+                "An interval is only as credible as its assumptions; results are statistical statements,",
+                "not clinical or operational advice."},
+        subcommands = {CalcCommand.class, CommandLine.HelpCommand.class})
+public final class BracketCommand implements Runnable {
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Override
+    public void run() {
+        spec.commandLine().usage(spec.commandLine().getOut());
+    }
+
+    public static void main(String[] args) {
+        System.exit(newCommandLine().execute(args));
+    }
+
+    /** The configured command line, shared by {@link #main} and tests. */
+    public static CommandLine newCommandLine() {
+        CommandLine cl = new CommandLine(new BracketCommand());
+        cl.setParameterExceptionHandler(BracketCommand::onBadParameters);
+        cl.setExecutionExceptionHandler(BracketCommand::onFailure);
+        return cl;
+    }
+
+    /** Picocli's own parse errors (unknown flag, not a number): one line and a pointer to help. */
+    private static int onBadParameters(CommandLine.ParameterException e, String[] args) {
+        PrintWriter err = e.getCommandLine().getErr();
+        err.println(e.getCommandLine().getCommandName() + ": " + e.getMessage());
+        err.println("Try '" + e.getCommandLine().getCommandSpec().qualifiedName() + " --help'.");
+        return CommandLine.ExitCode.USAGE;
+    }
+
+    private static int onFailure(Exception e, CommandLine cl, CommandLine.ParseResult parsed) {
+        PrintWriter err = cl.getErr();
+        if (e instanceof InputError) {
+            err.println(cl.getCommandName() + ": " + e.getMessage());
+            return CommandLine.ExitCode.USAGE;
+        }
+        err.println(cl.getCommandName() + ": failed: " + e);
+        return CommandLine.ExitCode.SOFTWARE;
+    }
+
+    /** Version from the jar manifest when packaged. */
+    static final class Version implements CommandLine.IVersionProvider {
+        @Override
+        public String[] getVersion() {
+            String v = BracketCommand.class.getPackage().getImplementationVersion();
+            return new String[] {"bracket " + (v == null ? "(development build)" : v)};
+        }
+    }
+}

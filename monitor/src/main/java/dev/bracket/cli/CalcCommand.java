@@ -1,0 +1,162 @@
+package dev.bracket.cli;
+
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
+import dev.bracket.report.ReportJson;
+import dev.bracket.report.ReportTable;
+import dev.bracket.report.StudyReport;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+import java.io.IOException;
+import java.io.Reader;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.NoSuchFileException;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.Callable;
+
+/** {@code bracket calc}: intervals from summary statistics, without a stream. */
+@Command(name = "calc",
+        mixinStandardHelpOptions = true,
+        description = {
+                "Bounds on the average treatment effect from per-arm summary statistics.",
+                "Give the two arms with --treated-* and --control-*, or many cells (strata, instrument levels) with --cells.",
+                "Without --assume every single assumption is reported."},
+        footer = {"",
+                "Assumptions: worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,",
+                "optimizing-selection, sorting-on-gains. Join several with commas to assume them together.",
+                "",
+                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
+                "operational advice; medical use follows local regulation, ethics approval and licensed judgement.",
+                "",
+                "Example:",
+                "  bracket calc --min 0 --max 1 --treated-n 400 --treated-mean 0.62 --control-n 600 --control-mean 0.48 \\",
+                "               --assume worst-case --assume mtr-positive,mts-positive"})
+public final class CalcCommand implements Callable<Integer> {
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Option(names = "--min", required = true, paramLabel = "A", description = "Smallest possible outcome (declared, not estimated).")
+    double min;
+
+    @Option(names = "--max", required = true, paramLabel = "B", description = "Largest possible outcome (declared, not estimated).")
+    double max;
+
+    @Option(names = "--better", paramLabel = "higher|lower", defaultValue = "higher",
+            description = "Which outcomes are better; matters for optimizing-selection and sorting-on-gains (default: ${DEFAULT-VALUE}).")
+    String better;
+
+    @Option(names = "--treated-n", paramLabel = "N1", description = "Units that received treatment.")
+    Long treatedN;
+
+    @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
+    Double treatedMean;
+
+    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional).")
+    Double treatedSd;
+
+    @Option(names = "--control-n", paramLabel = "N0", description = "Units that did not receive treatment.")
+    Long controlN;
+
+    @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
+    Double controlMean;
+
+    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional).")
+    Double controlSd;
+
+    @Option(names = "--cells", paramLabel = "FILE",
+            description = "CSV with a header: arm,n,mean[,sd][,stratum][,instrument]; one row per arm and cell ('-' reads standard input).")
+    String cellsFile;
+
+    @Option(names = "--assume", paramLabel = "SET",
+            description = "Comma-separated assumptions held together; repeat for more rows (default: each single assumption).")
+    List<String> assume = new ArrayList<>();
+
+    @Option(names = "--json", description = "Print the versioned JSON document instead of the table.")
+    boolean json;
+
+    @Override
+    public Integer call() throws IOException {
+        OutcomeRange range = range();
+        List<AssumptionSet> sets = sets();
+        StudyCells cells = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
+        StudyReport report = StudyReport.of(cells, range, sets);
+        if (json) {
+            spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter()
+                    .writeValueAsString(ReportJson.toJson(report)));
+        } else {
+            spec.commandLine().getOut().print(ReportTable.render(report));
+        }
+        spec.commandLine().getOut().flush();
+        return 0;
+    }
+
+    private OutcomeRange range() {
+        if (!Double.isFinite(min) || !Double.isFinite(max) || !(min < max)) {
+            throw new InputError("--min and --max must be finite numbers with --min < --max, were "
+                    + CalcInput.fmt(min) + " and " + CalcInput.fmt(max));
+        }
+        try {
+            return new OutcomeRange(min, max, Direction.parse(better));
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--better " + e.getMessage());
+        }
+    }
+
+    private List<AssumptionSet> sets() {
+        if (assume.isEmpty()) {
+            return AssumptionSet.eachSingle();
+        }
+        List<AssumptionSet> sets = new ArrayList<>();
+        for (String text : assume) {
+            try {
+                sets.add(AssumptionSet.parse(text));
+            } catch (IllegalArgumentException e) {
+                throw new InputError("--assume " + e.getMessage());
+            }
+        }
+        return sets;
+    }
+
+    private StudyCells cellsFromFlags(OutcomeRange range) {
+        requireFlag(treatedN, "--treated-n");
+        requireFlag(treatedMean, "--treated-mean");
+        requireFlag(controlN, "--control-n");
+        requireFlag(controlMean, "--control-mean");
+        ObservedArms arms = new ObservedArms(
+                CalcInput.arm(treatedN, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
+                CalcInput.arm(controlN, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
+        return StudyCells.single(arms);
+    }
+
+    private StudyCells cellsFromFile(OutcomeRange range) throws IOException {
+        for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd}) {
+            if (flag != null) {
+                throw new InputError("--cells cannot be combined with --treated-* or --control-*; put every arm in the file");
+            }
+        }
+        if (cellsFile.equals("-")) {
+            Reader in = new java.io.InputStreamReader(System.in, StandardCharsets.UTF_8);
+            return CellsCsv.read(in, "standard input", range);
+        }
+        try (Reader in = Files.newBufferedReader(Path.of(cellsFile), StandardCharsets.UTF_8)) {
+            return CellsCsv.read(in, cellsFile, range);
+        } catch (NoSuchFileException e) {
+            throw new InputError("--cells: no such file '" + cellsFile + "'");
+        }
+    }
+
+    private static void requireFlag(Object value, String flag) {
+        if (value == null) {
+            throw new InputError("missing " + flag + " (or give all arms with --cells FILE)");
+        }
+    }
+}

@@ -1,0 +1,46 @@
+package dev.bracket.cli;
+
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.OutcomeRange;
+
+/** Checks of one arm's summary statistics against the declared outcome range. */
+final class CalcInput {
+
+    private CalcInput() {
+    }
+
+    /**
+     * Validates and builds an arm from its summary. The standard deviation of values in [a, b]
+     * with mean m cannot exceed {@code sqrt((m-a)(b-m) * n/(n-1))} (Bhatia &amp; Davis 2000,
+     * Amer. Math. Monthly 107(4), with the n/(n-1) factor of the sample SD); a larger one means the
+     * summary and the range disagree.
+     *
+     * @param where prefix naming the flag or file position, e.g. {@code "--treated-"}
+     */
+    static ArmStatistics arm(long n, double mean, double sd, OutcomeRange range, String where) {
+        if (n < 0) {
+            throw new InputError(where + "n must be >= 0, was " + n);
+        }
+        if (n == 0) {
+            return ArmStatistics.empty();
+        }
+        if (!Double.isFinite(mean) || !range.contains(mean)) {
+            throw new InputError(where + "mean must lie in the outcome range [" + fmt(range.min()) + ", "
+                    + fmt(range.max()) + "], was " + fmt(mean));
+        }
+        if (!(sd >= 0) || !Double.isFinite(sd)) {
+            throw new InputError(where + "sd must be a finite number >= 0, was " + fmt(sd));
+        }
+        double limit = n > 1 ? Math.sqrt((mean - range.min()) * (range.max() - mean) * n / (n - 1)) : 0.0;
+        if (sd > limit * (1 + 1e-9) + 1e-12) {
+            throw new InputError(where + "sd " + fmt(sd) + " is impossible for " + n + " outcomes in ["
+                    + fmt(range.min()) + ", " + fmt(range.max()) + "] with mean " + fmt(mean)
+                    + " (at most " + fmt(limit) + "); check the summary and the range");
+        }
+        return ArmStatistics.ofSummary(n, mean, sd);
+    }
+
+    static String fmt(double v) {
+        return v == Math.rint(v) && Math.abs(v) < 1e15 ? String.valueOf((long) v) : String.valueOf(v);
+    }
+}

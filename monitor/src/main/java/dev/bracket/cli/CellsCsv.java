@@ -1,0 +1,122 @@
+package dev.bracket.cli;
+
+import com.fasterxml.jackson.databind.MappingIterator;
+import com.fasterxml.jackson.dataformat.csv.CsvMapper;
+import com.fasterxml.jackson.dataformat.csv.CsvParser;
+import com.fasterxml.jackson.dataformat.csv.CsvSchema;
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
+
+import java.io.IOException;
+import java.io.Reader;
+import java.util.Locale;
+import java.util.Map;
+import java.util.Set;
+
+/**
+ * Reads summary statistics per cell from CSV with a header row. Columns: {@code arm}
+ * ({@code treated}/{@code control}, or 1/0), {@code n}, {@code mean}, optional {@code sd},
+ * optional {@code stratum}, optional {@code instrument}. Rows naming the same cell are merged.
+ */
+final class CellsCsv {
+
+    private static final Set<String> KNOWN = Set.of("stratum", "instrument", "arm", "n", "mean", "sd");
+
+    private CellsCsv() {
+    }
+
+    static StudyCells read(Reader in, String source, OutcomeRange range) throws IOException {
+        CsvMapper mapper = new CsvMapper();
+        mapper.enable(CsvParser.Feature.TRIM_SPACES);
+        mapper.enable(CsvParser.Feature.SKIP_EMPTY_LINES);
+        CsvSchema schema = CsvSchema.emptySchema().withHeader();
+        StudyCells cells = StudyCells.empty();
+        try (MappingIterator<Map<String, String>> rows = mapper.readerForMapOf(String.class).with(schema).readValues(in)) {
+            boolean checkedHeader = false;
+            while (rows.hasNext()) {
+                Map<String, String> row = rows.next();
+                long line = rows.getCurrentLocation().getLineNr();
+                String where = source + ", line " + line;
+                if (!checkedHeader) {
+                    checkHeader(row.keySet(), source);
+                    checkedHeader = true;
+                }
+                boolean treated = arm(row.get("arm"), where);
+                long n = count(row.get("n"), where);
+                double mean = number(row.get("mean"), "mean", where);
+                if (n > 0 && !range.contains(mean)) {
+                    throw new InputError(where + ": mean " + mean + " lies outside the outcome range ["
+                            + range.min() + ", " + range.max() + "]; fix the row or the range");
+                }
+                String sdText = row.getOrDefault("sd", "");
+                double sd = sdText == null || sdText.isEmpty() ? 0.0 : number(sdText, "sd", where);
+                ArmStatistics stats = CalcInput.arm(n, mean, sd, range, where + ": ");
+                ObservedArms arms = treated
+                        ? new ObservedArms(stats, ArmStatistics.empty())
+                        : new ObservedArms(ArmStatistics.empty(), stats);
+                cells = cells.with(orNone(row.get("stratum")), orNone(row.get("instrument")), arms);
+            }
+            if (!checkedHeader) {
+                throw new InputError(source + ": no data rows; expected a header 'arm,n,mean[,sd][,stratum][,instrument]' and one row per cell");
+            }
+        } catch (RuntimeException e) {
+            if (e instanceof InputError) {
+                throw e;
+            }
+            throw new InputError(source + ": not readable as CSV (" + e.getMessage().lines().findFirst().orElse("") + ")", e);
+        }
+        return cells;
+    }
+
+    private static void checkHeader(Set<String> header, String source) {
+        for (String column : header) {
+            if (!KNOWN.contains(column)) {
+                throw new InputError(source + ": unknown column '" + column + "'; columns are arm, n, mean, sd, stratum, instrument");
+            }
+        }
+        for (String required : new String[] {"arm", "n", "mean"}) {
+            if (!header.contains(required)) {
+                throw new InputError(source + ": missing column '" + required + "'; required columns are arm, n, mean");
+            }
+        }
+    }
+
+    private static boolean arm(String text, String where) {
+        String t = text == null ? "" : text.toLowerCase(Locale.ROOT);
+        return switch (t) {
+            case "treated", "1", "true" -> true;
+            case "control", "0", "false" -> false;
+            default -> throw new InputError(where + ": arm must be 'treated' or 'control' (or 1/0), was '" + text + "'");
+        };
+    }
+
+    private static long count(String text, String where) {
+        try {
+            long n = Long.parseLong(text == null ? "" : text);
+            if (n < 0) {
+                throw new InputError(where + ": n must be >= 0, was " + n);
+            }
+            return n;
+        } catch (NumberFormatException e) {
+            throw new InputError(where + ": n must be a whole number, was '" + text + "'");
+        }
+    }
+
+    private static double number(String text, String column, String where) {
+        try {
+            double v = Double.parseDouble(text == null ? "" : text);
+            if (!Double.isFinite(v)) {
+                throw new NumberFormatException();
+            }
+            return v;
+        } catch (NumberFormatException e) {
+            throw new InputError(where + ": " + column + " must be a finite number, was '" + text + "'");
+        }
+    }
+
+    private static String orNone(String s) {
+        return s == null ? StudyCells.NONE : s;
+    }
+}

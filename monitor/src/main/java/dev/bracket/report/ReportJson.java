@@ -1,0 +1,101 @@
+package dev.bracket.report;
+
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.OutcomeRange;
+
+import java.util.TreeMap;
+
+/**
+ * The versioned JSON form of a {@link StudyReport}. Field names are a public contract:
+ * automation depends on them. Numbers that do not exist (the ends of a refuted interval, the
+ * mean of an empty arm) are {@code null}, never NaN.
+ */
+public final class ReportJson {
+
+    /** Identifies the document layout; bump the number on incompatible changes. */
+    public static final String SCHEMA = "bracket.bounds/1";
+
+    private static final ObjectMapper MAPPER = new ObjectMapper();
+
+    private ReportJson() {
+    }
+
+    public static ObjectMapper mapper() {
+        return MAPPER;
+    }
+
+    /** The whole report: schema, outcome range, pooled arms and one row per assumption set. */
+    public static ObjectNode toJson(StudyReport report) {
+        ObjectNode root = MAPPER.createObjectNode();
+        root.put("schema", SCHEMA);
+        root.set("outcome", outcome(report.range()));
+        root.set("arms", arms(report));
+        ArrayNode bounds = root.putArray("bounds");
+        report.rows().forEach(row -> bounds.add(row(row)));
+        return root;
+    }
+
+    static ObjectNode outcome(OutcomeRange range) {
+        ObjectNode o = MAPPER.createObjectNode();
+        o.put("min", range.min());
+        o.put("max", range.max());
+        o.put("better", range.better().id());
+        return o;
+    }
+
+    static ObjectNode arms(StudyReport report) {
+        ObjectNode o = MAPPER.createObjectNode();
+        o.set("treated", arm(report.pooled().treated()));
+        o.set("control", arm(report.pooled().control()));
+        number(o, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
+        return o;
+    }
+
+    static ObjectNode arm(ArmStatistics s) {
+        ObjectNode o = MAPPER.createObjectNode();
+        o.put("n", s.count());
+        number(o, "mean", s.isEmpty() ? Double.NaN : s.mean());
+        number(o, "sd", s.count() < 2 ? Double.NaN : s.sd());
+        return o;
+    }
+
+    /** One row: assumptions, meaning, status, interval, width, sign and per-stratum intervals. */
+    public static ObjectNode row(BoundRow row) {
+        ObjectNode o = MAPPER.createObjectNode();
+        ArrayNode ids = o.putArray("assumptions");
+        row.assumptions().ids().forEach(ids::add);
+        o.put("meaning", row.assumptions().meaning());
+        interval(o, row.interval());
+        o.put("sign", row.sign());
+        if (!row.perStratum().isEmpty()) {
+            ArrayNode strata = o.putArray("strata");
+            new TreeMap<>(row.perStratum()).forEach((name, iv) -> {
+                ObjectNode s = strata.addObject();
+                s.put("stratum", name);
+                interval(s, iv);
+            });
+        }
+        return o;
+    }
+
+    static void interval(ObjectNode o, IdentifiedInterval iv) {
+        o.put("status", iv.status().id());
+        number(o, "lower", iv.lower());
+        number(o, "upper", iv.upper());
+        number(o, "width", iv.width());
+        o.put("excludesZero", iv.excludesZero());
+    }
+
+    /** Writes a number, or null where it does not exist. */
+    public static void number(ObjectNode o, String field, double value) {
+        if (Double.isFinite(value)) {
+            o.put(field, value);
+        } else {
+            o.putNull(field);
+        }
+    }
+}
