@@ -1,0 +1,15 @@
+package dev.bracket.report;
+
+import java.time.Instant;
+
+/**
+ * The latest computed report of one study in one window, as the bound updater publishes it and
+ * the HTTP API serves it.
+ *
+ * @param study      the study identifier from the configuration
+ * @param window     the window name ({@code cumulative} or a window's label)
+ * @param computedAt when the updater computed it
+ * @param report     the bounds, built from all partitions' merged statistics
+ */
+public record PublishedReport(String study, String window, Instant computedAt, StudyReport report) {
+}
