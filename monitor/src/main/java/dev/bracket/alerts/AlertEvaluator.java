@@ -1,0 +1,130 @@
+package dev.bracket.alerts;
+
+import dev.bracket.bounds.BoundStatus;
+
+import java.time.Clock;
+import java.time.Duration;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.Collection;
+import java.util.Comparator;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+
+/**
+ * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
+ * judged on each bound update ({@link #evaluate}); per-study rules on a clock ({@link #tick}),
+ * which is injected so tests control time. Pure logic: the transitions it returns go to the sinks
+ * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
+ */
+public final class AlertEvaluator {
+
+    /** Counting period for studies without a data-quality rule; only bounds memory. */
+    private static final Duration IDLE_PERIOD = Duration.ofMinutes(1);
+
+    private final Map<String, StudyAlertConfig> studies;
+    private final Clock clock;
+    private final Map<AlertKey, AlertState> states = new HashMap<>();
+    private final Map<String, EventCounts> traffic = new HashMap<>();
+
+    /**
+     * @param studies each configured study's alert settings, by study id
+     * @param clock   the time source for stall and data-quality judgements
+     */
+    public AlertEvaluator(Map<String, StudyAlertConfig> studies, Clock clock) {
+        this.studies = Map.copyOf(studies);
+        this.clock = clock;
+        Instant start = clock.instant();
+        this.studies.forEach((study, config) -> traffic.put(study,
+                new EventCounts(start, config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
+    }
+
+    /**
+     * Judges the per-cell rules of the snapshot's study. Nothing is judged (and no state
+     * changes) while either arm has fewer than the study's min-per-arm units, the interval
+     * lacks data, or the configured band is missing.
+     *
+     * @return the transitions caused, in order
+     */
+    public synchronized List<AlertTransition> evaluate(BoundSnapshot snapshot) {
+        StudyAlertConfig config = studies.get(snapshot.study());
+        Optional<BandReading> band = config == null ? Optional.empty() : snapshot.band(config.band());
+        if (band.isEmpty() || snapshot.smallerArm() < config.minPerArm()
+                || snapshot.interval().status() == BoundStatus.INSUFFICIENT_DATA) {
+            return List.of();
+        }
+        List<AlertTransition> out = new ArrayList<>();
+        for (CellRule rule : config.cellRules()) {
+            AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
+            Verdict verdict = rule.judge(snapshot.interval(), band.get());
+            Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
+            apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
+        }
+        return out;
+    }
+
+    /**
+     * Counts events of a study as they arrive (at the clock's time): accepted ones, rejected ones,
+     * and of the rejected those whose outcome lay outside the declared range. Events of studies
+     * without alert settings are ignored.
+     */
+    public synchronized void recordEvents(String study, long accepted, long rejected, long outOfRange) {
+        EventCounts counts = traffic.get(study);
+        if (counts != null) {
+            counts.record(clock.instant(), accepted, rejected, outOfRange);
+        }
+    }
+
+    /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
+    public synchronized List<AlertTransition> tick() {
+        Instant now = clock.instant();
+        List<AlertTransition> out = new ArrayList<>();
+        studies.entrySet().stream().sorted(Map.Entry.comparingByKey()).forEach(e -> {
+            String study = e.getKey();
+            StudyAlertConfig config = e.getValue();
+            EventCounts counts = traffic.get(study);
+            config.stalled().ifPresent(rule -> apply(AlertKey.perStudy(study, AlertRule.STREAM_STALLED),
+                    rule.judge(counts.lastEventAt(), now), rule.evidence(counts.lastEventAt(), now), now,
+                    config.clearAfter(), "", out));
+            config.quality().ifPresent(rule -> {
+                Evidence.OfQuality q = counts.within(now, rule.maxShare());
+                apply(AlertKey.perStudy(study, AlertRule.DATA_QUALITY), rule.judge(q), q, now, config.clearAfter(), "", out);
+            });
+        });
+        return out;
+    }
+
+    /**
+     * Takes over states recorded before a restart. For a key known both here and in
+     * {@code restored}, the state with more transitions wins, so restoring twice is harmless.
+     */
+    public synchronized void restore(Collection<AlertState> restored) {
+        for (AlertState s : restored) {
+            states.merge(s.key(), s, (mine, theirs) -> theirs.sequence() > mine.sequence() ? theirs : mine);
+        }
+    }
+
+    /** The state of one key (the initial state if it never fired). */
+    public synchronized AlertState state(AlertKey key) {
+        return states.getOrDefault(key, AlertState.initial(key));
+    }
+
+    /** Alerts firing now, by key text. */
+    public synchronized List<AlertState> firing() {
+        return states.values().stream().filter(AlertState::firing)
+                .sorted(Comparator.comparing(s -> s.key().toString())).toList();
+    }
+
+    private void apply(AlertKey key, Verdict verdict, Evidence evidence, Instant at, int clearAfter, String meaning,
+                       List<AlertTransition> out) {
+        AlertState.Step step = state(key).next(verdict, evidence, at, clearAfter, meaning);
+        if (step.state().sequence() == 0) {
+            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with cells
+        } else {
+            states.put(key, step.state());
+        }
+        out.addAll(step.transitions());
+    }
+}

@@ -1,0 +1,49 @@
+package dev.bracket.alerts;
+
+import java.time.Duration;
+
+/**
+ * Fires when the share of rejected events (malformed, unknown arm, outcome outside the declared
+ * range, …) among all events of a study within the last {@code period} exceeds {@code maxShare}.
+ *
+ * @param maxShare    the largest acceptable rejected share, in [0, 1)
+ * @param period      how far back events are counted
+ * @param minEvents   fewer events than this in the period judge nothing (a single bad event out of
+ *                    three is not a data-quality finding)
+ * @param clearMargin a firing alert resolves at once when the share falls to {@code maxShare - clearMargin}
+ *                    or below; 0 disables the margin
+ */
+public record DataQualityRule(double maxShare, Duration period, long minEvents, double clearMargin) {
+
+    public DataQualityRule {
+        if (!(maxShare >= 0 && maxShare < 1)) {
+            throw new IllegalArgumentException("data-quality max-rejected-share must lie in [0, 1), was " + maxShare);
+        }
+        if (period == null || period.isNegative() || period.isZero()) {
+            throw new IllegalArgumentException("data-quality period must be a positive duration, was " + period);
+        }
+        if (minEvents < 1) {
+            throw new IllegalArgumentException("data-quality min-events must be at least 1, was " + minEvents);
+        }
+        if (!(clearMargin >= 0 && clearMargin <= maxShare)) {
+            throw new IllegalArgumentException("data-quality clear-margin must lie in [0, max-rejected-share], was " + clearMargin);
+        }
+    }
+
+    public Verdict judge(Evidence.OfQuality counts) {
+        long total = counts.accepted() + counts.rejected();
+        String seen = counts.rejected() + " of " + total + " events rejected in the last " + AlertText.duration(period)
+                + " (" + counts.outOfRange() + " out of range), share " + AlertText.num(counts.rejectedShare())
+                + ", limit " + AlertText.num(maxShare);
+        if (total < minEvents) {
+            return Verdict.unknown(seen + "; fewer than " + minEvents + " events");
+        }
+        if (counts.rejectedShare() > maxShare) {
+            return Verdict.met("", seen);
+        }
+        if (clearMargin > 0 && counts.rejectedShare() <= maxShare - clearMargin) {
+            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearMargin));
+        }
+        return Verdict.unmet(seen);
+    }
+}

@@ -1,0 +1,59 @@
+package dev.bracket.alerts;
+
+import dev.bracket.bounds.IdentifiedInterval;
+
+import java.util.LinkedHashMap;
+import java.util.Map;
+
+/**
+ * Fires when the sign of the effect is identified: the confidence band lies wholly above zero
+ * ({@code positive}) or wholly below ({@code negative}), and so does the estimated identified
+ * interval. Requiring both makes a structural impossibility impossible here too: the worst-case
+ * interval always contains zero (Manski 1990), so worst-case never fires, even in the rare
+ * (probability at most alpha) event that its band misses the truth.
+ *
+ * @param clearMargin a firing alert resolves at once when zero lies inside the band by at least
+ *                    this much on both sides; 0 disables the margin (then only clear-after resolves)
+ */
+public record SignIdentifiedRule(double clearMargin) implements CellRule {
+
+    public SignIdentifiedRule {
+        if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {
+            throw new IllegalArgumentException("sign-identified clear-margin must be a finite number >= 0, was " + clearMargin);
+        }
+    }
+
+    @Override
+    public AlertRule rule() {
+        return AlertRule.SIGN_IDENTIFIED;
+    }
+
+    @Override
+    public Verdict judge(IdentifiedInterval interval, BandReading band) {
+        String seen = AlertText.band(band);
+        if (band.inverted() || !interval.isIdentified()) {
+            return Verdict.unmet(seen + ": the assumptions contradict the data, no sign is identified");
+        }
+        if (band.lower() > 0 && interval.lower() > 0) {
+            return Verdict.met("positive", seen + " lies above 0");
+        }
+        if (band.upper() < 0 && interval.upper() < 0) {
+            return Verdict.met("negative", seen + " lies below 0");
+        }
+        if (band.lower() > 0 || band.upper() < 0) {
+            return Verdict.unmet(seen + " excludes 0 but the estimated interval [" + AlertText.num(interval.lower())
+                    + ", " + AlertText.num(interval.upper()) + "] does not");
+        }
+        if (clearMargin > 0 && band.lower() <= -clearMargin && band.upper() >= clearMargin) {
+            return Verdict.clear(seen + " contains 0 by at least the clear margin " + AlertText.num(clearMargin));
+        }
+        return Verdict.unmet(seen + " contains 0");
+    }
+
+    @Override
+    public Map<String, Double> limits() {
+        Map<String, Double> m = new LinkedHashMap<>();
+        m.put("clearMargin", clearMargin);
+        return m;
+    }
+}
