@@ -55,7 +55,8 @@ public final class ReportJson {
         return o;
     }
 
-    static ObjectNode arm(ArmStatistics s) {
+    /** One arm: n, mean and sd (null where they do not exist). */
+    public static ObjectNode arm(ArmStatistics s) {
         ObjectNode o = MAPPER.createObjectNode();
         o.put("n", s.count());
         number(o, "mean", s.isEmpty() ? Double.NaN : s.mean());
@@ -82,7 +83,8 @@ public final class ReportJson {
         return o;
     }
 
-    static void interval(ObjectNode o, IdentifiedInterval iv) {
+    /** Writes an interval's status, ends, width and whether it excludes zero into {@code o}. */
+    public static void interval(ObjectNode o, IdentifiedInterval iv) {
         o.put("status", iv.status().id());
         number(o, "lower", iv.lower());
         number(o, "upper", iv.upper());
