@@ -1,0 +1,40 @@
+package dev.bracket.alerts;
+
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.util.Locale;
+
+/**
+ * Writes one readable line per transition to the log (logger {@code dev.bracket.alerts}):
+ * firing at WARN, resolved at INFO.
+ */
+public final class LogAlertSink implements AlertSink {
+
+    private static final Logger LOG = LoggerFactory.getLogger("dev.bracket.alerts");
+
+    @Override
+    public String name() {
+        return "log";
+    }
+
+    @Override
+    public void accept(AlertTransition t) {
+        if (t.kind() == TransitionKind.FIRING) {
+            LOG.warn(line(t));
+        } else {
+            LOG.info(line(t));
+        }
+    }
+
+    /**
+     * The line, e.g. {@code alert FIRING rollout/mts-negative/cumulative/sign-identified #1: sign of
+     * the effect identified: positive (…) [id …]}. The cautions are in every document; the log
+     * line points to them once per transition to stay one line.
+     */
+    static String line(AlertTransition t) {
+        String since = t.kind() == TransitionKind.RESOLVED ? "; firing since " + t.firingSince() : "";
+        return "alert " + t.kind().id().toUpperCase(Locale.ROOT) + " " + t.key() + " #" + t.sequence() + ": "
+                + t.summary() + since + " [id " + t.transitionId() + "; assumptions bound the interval, not advice]";
+    }
+}
