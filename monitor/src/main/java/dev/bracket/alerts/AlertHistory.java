@@ -1,0 +1,96 @@
+package dev.bracket.alerts;
+
+import org.apache.kafka.clients.consumer.Consumer;
+import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.common.PartitionInfo;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.serialization.StringDeserializer;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Properties;
+
+/**
+ * Restores alert state at start by reading the alerts topic from the beginning to its end (the
+ * end offsets at the time of the call). The newest transition of each key leaves the key's
+ * state ({@link AlertState#after}); given to {@link AlertEvaluator#restore}, a restarted monitor
+ * neither fires again what already fired nor forgets to resolve it.
+ */
+public final class AlertHistory {
+
+    private static final Logger LOG = LoggerFactory.getLogger(AlertHistory.class);
+
+    private AlertHistory() {
+    }
+
+    /** Reads the topic with a consumer of its own (no consumer group: nothing is committed). */
+    public static List<AlertState> read(String bootstrapServers, String topic, Duration timeout) {
+        Properties p = new Properties();
+        p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
+        p.put(ConsumerConfig.CLIENT_ID_CONFIG, "bracket-alerts-restore");
+        p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, StringDeserializer.class.getName());
+        p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, StringDeserializer.class.getName());
+        try (KafkaConsumer<String, String> consumer = new KafkaConsumer<>(p)) {
+            return read(consumer, topic, timeout);
+        }
+    }
+
+    /**
+     * Reads every partition of {@code topic} to its end offset. A topic that does not exist yet
+     * holds no state. Records that are not alert documents are logged and skipped.
+     *
+     * @throws IllegalStateException when the end is not reached within {@code timeout}: starting
+     *                               with part of the state could fire alerts again
+     */
+    public static List<AlertState> read(Consumer<String, String> consumer, String topic, Duration timeout) {
+        List<PartitionInfo> infos = consumer.partitionsFor(topic, timeout);
+        if (infos == null || infos.isEmpty()) {
+            LOG.info("alerts topic {} does not exist yet: no alert state to restore", topic);
+            return List.of();
+        }
+        List<TopicPartition> partitions = infos.stream().map(i -> new TopicPartition(topic, i.partition())).toList();
+        consumer.assign(partitions);
+        consumer.seekToBeginning(partitions);
+        Map<TopicPartition, Long> end = consumer.endOffsets(partitions, timeout);
+        long deadline = System.nanoTime() + timeout.toNanos();
+        List<ConsumerRecord<String, String>> records = new ArrayList<>();
+        while (!reachedEnd(consumer, end)) {
+            if (System.nanoTime() - deadline > 0) {
+                throw new IllegalStateException("could not read alerts topic " + topic + " to its end within "
+                        + AlertText.duration(timeout) + "; not starting with partial alert state (check the broker)");
+            }
+            consumer.poll(Duration.ofMillis(200)).forEach(records::add);
+        }
+        Map<AlertKey, AlertState> states = new HashMap<>();
+        int skipped = 0;
+        for (ConsumerRecord<String, String> r : records) {
+            if (r.value() == null) {
+                continue; // a tombstone: compaction's deletion marker, no state
+            }
+            try {
+                AlertState s = AlertJson.restoreState(r.value());
+                states.merge(s.key(), s, (a, b) -> b.sequence() > a.sequence() ? b : a);
+            } catch (IllegalArgumentException e) {
+                skipped++;
+                LOG.warn("alerts topic {} partition {} offset {}: skipped, {}", topic, r.partition(), r.offset(), e.getMessage());
+            }
+        }
+        LOG.info("restored {} alert states ({} firing) from {} records of {}{}", states.size(),
+                states.values().stream().filter(AlertState::firing).count(), records.size(), topic,
+                skipped == 0 ? "" : "; skipped " + skipped + " unreadable records");
+        return List.copyOf(states.values());
+    }
+
+    private static boolean reachedEnd(Consumer<String, String> consumer, Map<TopicPartition, Long> end) {
+        return end.entrySet().stream().allMatch(e -> consumer.position(e.getKey()) >= e.getValue());
+    }
+}

@@ -1,0 +1,101 @@
+package dev.bracket.alerts;
+
+import io.micrometer.core.instrument.Counter;
+import io.micrometer.core.instrument.MeterRegistry;
+import org.apache.kafka.clients.admin.NewTopic;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.Producer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.config.TopicConfig;
+import org.apache.kafka.common.serialization.StringSerializer;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.nio.charset.StandardCharsets;
+import java.util.Map;
+import java.util.Optional;
+import java.util.Properties;
+
+/**
+ * Writes each transition's document to the alerts topic, keyed {@code study/assumptions/window/rule}
+ * (so one key's transitions share a partition and keep their order), with the transition id in
+ * the record header {@value #TRANSITION_ID_HEADER}. The topic is compacted: the newest transition
+ * per key is the key's state, which {@link AlertHistory} reads back at start.
+ *
+ * <p>The producer is idempotent with {@code acks=all}: a retried send does not duplicate a
+ * record. A send that still fails is logged and counted ({@code bracket.alerts.kafka.failures});
+ * the alert still reached the other sinks, and a restart may then fire it again (at least once).
+ */
+public final class KafkaAlertSink implements AlertSink {
+
+    public static final String TRANSITION_ID_HEADER = "bracket-transition-id";
+
+    private static final Logger LOG = LoggerFactory.getLogger(KafkaAlertSink.class);
+
+    private final Producer<String, String> producer;
+    private final String topic;
+    private final boolean ownsProducer;
+    private final Counter failures;
+
+    /** A sink on a producer the caller owns (and closes). */
+    public KafkaAlertSink(Producer<String, String> producer, String topic, MeterRegistry registry) {
+        this(producer, topic, registry, false);
+    }
+
+    private KafkaAlertSink(Producer<String, String> producer, String topic, MeterRegistry registry, boolean ownsProducer) {
+        this.producer = producer;
+        this.topic = topic;
+        this.ownsProducer = ownsProducer;
+        this.failures = Counter.builder("bracket.alerts.kafka.failures").description("alert records the broker did not take")
+                .register(registry);
+    }
+
+    /** A sink with its own idempotent producer, closed with the sink. */
+    public static KafkaAlertSink connect(String bootstrapServers, String topic, MeterRegistry registry) {
+        Properties p = new Properties();
+        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
+        p.put(ProducerConfig.CLIENT_ID_CONFIG, "bracket-alerts");
+        p.put(ProducerConfig.ACKS_CONFIG, "all");
+        p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
+        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
+        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
+        return new KafkaAlertSink(new KafkaProducer<>(p), topic, registry, true);
+    }
+
+    /**
+     * The alerts topic as it should be created: compacted (the newest transition per key is all a
+     * restart needs), never deleted by age.
+     */
+    public static NewTopic topic(String name, int partitions, short replication) {
+        return new NewTopic(name, Optional.of(partitions), Optional.of(replication))
+                .configs(Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
+    }
+
+    @Override
+    public String name() {
+        return "kafka";
+    }
+
+    @Override
+    public void accept(AlertTransition t) {
+        ProducerRecord<String, String> record = new ProducerRecord<>(topic, t.key().toString(), AlertJson.toText(t));
+        record.headers().add(TRANSITION_ID_HEADER, t.transitionId().getBytes(StandardCharsets.UTF_8));
+        producer.send(record, (metadata, error) -> {
+            if (error != null) {
+                failures.increment();
+                LOG.error("alerts topic {} did not take transition {} ({} {} of {}): {}", topic, t.transitionId(),
+                        t.kind().id(), t.sequence(), t.key(), error.toString());
+            }
+        });
+    }
+
+    /** Waits for outstanding sends; closes the producer if the sink created it. */
+    @Override
+    public void close() {
+        producer.flush();
+        if (ownsProducer) {
+            producer.close();
+        }
+    }
+}
