@@ -124,6 +124,22 @@ public final class AlertConfigReader {
                 webhooks));
     }
 
+    /**
+     * Reads the top-level {@code alerts} section ({@code topic}, {@code tick}, {@code recent},
+     * {@code restore-timeout}); missing keys keep their defaults ({@link AlertOptions#DEFAULTS}).
+     */
+    public static AlertOptions readOptions(JsonNode node, String where) {
+        if (node == null || node.isMissingNode() || node.isNull()) {
+            return AlertOptions.DEFAULTS;
+        }
+        requireObject(node, where, Set.of("topic", "tick", "recent", "restore-timeout"));
+        AlertOptions d = AlertOptions.DEFAULTS;
+        return parse(where, () -> new AlertOptions(node.has("topic") ? text(node, "topic", where) : d.topic(),
+                duration(node, "tick", where, d.tick()),
+                node.has("recent") ? (int) integer(node, "recent", where) : d.recent(),
+                duration(node, "restore-timeout", where, d.restoreTimeout())));
+    }
+
     private static WebhookTarget webhook(JsonNode w, String where) {
         requireObject(w, where, Set.of("url", "token-env", "timeout", "retry-for", "queue", "backoff-initial", "backoff-max"));
         if (!w.has("url")) {

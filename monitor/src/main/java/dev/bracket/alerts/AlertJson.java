@@ -11,6 +11,7 @@ import dev.bracket.report.ReportJson;
 import java.time.Duration;
 import java.time.Instant;
 import java.time.format.DateTimeParseException;
+import java.util.List;
 
 /**
  * The versioned JSON document of an alert transition (schema {@value #SCHEMA}), as it goes to
@@ -61,6 +62,33 @@ public final class AlertJson {
         } catch (JsonProcessingException e) {
             throw new IllegalStateException("cannot write alert document", e);
         }
+    }
+
+    /** Identifies the layout of {@link #listing}. */
+    public static final String LISTING_SCHEMA = "bracket.alerts/1";
+
+    /**
+     * The body of {@code GET /api/alerts}: the alerts firing now and the newest transitions
+     * (each a full {@value #SCHEMA} document), with the cautions.
+     */
+    public static ObjectNode listing(List<AlertState> firing, List<AlertTransition> newestFirst) {
+        ObjectNode o = MAPPER.createObjectNode();
+        o.put("schema", LISTING_SCHEMA);
+        ArrayNode now = o.putArray("firing");
+        for (AlertState s : firing) {
+            ObjectNode f = now.addObject();
+            f.put("key", s.key().toString());
+            f.put("study", s.key().study());
+            f.put("rule", s.key().rule().id());
+            f.put("variant", s.variant());
+            f.put("since", s.since().toString());
+            f.put("sequence", s.sequence());
+        }
+        ArrayNode recent = o.putArray("recent");
+        newestFirst.forEach(t -> recent.add(toJson(t)));
+        ArrayNode cautions = o.putArray("cautions");
+        Cautions.ALL.forEach(cautions::add);
+        return o;
     }
 
     static ObjectNode evidence(Evidence evidence) {

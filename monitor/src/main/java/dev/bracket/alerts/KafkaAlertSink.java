@@ -58,6 +58,8 @@ public final class KafkaAlertSink implements AlertSink {
         p.put(ProducerConfig.CLIENT_ID_CONFIG, "bracket-alerts");
         p.put(ProducerConfig.ACKS_CONFIG, "all");
         p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
+        // send() blocks while the broker is unknown; alerts must not hold the bound updater for a minute.
+        p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 10_000);
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         return new KafkaAlertSink(new KafkaProducer<>(p), topic, registry, true);

@@ -1,0 +1,30 @@
+package dev.bracket.alerts;
+
+import java.time.Duration;
+
+/**
+ * Settings of the alerting machinery as a whole (the top-level {@code alerts} section).
+ *
+ * @param topic          the alerts topic (compacted; also the store of alert state)
+ * @param tick           how often the per-study rules (stream stalled, data quality) are judged
+ * @param recent         how many transitions {@code GET /api/alerts} remembers
+ * @param restoreTimeout how long reading the alerts topic at start may take before the start fails
+ */
+public record AlertOptions(String topic, Duration tick, int recent, Duration restoreTimeout) {
+
+    public static final AlertOptions DEFAULTS =
+            new AlertOptions("bracket.alerts", Duration.ofSeconds(5), RecentAlerts.DEFAULT_CAPACITY, Duration.ofSeconds(30));
+
+    public AlertOptions {
+        if (topic == null || !topic.matches("[a-zA-Z0-9._-]{1,249}")) {
+            throw new IllegalArgumentException("alerts topic must be 1-249 letters, digits, '.', '_' or '-', was '" + topic + "'");
+        }
+        if (tick == null || tick.isNegative() || tick.isZero() || restoreTimeout == null || restoreTimeout.isNegative()
+                || restoreTimeout.isZero()) {
+            throw new IllegalArgumentException("alerts tick and restore-timeout must be positive durations");
+        }
+        if (recent < 1) {
+            throw new IllegalArgumentException("alerts recent must be at least 1, was " + recent);
+        }
+    }
+}
