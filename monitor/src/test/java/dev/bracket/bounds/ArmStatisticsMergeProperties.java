@@ -62,8 +62,8 @@ class ArmStatisticsMergeProperties {
     @Provide
     Arbitrary<Double> observations() {
         return Arbitraries.oneOf(
-                Arbitraries.doubles().between(-1000, 1000),
+                Arbitraries.doubles().between(-1000, 1000).ofScale(9),
                 Arbitraries.integers().between(0, 3).map(i -> (double) i),
-                Arbitraries.doubles().between(1e6, 1e6 + 1));
+                Arbitraries.doubles().between(1e6, 1e6 + 1).ofScale(9));
     }
 }
