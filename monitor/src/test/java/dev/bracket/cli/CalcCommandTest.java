@@ -16,7 +16,9 @@ import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
+import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Map;
 import java.util.stream.Stream;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
@@ -106,6 +108,38 @@ class CalcCommandTest {
         assertEquals("identified", both.get("status").asText());
         assertEquals(0.0, both.get("lower").asDouble(), 1e-12);
         assertEquals(0.14, both.get("upper").asDouble(), 1e-12);
+    }
+
+    @Test
+    @DisplayName("the README quick start (no --assume) reports every single assumption with its closed-form interval")
+    void readmeQuickStart() throws IOException {
+        Run r = run("calc", "--min", "0", "--max", "1", "--treated-n", "400", "--treated-mean", "0.62",
+                "--control-n", "600", "--control-mean", "0.48", "--json");
+        assertEquals(0, r.exitCode(), r.err());
+        Map<String, double[]> expected = new LinkedHashMap<>();
+        // Manski (1990): worst case, computed above.
+        expected.put("worst-case", new double[] {-0.44, 0.56});
+        // Manski (1997): MTR+ is [0, worst-case upper]; MTR- is [worst-case lower, 0].
+        expected.put("mtr-positive", new double[] {0, 0.56});
+        expected.put("mtr-negative", new double[] {-0.44, 0});
+        // Manski & Pepper (2000): MTS+ is [worst-case lower, mu1 - mu0]; MTS- is [mu1 - mu0, worst-case upper].
+        expected.put("mts-positive", new double[] {-0.44, 0.14});
+        expected.put("mts-negative", new double[] {0.14, 0.56});
+        // Manski (1990) outcome optimization: [(1-p)(a - mu0), p(mu1 - a)] = [0.6*(-0.48), 0.4*0.62].
+        expected.put("optimizing-selection", new double[] {-0.288, 0.248});
+        // Sorting on gains alone, derived from its two mean inequalities (m10 <= mu1, m01 <= mu0):
+        // [p mu1 + (1-p) a - mu0, mu1 - (1-p) mu0 - p a] = [0.248 - 0.48, 0.62 - 0.288]. No paper checked.
+        expected.put("sorting-on-gains", new double[] {-0.232, 0.332});
+
+        JsonNode bounds = JSON.readTree(r.out()).get("bounds");
+        assertEquals(expected.size(), bounds.size());
+        int i = 0;
+        for (Map.Entry<String, double[]> e : expected.entrySet()) {
+            JsonNode row = bounds.get(i++);
+            assertEquals(List.of(e.getKey()), texts(row.get("assumptions")));
+            assertEquals(e.getValue()[0], row.get("lower").asDouble(), 1e-12, e.getKey());
+            assertEquals(e.getValue()[1], row.get("upper").asDouble(), 1e-12, e.getKey());
+        }
     }
 
     @Test
