@@ -43,7 +43,7 @@ public final class InstrumentBounds {
         double mu1 = arms.treated().isEmpty() ? Double.NaN : arms.treated().mean();
         double mu0 = arms.control().isEmpty() ? Double.NaN : arms.control().mean();
         UnobservedMeans box = assumptions.constrain(range, mu1, mu0);
-        if (box.isEmpty()) {
+        if (box.isEmpty(range.roundingSlack())) {
             return null;
         }
         double treatedPart = p == 0 ? 0 : p * mu1;
@@ -85,7 +85,7 @@ public final class InstrumentBounds {
                 perLevel.put(e.getKey(), IdentifiedInterval.refuted());
                 continue;
             }
-            perLevel.put(e.getKey(), IdentifiedInterval.of(m.y1Low - m.y0High, m.y1High - m.y0Low));
+            perLevel.put(e.getKey(), IdentifiedInterval.spanning(m.y1Low - m.y0High, m.y1High - m.y0Low));
             l1 = Math.max(l1, m.y1Low);
             u1 = Math.min(u1, m.y1High);
             l0 = Math.max(l0, m.y0Low);
@@ -94,10 +94,10 @@ public final class InstrumentBounds {
         IdentifiedInterval overall;
         if (treated == 0 || control == 0) {
             overall = IdentifiedInterval.insufficientData();
-        } else if (refuted || l1 > u1 || l0 > u0) {
+        } else if (refuted || l1 - u1 > range.roundingSlack() || l0 - u0 > range.roundingSlack()) {
             overall = IdentifiedInterval.refuted();
         } else {
-            overall = IdentifiedInterval.of(l1 - u0, u1 - l0);
+            overall = IdentifiedInterval.spanning(l1 - u0, u1 - l0);
         }
         return new Result(overall, perLevel);
     }

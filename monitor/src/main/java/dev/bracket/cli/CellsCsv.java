@@ -36,8 +36,10 @@ final class CellsCsv {
         try (MappingIterator<Map<String, String>> rows = mapper.readerForMapOf(String.class).with(schema).readValues(in)) {
             boolean checkedHeader = false;
             while (rows.hasNext()) {
+                // Where the row starts: hasNext() has just reached it. After next() the parser is
+                // past the line end (and past any blank lines that follow).
+                long line = rows.getParser().currentLocation().getLineNr();
                 Map<String, String> row = rows.next();
-                long line = rows.getCurrentLocation().getLineNr();
                 String where = source + ", line " + line;
                 if (!checkedHeader) {
                     checkHeader(row.keySet(), source);
