@@ -33,13 +33,21 @@ public final class AlertDispatcher implements AutoCloseable {
         this.common = List.copyOf(common);
         this.byStudy = Map.copyOf(byStudy);
         this.registry = registry;
+        // Registered at zero so dashboards show every rule before its first alert.
+        for (AlertRule rule : AlertRule.values()) {
+            counter(TransitionKind.FIRING, rule);
+            counter(TransitionKind.RESOLVED, rule);
+        }
+    }
+
+    private Counter counter(TransitionKind kind, AlertRule rule) {
+        return Counter.builder(kind == TransitionKind.FIRING ? "bracket.alerts.fired" : "bracket.alerts.resolved")
+                .description("alert transitions by rule").tag("rule", rule.id()).register(registry);
     }
 
     public synchronized void publish(List<AlertTransition> transitions) {
         for (AlertTransition t : transitions) {
-            String counter = t.kind() == TransitionKind.FIRING ? "bracket.alerts.fired" : "bracket.alerts.resolved";
-            Counter.builder(counter).description("alert transitions by rule").tag("rule", t.key().rule().id())
-                    .register(registry).increment();
+            counter(t.kind(), t.key().rule()).increment();
             for (AlertSink sink : sinksFor(t.key().study())) {
                 try {
                     sink.accept(t);

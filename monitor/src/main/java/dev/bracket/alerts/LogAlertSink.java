@@ -29,12 +29,12 @@ public final class LogAlertSink implements AlertSink {
 
     /**
      * The line, e.g. {@code alert FIRING rollout/mts-negative/cumulative/sign-identified #1: sign of
-     * the effect identified: positive (…) [id …]}. The cautions are in every document; the log
-     * line points to them once per transition to stay one line.
+     * the effect identified: positive (…) [id …] …}, ending with the cautions in short.
      */
     static String line(AlertTransition t) {
         String since = t.kind() == TransitionKind.RESOLVED ? "; firing since " + t.firingSince() : "";
         return "alert " + t.kind().id().toUpperCase(Locale.ROOT) + " " + t.key() + " #" + t.sequence() + ": "
-                + t.summary() + since + " [id " + t.transitionId() + "; assumptions bound the interval, not advice]";
+                + t.summary() + since + " [id " + t.transitionId() + "] — only as credible as its assumptions;"
+                + " not clinical or operational advice; defer to local regulation and licensed practice";
     }
 }

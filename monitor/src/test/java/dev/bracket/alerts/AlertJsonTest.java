@@ -111,7 +111,9 @@ class AlertJsonTest {
         String fired = LogAlertSink.line(ts.get(0));
         assertThat(fired).doesNotContain("\n")
                 .startsWith("alert FIRING rollout/mts-negative/cumulative/sign-identified #1: sign of the effect identified: positive")
-                .contains(ts.get(0).transitionId());
+                .contains(ts.get(0).transitionId())
+                .contains("only as credible as its assumptions").contains("not clinical or operational advice")
+                .contains("local regulation");
         assertThat(LogAlertSink.line(ts.get(1))).startsWith("alert RESOLVED rollout/mts-negative/cumulative/sign-identified #2")
                 .contains("firing since 2026-03-01T09:00:00Z");
     }
