@@ -1,6 +1,8 @@
 package dev.bracket.alerts;
 
 import dev.bracket.bounds.BoundStatus;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
 
 import java.time.Clock;
 import java.time.Duration;
@@ -20,6 +22,8 @@ import java.util.Optional;
  * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
  */
 public final class AlertEvaluator {
+
+    private static final Logger LOG = LoggerFactory.getLogger(AlertEvaluator.class);
 
     /** Counting period for studies without a data-quality rule; only bounds memory. */
     private static final Duration IDLE_PERIOD = Duration.ofMinutes(1);
@@ -102,8 +106,27 @@ public final class AlertEvaluator {
      */
     public synchronized void restore(Collection<AlertState> restored) {
         for (AlertState s : restored) {
+            if (!configured(s.key())) {
+                if (s.firing()) {
+                    LOG.warn("alert {} was firing before the restart, but its study or rule is no longer configured:"
+                            + " it will not be judged again (its last document stays in the alerts topic)", s.key());
+                }
+                continue;
+            }
             states.merge(s.key(), s, (mine, theirs) -> theirs.sequence() > mine.sequence() ? theirs : mine);
         }
+    }
+
+    private boolean configured(AlertKey key) {
+        StudyAlertConfig c = studies.get(key.study());
+        if (c == null) {
+            return false;
+        }
+        return switch (key.rule()) {
+            case STREAM_STALLED -> c.stalled().isPresent();
+            case DATA_QUALITY -> c.quality().isPresent();
+            default -> c.cellRules().stream().anyMatch(r -> r.rule() == key.rule());
+        };
     }
 
     /** The state of one key (the initial state if it never fired). */

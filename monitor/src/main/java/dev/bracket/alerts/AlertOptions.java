@@ -13,7 +13,7 @@ import java.time.Duration;
 public record AlertOptions(String topic, Duration tick, int recent, Duration restoreTimeout) {
 
     public static final AlertOptions DEFAULTS =
-            new AlertOptions("bracket.alerts", Duration.ofSeconds(5), RecentAlerts.DEFAULT_CAPACITY, Duration.ofSeconds(30));
+            new AlertOptions("bracket-alerts", Duration.ofSeconds(5), RecentAlerts.DEFAULT_CAPACITY, Duration.ofSeconds(30));
 
     public AlertOptions {
         if (topic == null || !topic.matches("[a-zA-Z0-9._-]{1,249}")) {

@@ -155,4 +155,15 @@ class AlertRestoreTest {
         assertThat(e.state(ts.get(0).key()).sequence()).isEqualTo(2);
         assertThat(e.firing()).isEmpty();
     }
+
+    @Test
+    @DisplayName("state of a study or rule no longer configured is not taken over")
+    void unconfiguredStateIgnored() {
+        AlertEvaluator e = evaluator();
+        AlertTransition otherStudy = Transitions.alternating(Transitions.key("retired-study", "mts-negative"), 1).get(0);
+        AlertTransition otherRule = Transitions.alternating(
+                new AlertKey("rollout", "mts-negative", "cumulative", AlertRule.INTERVAL_NARROW), 1).get(0);
+        e.restore(List.of(AlertState.after(otherStudy), AlertState.after(otherRule)));
+        assertThat(e.firing()).isEmpty();
+    }
 }
