@@ -32,7 +32,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 @DisplayName("Alert state restore from the alerts topic")
 class AlertRestoreTest {
 
-    private static final String TOPIC = "bracket.alerts";
+    private static final String TOPIC = "bracket-alerts";
     private static final int PARTITIONS = 3;
 
     private static AlertEvaluator evaluator() {

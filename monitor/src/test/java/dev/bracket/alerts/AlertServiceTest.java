@@ -71,7 +71,7 @@ class AlertServiceTest {
         AlertEvaluator evaluator = new AlertEvaluator(Map.of("rollout", StudyAlertConfig.defaults()),
                 java.time.Clock.fixed(Snapshots.T0, java.time.ZoneOffset.UTC));
         AlertDispatcher dispatcher = new AlertDispatcher(List.of(new Broken(), recent), Map.of("rollout", List.of(study)), registry);
-        AlertOptions options = new AlertOptions("bracket.alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5));
+        AlertOptions options = new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5));
 
         // p = 1/2, mu1 = 0.6, mu0 = 0.4 on [0, 1]: worst case [-0.4, 0.6] (Manski 1990), mts-negative
         // [0.2, 0.6] (Manski & Pepper 2000), mtr-positive [0, 0.6] (Manski 1997).
@@ -111,7 +111,7 @@ class AlertServiceTest {
         RecentAlerts recent = new RecentAlerts(10);
         AlertService service = new AlertService(new AlertEvaluator(Map.of("rollout", c), clock),
                 new AlertDispatcher(List.of(recent), Map.of(), registry), recent,
-                new AlertOptions("bracket.alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
+                new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
         clock.advance(Duration.ofMinutes(2));
         service.tick();
         service.recordEvents("rollout", 1, 0, 0);
