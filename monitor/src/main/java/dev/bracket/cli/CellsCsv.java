@@ -48,10 +48,6 @@ final class CellsCsv {
                 boolean treated = arm(row.get("arm"), where);
                 long n = count(row.get("n"), where);
                 double mean = number(row.get("mean"), "mean", where);
-                if (n > 0 && !range.contains(mean)) {
-                    throw new InputError(where + ": mean " + mean + " lies outside the outcome range ["
-                            + range.min() + ", " + range.max() + "]; fix the row or the range");
-                }
                 String sdText = row.getOrDefault("sd", "");
                 double sd = sdText == null || sdText.isEmpty() ? 0.0 : number(sdText, "sd", where);
                 ArmStatistics stats = CalcInput.arm(n, mean, sd, range, where + ": ");
