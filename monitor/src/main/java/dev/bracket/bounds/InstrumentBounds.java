@@ -56,7 +56,7 @@ public final class InstrumentBounds {
     public static Optional<LevelMeans> levelMeans(double p, double mu1, double mu0, OutcomeRange range, AssumptionSet assumptions) {
         double q = 1 - p;
         UnobservedMeans box = assumptions.constrain(range, mu1, mu0);
-        if (box.isEmpty()) {
+        if (box.isEmpty(range.roundingSlack())) {
             return Optional.empty();
         }
         double treatedPart = p == 0 ? 0 : p * mu1;
@@ -98,7 +98,7 @@ public final class InstrumentBounds {
                 perLevel.put(e.getKey(), IdentifiedInterval.refuted());
                 continue;
             }
-            perLevel.put(e.getKey(), IdentifiedInterval.of(m.y1Low - m.y0High, m.y1High - m.y0Low));
+            perLevel.put(e.getKey(), IdentifiedInterval.spanning(m.y1Low - m.y0High, m.y1High - m.y0Low));
             l1 = Math.max(l1, m.y1Low);
             u1 = Math.min(u1, m.y1High);
             l0 = Math.max(l0, m.y0Low);
@@ -107,10 +107,10 @@ public final class InstrumentBounds {
         IdentifiedInterval overall;
         if (treated == 0 || control == 0) {
             overall = IdentifiedInterval.insufficientData();
-        } else if (refuted || l1 > u1 || l0 > u0) {
+        } else if (refuted || l1 - u1 > range.roundingSlack() || l0 - u0 > range.roundingSlack()) {
             overall = IdentifiedInterval.refuted();
         } else {
-            overall = IdentifiedInterval.of(l1 - u0, u1 - l0);
+            overall = IdentifiedInterval.spanning(l1 - u0, u1 - l0);
         }
         return new Result(overall, perLevel);
     }

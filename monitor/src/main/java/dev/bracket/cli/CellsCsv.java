@@ -36,8 +36,10 @@ final class CellsCsv {
         try (MappingIterator<Map<String, String>> rows = mapper.readerForMapOf(String.class).with(schema).readValues(in)) {
             boolean checkedHeader = false;
             while (rows.hasNext()) {
+                // Where the row starts: hasNext() has just reached it. After next() the parser is
+                // past the line end (and past any blank lines that follow).
+                long line = rows.getParser().currentLocation().getLineNr();
                 Map<String, String> row = rows.next();
-                long line = rows.getCurrentLocation().getLineNr();
                 String where = source + ", line " + line;
                 if (!checkedHeader) {
                     checkHeader(row.keySet(), source);
@@ -46,10 +48,6 @@ final class CellsCsv {
                 boolean treated = arm(row.get("arm"), where);
                 long n = count(row.get("n"), where);
                 double mean = number(row.get("mean"), "mean", where);
-                if (n > 0 && !range.contains(mean)) {
-                    throw new InputError(where + ": mean " + mean + " lies outside the outcome range ["
-                            + range.min() + ", " + range.max() + "]; fix the row or the range");
-                }
                 String sdText = row.getOrDefault("sd", "");
                 double sd = sdText == null || sdText.isEmpty() ? 0.0 : number(sdText, "sd", where);
                 ArmStatistics stats = CalcInput.arm(n, mean, sd, range, where + ": ");
