@@ -24,7 +24,9 @@ import java.util.Optional;
  * true (p, mu1, mu0) stays in its box forever; {@link BoxProjection} turns the boxes into the band.
  * For one cell this is DESIGN.md's corner rule (lower end: mu1 low, mu0 high; upper end: mu1 high,
  * mu0 low; p at either end), extended to the points where the box meets {@code mu1 = mu0} so
- * that corners where the assumptions are refuted are handled.
+ * that corners where the assumptions are refuted are handled. Strata are weighted by their
+ * observed shares, as in {@link StratifiedBounds}: the band covers the ATE of a population with
+ * the observed stratum mix (sampling variation of the shares is not included).
  *
  * <p>Inputs are the per-arm count and mean of each cell ({@code count * mean} is the arm's sum):
  * statistics that merge across partitions, with no observation history and no dependence on the

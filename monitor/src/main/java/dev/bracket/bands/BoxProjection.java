@@ -65,13 +65,17 @@ final class BoxProjection {
         double upper = 0;
         for (Map.Entry<String, Map<String, ObservedArms>> e : cells.byStratum().entrySet()) {
             Map<String, ObservedArms> levels = e.getValue();
+            long stratumTotal = cells.pooled(e.getKey()).total();
+            if (stratumTotal == 0) {
+                continue; // weight zero, as in StratifiedBounds
+            }
             Optional<Ends> stratum = levels.size() == 1
                     ? cell(boxOf.apply(levels.values().iterator().next()), range, assumptions)
                     : instrument(levels, range, assumptions, boxOf);
             if (stratum.isEmpty()) {
                 return Optional.empty();
             }
-            double w = (double) cells.pooled(e.getKey()).total() / total;
+            double w = (double) stratumTotal / total;
             lower += w * stratum.get().lower();
             upper += w * stratum.get().upper();
         }

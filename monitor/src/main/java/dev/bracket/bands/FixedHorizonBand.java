@@ -90,6 +90,9 @@ public final class FixedHorizonBand {
         double varUpper = 0;
         for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
             ObservedArms arms = levels.values().iterator().next();
+            if (arms.total() == 0) {
+                continue; // weight zero, as in StratifiedBounds
+            }
             IdentifiedInterval iv = BoundCalculator.interval(arms, range, assumptions);
             Optional<EndpointStandardErrors> se = EndpointStandardErrors.of(arms, range, assumptions, variance);
             if (!iv.isIdentified() || se.isEmpty()) {

@@ -89,6 +89,23 @@ class ConfidenceBandTest {
     }
 
     @Test
+    @DisplayName("a stratum with no units carries no weight in either band")
+    void emptyStratumIsIgnored() {
+        ObservedArms arms = new ObservedArms(ArmStatistics.ofSummary(300, 0.6, 0.4), ArmStatistics.ofSummary(500, 0.4, 0.45));
+        StudyCells one = StudyCells.single(arms);
+        StudyCells withEmpty = StudyCells.empty().with("a", StudyCells.NONE, arms).with("b", StudyCells.NONE, ObservedArms.empty());
+        BandSettings settings = BandSettings.both(0.95);
+        AssumptionSet set = AssumptionSet.parse("mtr-positive");
+        List<ConfidenceBand> expected = settings.bands(one, UNIT, set);
+        List<ConfidenceBand> actual = settings.bands(withEmpty, UNIT, set);
+        for (int i = 0; i < expected.size(); i++) {
+            assertTrue(expected.get(i).isIdentified());
+            assertEquals(expected.get(i).lower(), actual.get(i).lower(), 1e-15);
+            assertEquals(expected.get(i).upper(), actual.get(i).upper(), 1e-15);
+        }
+    }
+
+    @Test
     @DisplayName("anytime band: much data contradicting MTR+MTS gives refuted; few data do not")
     void anytimeRefutation() {
         // mtr-positive with mts-positive requires mu1 >= mu0 (Manski & Pepper 2000, Econometrica 68(4)).
