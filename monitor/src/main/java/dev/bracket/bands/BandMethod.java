@@ -1,7 +1,5 @@
 package dev.bracket.bands;
 
-import java.util.Locale;
-
 /** The two kinds of confidence band Bracket puts around an identified interval. */
 public enum BandMethod {
     /**
@@ -24,15 +22,5 @@ public enum BandMethod {
     /** The identifier used in JSON output and on the command line. */
     public String id() {
         return id;
-    }
-
-    /** Parses {@code fixed-horizon} (or {@code fixed}) and {@code anytime}, case-insensitive. */
-    public static BandMethod parse(String text) {
-        String t = text == null ? "" : text.trim().toLowerCase(Locale.ROOT);
-        return switch (t) {
-            case "fixed", "fixed-horizon" -> FIXED_HORIZON;
-            case "anytime" -> ANYTIME;
-            default -> throw new IllegalArgumentException("unknown band '" + text + "'; known: fixed, anytime");
-        };
     }
 }

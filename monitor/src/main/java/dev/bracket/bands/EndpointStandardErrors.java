@@ -28,8 +28,9 @@ import java.util.Optional;
  * <p>Limitation: the delta method assumes a differentiable end. At a kink (for instance
  * {@code mu1^ = mu0^} exactly) the active constraint is ambiguous; there the larger of the two
  * one-sided derivatives (in absolute value) is used, which errs towards a wider band, but
- * near a kink the normal approximation itself is poor. Where a one-sided step on both sides
- * would leave the values compatible with the assumptions, no standard error is given (empty).
+ * near a kink the normal approximation itself is poor. Where neither one-sided step stays
+ * inside the range and compatible with the assumptions, no standard error is given (empty) and
+ * {@link FixedHorizonBand} falls back to its conservative projection.
  *
  * @param lower standard error of the lower end
  * @param upper standard error of the upper end
