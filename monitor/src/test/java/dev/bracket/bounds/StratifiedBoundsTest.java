@@ -53,6 +53,21 @@ class StratifiedBoundsTest {
     }
 
     @Test
+    @DisplayName("a stratum with no units yet has weight zero and does not hold back the study interval")
+    void emptyStratumCarriesNoWeight() {
+        StudyCells study = StudyCells.empty()
+                .with("north", StudyCells.NONE, arms(30, 6.0, 70, 4.0))
+                .with("east", StudyCells.NONE, arms(0, 0.0, 0, 0.0));
+        double[] north = worstCase(30, 6.0, 70, 4.0);
+
+        StratifiedBounds.Result r = StratifiedBounds.interval(study, RANGE, AssumptionSet.parse("worst-case"));
+
+        assertEquals(BoundStatus.IDENTIFIED, r.overall().status());
+        assertEquals(north[0], r.overall().lower(), 1e-12);
+        assertEquals(north[1], r.overall().upper(), 1e-12);
+    }
+
+    @Test
     @DisplayName("MTR: each stratum is [0, its worst-case upper]; the study interval weights them by shares")
     void weightedSumUnderMonotoneResponse() {
         StudyCells study = StudyCells.empty()
