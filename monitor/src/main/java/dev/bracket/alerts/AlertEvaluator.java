@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.BoundStatus;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -54,8 +55,9 @@ public final class AlertEvaluator {
      */
     public synchronized List<AlertTransition> evaluate(BoundSnapshot snapshot) {
         StudyAlertConfig config = studies.get(snapshot.study());
-        Optional<BandReading> band = config == null ? Optional.empty() : snapshot.band(config.band());
-        if (band.isEmpty() || snapshot.smallerArm() < config.minPerArm()
+        Optional<ConfidenceBand> band = config == null ? Optional.empty() : snapshot.band(config.band());
+        if (band.isEmpty() || band.get().status() == BoundStatus.INSUFFICIENT_DATA
+                || snapshot.smallerArm() < config.minPerArm()
                 || snapshot.interval().status() == BoundStatus.INSUFFICIENT_DATA) {
             return List.of();
         }

@@ -101,9 +101,11 @@ public final class AlertJson {
             ObjectNode band = o.putObject("band");
             band.put("method", b.band().method().id());
             band.put("level", b.band().level());
-            band.put("lower", b.band().lower());
-            band.put("upper", b.band().upper());
-            band.put("width", b.band().width());
+            band.put("status", b.band().status().id());
+            ReportJson.number(band, "lower", b.band().lower());
+            ReportJson.number(band, "upper", b.band().upper());
+            ReportJson.number(band, "width", b.band().width());
+            band.put("basis", b.band().basis());
             ObjectNode limits = o.putObject("limits");
             b.limits().forEach(limits::put);
         } else if (evidence instanceof Evidence.OfSilence s) {

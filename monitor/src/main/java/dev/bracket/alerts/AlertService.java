@@ -17,7 +17,6 @@ import java.util.Optional;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
-import java.util.function.Function;
 
 /**
  * Alerting as the monitor runs it: the evaluator, its sinks and its clock. The bound updater
@@ -75,15 +74,13 @@ public final class AlertService implements AutoCloseable {
     }
 
     /**
-     * Judges a published report: one snapshot per assumption set, with the bands the updater
-     * computed for that row.
-     *
-     * @param bandsOf the confidence bands of a row, by method (absent methods are simply not judged)
+     * Judges a published report: one snapshot per assumption set, with the bands of its row (a
+     * row without the study's configured band is not judged).
      */
-    public void onReport(PublishedReport report, Function<BoundRow, Map<BandMethod, BandReading>> bandsOf) {
+    public void onReport(PublishedReport report) {
         for (BoundRow row : report.report().rows()) {
             onSnapshot(new BoundSnapshot(report.study(), row.assumptions(), report.window(), report.computedAt(),
-                    report.report().pooled(), row.interval(), bandsOf.apply(row)));
+                    report.report().pooled(), row.interval(), row.bands()));
         }
     }
 

@@ -1,5 +1,7 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
+
 import java.time.Duration;
 import java.util.Locale;
 
@@ -14,9 +16,12 @@ final class AlertText {
         return String.format(Locale.ROOT, "%.4g", v);
     }
 
-    static String band(BandReading b) {
-        return String.format(Locale.ROOT, "%s %s%% band [%s, %s]", b.method().id(),
-                num(100 * b.level()).replaceAll("\\.?0+$", ""), num(b.lower()), num(b.upper()));
+    /** E.g. {@code anytime 95% band [0.1234, 0.5678]}, or {@code anytime 95% band (refuted)}. */
+    static String band(ConfidenceBand b) {
+        String name = b.method().id() + " " + num(100 * b.level()).replaceAll("\\.?0+$", "") + "% band";
+        return b.isIdentified()
+                ? String.format(Locale.ROOT, "%s [%s, %s]", name, num(b.lower()), num(b.upper()))
+                : name + " (" + b.status().id() + ")";
     }
 
     /** A duration as people say it, e.g. {@code 5m 30s}. */

@@ -1,17 +1,19 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.LinkedHashMap;
 import java.util.Map;
 
 /**
- * Fires when the band for the interval's lower end lies wholly above the band for its upper end:
- * the assumptions' constraints cannot all hold, and sampling error does not explain it. A
- * refuted point estimate alone does not fire (it can be noise); {@link BandReading#inverted()} is
- * the test.
+ * Fires when the confidence band is refuted: no treated share and arm means inside their
+ * confidence region are compatible with the assumptions, which for an interval {@code [0, mu1 - mu0]}
+ * is exactly "the band for the lower end lies wholly above the band for the upper end" (see
+ * {@link ConfidenceBand}). Sampling error does not explain the contradiction. A refuted point
+ * estimate alone does not fire: it can be noise.
  *
- * @param clearMargin a firing alert resolves at once when the band is upright with at least this
+ * @param clearMargin a firing alert resolves at once when the band exists again with at least this
  *                    width; 0 disables the margin
  */
 public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
@@ -28,17 +30,16 @@ public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
     }
 
     @Override
-    public Verdict judge(IdentifiedInterval interval, BandReading band) {
-        if (band.inverted()) {
-            return Verdict.met("", "the lower end's lower confidence limit " + AlertText.num(band.lower())
-                    + " lies above the upper end's upper confidence limit " + AlertText.num(band.upper())
-                    + " (" + band.method().id() + ", level " + AlertText.num(band.level()) + ")");
-        }
+    public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String seen = AlertText.band(band);
-        if (clearMargin > 0 && band.width() >= clearMargin) {
-            return Verdict.clear(seen + " is upright with width at least the clear margin " + AlertText.num(clearMargin));
+        if (band.isRefuted()) {
+            return Verdict.met("", seen + ": no treated share and arm means in the confidence region satisfy the assumptions"
+                    + (interval.isIdentified() ? "" : ", and the estimate is refuted too"));
         }
-        return Verdict.unmet(seen + " is upright");
+        if (clearMargin > 0 && band.width() >= clearMargin) {
+            return Verdict.clear(seen + " exists, with width at least the clear margin " + AlertText.num(clearMargin));
+        }
+        return Verdict.unmet(seen + " exists: the contradiction is within sampling error");
     }
 
     @Override

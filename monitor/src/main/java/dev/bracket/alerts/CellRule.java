@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.Map;
@@ -13,8 +14,11 @@ public sealed interface CellRule
 
     AlertRule rule();
 
-    /** The verdict for one update; the interval is identified or refuted, never insufficient data. */
-    Verdict judge(IdentifiedInterval interval, BandReading band);
+    /**
+     * The verdict for one update. Neither the interval nor the band lacks data (the evaluator
+     * judges nothing then); each is identified or refuted.
+     */
+    Verdict judge(IdentifiedInterval interval, ConfidenceBand band);
 
     /** The configured limits by name, reported with every transition. */
     Map<String, Double> limits();

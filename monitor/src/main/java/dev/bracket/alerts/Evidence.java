@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 
@@ -16,7 +17,7 @@ public sealed interface Evidence {
      * For per-cell rules: the pooled arms, the estimated identified interval, the band that was
      * judged and the rule's configured limits by name (e.g. {@code width}).
      */
-    record OfBand(ObservedArms arms, IdentifiedInterval interval, BandReading band, Map<String, Double> limits)
+    record OfBand(ObservedArms arms, IdentifiedInterval interval, ConfidenceBand band, Map<String, Double> limits)
             implements Evidence {
         public OfBand {
             limits = Collections.unmodifiableMap(new LinkedHashMap<>(limits));

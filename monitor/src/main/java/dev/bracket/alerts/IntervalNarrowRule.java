@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.LinkedHashMap;
@@ -31,10 +32,10 @@ public record IntervalNarrowRule(double width, double clearMargin) implements Ce
     }
 
     @Override
-    public Verdict judge(IdentifiedInterval interval, BandReading band) {
+    public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String seen = AlertText.band(band);
-        if (band.inverted()) {
-            return Verdict.unmet(seen + " is inverted: the assumptions contradict the data");
+        if (band.isRefuted()) {
+            return Verdict.unmet(seen + ": the assumptions contradict the data");
         }
         String widths = "width " + AlertText.num(band.width()) + ", limit " + AlertText.num(width);
         if (band.width() < width) {

@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.LinkedHashMap;
@@ -32,10 +33,10 @@ public record PracticalEquivalenceRule(double low, double high, double clearMarg
     }
 
     @Override
-    public Verdict judge(IdentifiedInterval interval, BandReading band) {
+    public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String range = "[" + AlertText.num(low) + ", " + AlertText.num(high) + "]";
         String seen = AlertText.band(band);
-        if (band.inverted() || !interval.isIdentified()) {
+        if (band.isRefuted() || !interval.isIdentified()) {
             return Verdict.unmet(seen + ": the assumptions contradict the data");
         }
         boolean inside = band.lower() >= low && band.upper() <= high && interval.lower() >= low && interval.upper() <= high;

@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.LinkedHashMap;
@@ -29,9 +30,9 @@ public record SignIdentifiedRule(double clearMargin) implements CellRule {
     }
 
     @Override
-    public Verdict judge(IdentifiedInterval interval, BandReading band) {
+    public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String seen = AlertText.band(band);
-        if (band.inverted() || !interval.isIdentified()) {
+        if (band.isRefuted() || !interval.isIdentified()) {
             return Verdict.unmet(seen + ": the assumptions contradict the data, no sign is identified");
         }
         if (band.lower() > 0 && interval.lower() > 0) {

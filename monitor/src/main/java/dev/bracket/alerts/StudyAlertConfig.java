@@ -1,5 +1,7 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
+
 import java.util.List;
 import java.util.Optional;
 
@@ -42,10 +44,10 @@ public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, 
 
     /**
      * The settings of a study without an {@code alerts} section: sign-identified and
-     * assumptions-refuted on the anytime-valid band, no webhooks.
+     * assumptions-refuted on the anytime band, no webhooks.
      */
     public static StudyAlertConfig defaults() {
-        return new StudyAlertConfig(DEFAULT_MIN_PER_ARM, BandMethod.ANYTIME_VALID, DEFAULT_CLEAR_AFTER,
+        return new StudyAlertConfig(DEFAULT_MIN_PER_ARM, BandMethod.ANYTIME, DEFAULT_CLEAR_AFTER,
                 List.of(new SignIdentifiedRule(0), new AssumptionsRefutedRule(0)), Optional.empty(), Optional.empty(),
                 List.of());
     }

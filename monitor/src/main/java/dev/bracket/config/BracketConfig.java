@@ -1,5 +1,6 @@
 package dev.bracket.config;
 
+import dev.bracket.alerts.AlertOptions;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.OutcomeRange;
@@ -38,6 +39,7 @@ import java.util.regex.Pattern;
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
+ * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertSettings}
  * </pre>
  */
 public record BracketConfig(
@@ -56,13 +58,15 @@ public record BracketConfig(
         String instance,
         Map<String, String> kafka,
         Path brokerDataDir,
-        int brokerPort) {
+        int brokerPort,
+        AlertOptions alerts) {
 
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "group", "instance", "kafka", "broker");
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "group", "instance", "kafka", "broker",
+            "alerts");
 
     public BracketConfig {
         studies = List.copyOf(studies);
@@ -126,7 +130,7 @@ public record BracketConfig(
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
-                (int) port);
+                (int) port, AlertSettings.options(root.get("alerts")));
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -139,7 +143,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bandLevel, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, group, instance, k, brokerDataDir, brokerPort);
+                progressInterval, maxEventBytes, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     public Optional<StudyConfig> study(String id) {
@@ -165,7 +169,7 @@ public record BracketConfig(
         List<StudyConfig> out = new ArrayList<>();
         Set<String> seen = new HashSet<>();
         for (ConfigNode s : items) {
-            s.onlyKeys(Set.of("id", "outcome", "assume"));
+            s.onlyKeys(Set.of("id", "outcome", "assume", "alerts"));
             ConfigNode idNode = s.require("id");
             String id = idNode.text();
             if (!seen.add(id)) {
@@ -183,7 +187,8 @@ public record BracketConfig(
             } catch (IllegalArgumentException e) {
                 throw outcome.get("better").fail(e.getMessage());
             }
-            out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume"))));
+            out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume")),
+                    AlertSettings.study(s.get("alerts"))));
         }
         return out;
     }

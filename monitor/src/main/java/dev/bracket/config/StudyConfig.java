@@ -1,5 +1,6 @@
 package dev.bracket.config;
 
+import dev.bracket.alerts.StudyAlertConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.OutcomeRange;
 
@@ -7,11 +8,19 @@ import java.util.List;
 
 /**
  * One configured study: its identifier (the value of the events' study field), the declared
- * outcome range with the better direction, and the assumption sets to report.
+ * outcome range with the better direction, the assumption sets to report and its alert settings.
  */
-public record StudyConfig(String id, OutcomeRange range, List<AssumptionSet> assumptions) {
+public record StudyConfig(String id, OutcomeRange range, List<AssumptionSet> assumptions, StudyAlertConfig alerts) {
 
     public StudyConfig {
         assumptions = List.copyOf(assumptions);
+        if (alerts == null) {
+            throw new IllegalArgumentException("study alerts settings are required (StudyAlertConfig.defaults() for none given)");
+        }
+    }
+
+    /** A study with the default alert settings. */
+    public StudyConfig(String id, OutcomeRange range, List<AssumptionSet> assumptions) {
+        this(id, range, assumptions, StudyAlertConfig.defaults());
     }
 }

@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
@@ -30,7 +31,7 @@ class AlertEvaluatorTest {
     private static final ObservedArms DOWN = Snapshots.arms(100, 0.4, 100, 0.6);
 
     private static StudyAlertConfig config(long minPerArm, int clearAfter, CellRule... rules) {
-        return new StudyAlertConfig(minPerArm, BandMethod.ANYTIME_VALID, clearAfter, List.of(rules),
+        return new StudyAlertConfig(minPerArm, BandMethod.ANYTIME, clearAfter, List.of(rules),
                 Optional.empty(), Optional.empty(), List.of());
     }
 
@@ -167,7 +168,7 @@ class AlertEvaluatorTest {
             double hi = lo + 3 * random.nextDouble();
             bandsExcludingZero += lo > 0 || hi < 0 ? 1 : 0;
             BoundSnapshot s = new BoundSnapshot("rollout", worst, "cumulative", Snapshots.T0, arms, iv,
-                    Map.of(BandMethod.ANYTIME_VALID, new BandReading(BandMethod.ANYTIME_VALID, 0.95, lo, hi)));
+                    List.of(Snapshots.band(BandMethod.ANYTIME, lo, hi)));
             assertThat(e.evaluate(s)).isEmpty();
         }
         assertThat(bandsExcludingZero).as("the check must include bands that exclude zero").isGreaterThan(500);
@@ -243,7 +244,7 @@ class AlertEvaluatorTest {
         private final MutableClock clock = new MutableClock(Snapshots.T0);
 
         private AlertEvaluator evaluator(Optional<StreamStalledRule> stalled, Optional<DataQualityRule> quality) {
-            StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME_VALID, 2, List.of(), stalled, quality, List.of());
+            StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME, 2, List.of(), stalled, quality, List.of());
             return new AlertEvaluator(Map.of("rollout", c), clock);
         }
 
@@ -309,9 +310,8 @@ class AlertEvaluatorTest {
         IdentifiedInterval iv = BoundCalculator.interval(UP, Snapshots.UNIT, set);
         BoundSnapshot anytimeOnly = Snapshots.of("rollout", "mts-negative", UP, 0.1, 0.7, Snapshots.T0);
         assertThat(e.evaluate(anytimeOnly)).as("no fixed-horizon band, nothing judged").isEmpty();
-        BoundSnapshot both = new BoundSnapshot("rollout", set, "cumulative", Snapshots.T0, UP, iv, Map.of(
-                BandMethod.ANYTIME_VALID, new BandReading(BandMethod.ANYTIME_VALID, 0.95, -0.1, 0.8),
-                BandMethod.FIXED_HORIZON, new BandReading(BandMethod.FIXED_HORIZON, 0.95, 0.1, 0.7)));
+        BoundSnapshot both = new BoundSnapshot("rollout", set, "cumulative", Snapshots.T0, UP, iv, List.of(
+                Snapshots.band(BandMethod.ANYTIME, -0.1, 0.8), Snapshots.band(BandMethod.FIXED_HORIZON, 0.1, 0.7)));
         assertThat(e.evaluate(both)).singleElement().satisfies(t ->
                 assertThat(((Evidence.OfBand) t.evidence()).band().method()).isEqualTo(BandMethod.FIXED_HORIZON));
     }

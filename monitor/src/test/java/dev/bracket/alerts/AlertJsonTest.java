@@ -1,6 +1,7 @@
 package dev.bracket.alerts;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.IdentifiedInterval;
 import org.junit.jupiter.api.DisplayName;
@@ -41,7 +42,9 @@ class AlertJsonTest {
         assertThat(ev.path("arms").path("control").path("mean").asDouble()).isEqualTo(0.4);
         assertThat(ev.path("interval").path("lower").asDouble()).isEqualTo(0.2);
         assertThat(ev.path("interval").path("status").asText()).isEqualTo("identified");
-        assertThat(ev.path("band").path("method").asText()).isEqualTo("anytime-valid");
+        assertThat(ev.path("band").path("method").asText()).isEqualTo("anytime");
+        assertThat(ev.path("band").path("status").asText()).isEqualTo("identified");
+        assertThat(ev.path("band").path("basis").asText()).isEqualTo("constructed for the test");
         assertThat(ev.path("band").path("level").asDouble()).isEqualTo(0.95);
         assertThat(ev.path("band").path("lower").asDouble()).isEqualTo(0.05);
         assertThat(ev.path("limits").has("clearMargin")).isTrue();
@@ -65,15 +68,19 @@ class AlertJsonTest {
     @DisplayName("numbers that do not exist are null, never NaN: a refuted interval has no ends")
     void refutedIntervalHasNullEnds() {
         Evidence ev = new Evidence.OfBand(Snapshots.arms(100, 0.4, 100, 0.6), IdentifiedInterval.refuted(),
-                new BandReading(BandMethod.ANYTIME_VALID, 0.95, 0.05, -0.1), Map.of());
+                Snapshots.band(BandMethod.ANYTIME, 0.05, -0.1), Map.of());
         AlertKey key = new AlertKey("rollout", "mtr-positive,mts-positive", "cumulative", AlertRule.ASSUMPTIONS_REFUTED);
         AlertTransition t = AlertState.initial(key).next(new AssumptionsRefutedRule(0).judge(IdentifiedInterval.refuted(),
-                new BandReading(BandMethod.ANYTIME_VALID, 0.95, 0.05, -0.1)), ev, Snapshots.T0, 1, "m").transitions().get(0);
+                Snapshots.band(BandMethod.ANYTIME, 0.05, -0.1)), ev, Snapshots.T0, 1, "m").transitions().get(0);
         String text = AlertJson.toText(t);
         assertThat(text).doesNotContain("NaN");
         JsonNode interval = AlertJson.toJson(t).path("evidence").path("interval");
         assertThat(interval.path("status").asText()).isEqualTo("refuted");
         assertThat(interval.path("lower").isNull()).isTrue();
+        JsonNode band = AlertJson.toJson(t).path("evidence").path("band");
+        assertThat(band.path("status").asText()).isEqualTo("refuted");
+        assertThat(band.path("lower").isNull()).isTrue();
+        assertThat(t.summary()).contains("anytime 95% band (refuted)");
     }
 
     @Test

@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.MockConsumer;
@@ -36,7 +37,7 @@ class AlertRestoreTest {
     private static final int PARTITIONS = 3;
 
     private static AlertEvaluator evaluator() {
-        StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME_VALID, 3, List.of(new SignIdentifiedRule(0)),
+        StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME, 3, List.of(new SignIdentifiedRule(0)),
                 Optional.empty(), Optional.empty(), List.of());
         return new AlertEvaluator(Map.of("rollout", c), Clock.fixed(Snapshots.T0, ZoneOffset.UTC));
     }

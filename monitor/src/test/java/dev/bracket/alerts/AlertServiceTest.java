@@ -1,11 +1,11 @@
 package dev.bracket.alerts;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.BandSettings;
 import dev.bracket.bounds.AssumptionSet;
-import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.BoundRow;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.report.StudyReport;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
@@ -50,18 +50,6 @@ class AlertServiceTest {
         }
     }
 
-    /**
-     * A band around the row's interval, widened by 0.05 on each side: stands in for the bands
-     * package until it lands (the rules only read the numbers).
-     */
-    private static Map<BandMethod, BandReading> widened(BoundRow row) {
-        IdentifiedInterval iv = row.interval();
-        if (!iv.isIdentified()) {
-            return Map.of();
-        }
-        return Map.of(BandMethod.ANYTIME_VALID, new BandReading(BandMethod.ANYTIME_VALID, 0.95, iv.lower() - 0.05, iv.upper() + 0.05));
-    }
-
     @Test
     @DisplayName("a published report fires sign-identified for the sets that identify it, never for worst case")
     void reportToSinks() {
@@ -74,14 +62,19 @@ class AlertServiceTest {
         AlertOptions options = new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5));
 
         // p = 1/2, mu1 = 0.6, mu0 = 0.4 on [0, 1]: worst case [-0.4, 0.6] (Manski 1990), mts-negative
-        // [0.2, 0.6] (Manski & Pepper 2000), mtr-positive [0, 0.6] (Manski 1997).
-        ObservedArms arms = Snapshots.arms(400, 0.6, 400, 0.4);
+        // [0.2, 0.6] (Manski & Pepper 2000), mtr-positive [0, 0.6] (Manski 1997). Bands are the
+        // bands package's real ones; 5,000 units per arm put mts-negative's anytime band above 0.
+        ObservedArms arms = Snapshots.arms(5000, 0.6, 5000, 0.4);
         List<AssumptionSet> sets = List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mts-negative"),
                 AssumptionSet.parse("mtr-positive"));
-        StudyReport report = StudyReport.of(StudyCells.single(arms), Snapshots.UNIT, sets);
+        StudyReport report = StudyReport.of(StudyCells.single(arms), Snapshots.UNIT, sets, BandSettings.both(0.95));
+        assertThat(report.rows().get(1).bands()).anySatisfy(b -> {
+            assertThat(b.method()).isEqualTo(BandMethod.ANYTIME);
+            assertThat(b.lower()).isPositive();
+        });
         try (AlertService service = new AlertService(evaluator, dispatcher, recent, options)) {
-            service.onReport(new PublishedReport("rollout", "cumulative", Snapshots.T0, report), AlertServiceTest::widened);
-            service.onReport(new PublishedReport("rollout", "cumulative", Snapshots.T0.plusSeconds(5), report), AlertServiceTest::widened);
+            service.onReport(new PublishedReport("rollout", "cumulative", Snapshots.T0, report));
+            service.onReport(new PublishedReport("rollout", "cumulative", Snapshots.T0.plusSeconds(5), report));
 
             assertThat(study.got).singleElement().satisfies(t -> {
                 assertThat(t.key().toString()).isEqualTo("rollout/mts-negative/cumulative/sign-identified");
@@ -106,7 +99,7 @@ class AlertServiceTest {
     void clockRules() {
         SimpleMeterRegistry registry = new SimpleMeterRegistry();
         MutableClock clock = new MutableClock(Snapshots.T0);
-        StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME_VALID, 1, List.of(),
+        StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME, 1, List.of(),
                 Optional.of(new StreamStalledRule(Duration.ofMinutes(1))), Optional.empty(), List.of());
         RecentAlerts recent = new RecentAlerts(10);
         AlertService service = new AlertService(new AlertEvaluator(Map.of("rollout", c), clock),

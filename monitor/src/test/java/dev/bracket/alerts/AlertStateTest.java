@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.IdentifiedInterval;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
@@ -17,7 +18,7 @@ class AlertStateTest {
 
     private static final AlertKey KEY = new AlertKey("rollout", "mts-negative", "cumulative", AlertRule.SIGN_IDENTIFIED);
     private static final Evidence EVIDENCE = new Evidence.OfBand(Snapshots.arms(100, 0.6, 100, 0.4),
-            IdentifiedInterval.of(0.2, 0.6), new BandReading(BandMethod.ANYTIME_VALID, 0.95, 0.05, 0.7), Map.of());
+            IdentifiedInterval.of(0.2, 0.6), Snapshots.band(BandMethod.ANYTIME, 0.05, 0.7), Map.of());
     private static final Verdict POSITIVE = Verdict.met("positive", "band lies above 0");
     private static final Verdict NEGATIVE = Verdict.met("negative", "band lies below 0");
     private static final Verdict CONTAINS_ZERO = Verdict.unmet("band contains 0");

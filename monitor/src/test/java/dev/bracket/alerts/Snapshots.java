@@ -1,5 +1,7 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
@@ -8,7 +10,7 @@ import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 
 import java.time.Instant;
-import java.util.Map;
+import java.util.List;
 
 /** Builds rule inputs for tests from arm summaries, the real bound calculator and a given band. */
 final class Snapshots {
@@ -23,17 +25,20 @@ final class Snapshots {
         return new ObservedArms(ArmStatistics.ofSummary(n1, mu1, 0.3), ArmStatistics.ofSummary(n0, mu0, 0.3));
     }
 
-    /** A snapshot whose interval is computed by {@link BoundCalculator} and whose anytime-valid 95% band is given. */
+    /**
+     * A 95% band of the given method with the given ends; ends in the wrong order stand for a
+     * refuted band (the lower end's band above the upper end's band).
+     */
+    static ConfidenceBand band(BandMethod method, double lower, double upper) {
+        return lower <= upper
+                ? ConfidenceBand.of(method, 0.95, lower, upper, "constructed for the test")
+                : ConfidenceBand.refuted(method, 0.95, "constructed for the test");
+    }
+
+    /** A snapshot whose interval is computed by {@link BoundCalculator} and whose anytime 95% band is given. */
     static BoundSnapshot of(String study, String assumptions, ObservedArms arms, double bandLower, double bandUpper, Instant at) {
         AssumptionSet set = AssumptionSet.parse(assumptions);
         IdentifiedInterval iv = BoundCalculator.interval(arms, UNIT, set);
-        return new BoundSnapshot(study, set, "cumulative", at, arms, iv,
-                Map.of(BandMethod.ANYTIME_VALID, new BandReading(BandMethod.ANYTIME_VALID, 0.95, bandLower, bandUpper)));
-    }
-
-    /** A snapshot with a given interval (for rules that read it) and band. */
-    static BoundSnapshot withInterval(IdentifiedInterval iv, double bandLower, double bandUpper, Instant at) {
-        return new BoundSnapshot("s", AssumptionSet.parse("mtr-positive"), "cumulative", at, arms(100, 0.6, 100, 0.4), iv,
-                Map.of(BandMethod.ANYTIME_VALID, new BandReading(BandMethod.ANYTIME_VALID, 0.95, bandLower, bandUpper)));
+        return new BoundSnapshot(study, set, "cumulative", at, arms, iv, List.of(band(BandMethod.ANYTIME, bandLower, bandUpper)));
     }
 }

@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.time.Instant;
@@ -11,7 +12,7 @@ import java.util.Map;
 final class Transitions {
 
     static final Evidence EVIDENCE = new Evidence.OfBand(Snapshots.arms(100, 0.6, 100, 0.4),
-            IdentifiedInterval.of(0.2, 0.6), new BandReading(BandMethod.ANYTIME_VALID, 0.95, 0.05, 0.7),
+            IdentifiedInterval.of(0.2, 0.6), Snapshots.band(BandMethod.ANYTIME, 0.05, 0.7),
             Map.of("clearMargin", 0.0));
 
     private Transitions() {
