@@ -15,7 +15,6 @@ import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
-import java.util.Properties;
 
 /**
  * Restores alert state at start by reading the alerts topic from the beginning to its end (the
@@ -30,16 +29,20 @@ public final class AlertHistory {
     private AlertHistory() {
     }
 
-    /** Reads the topic with a consumer of its own (no consumer group: nothing is committed). */
-    public static List<AlertState> read(String bootstrapServers, String topic, Duration timeout) {
-        Properties p = new Properties();
-        p.put(ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
+    /**
+     * Reads the topic with a consumer of its own (no consumer group: nothing is committed).
+     *
+     * @param clientProperties the configuration's Kafka client properties, passed on verbatim
+     *                         except for what this reader needs
+     */
+    public static List<AlertState> read(Map<String, String> clientProperties, String topic, Duration timeout) {
+        Map<String, Object> p = new HashMap<>(clientProperties);
+        p.remove(ConsumerConfig.GROUP_ID_CONFIG);
+        p.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
         p.put(ConsumerConfig.CLIENT_ID_CONFIG, "bracket-alerts-restore");
         p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
         p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
-        p.put(ConsumerConfig.KEY_DESERIALIZER_CLASS_CONFIG, StringDeserializer.class.getName());
-        p.put(ConsumerConfig.VALUE_DESERIALIZER_CLASS_CONFIG, StringDeserializer.class.getName());
-        try (KafkaConsumer<String, String> consumer = new KafkaConsumer<>(p)) {
+        try (KafkaConsumer<String, String> consumer = new KafkaConsumer<>(p, new StringDeserializer(), new StringDeserializer())) {
             return read(consumer, topic, timeout);
         }
     }

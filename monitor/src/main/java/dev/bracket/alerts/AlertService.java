@@ -50,18 +50,18 @@ public final class AlertService implements AutoCloseable {
     /**
      * Restores state from the alerts topic (when a broker is given), then starts evaluating.
      *
-     * @param studies          each study's alert settings, by study id
-     * @param bootstrapServers the Kafka cluster holding the alerts topic; empty for no topic (state
-     *                         then lives in memory only, and a restart may fire again)
+     * @param studies each study's alert settings, by study id
+     * @param kafka   client properties of the Kafka cluster holding the alerts topic; empty for no
+     *                topic (state then lives in memory only, and a restart may fire again)
      */
     public static AlertService start(Map<String, StudyAlertConfig> studies, AlertOptions options,
-                                     Optional<String> bootstrapServers, MeterRegistry registry, Clock clock) {
+                                     Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
         RecentAlerts recent = new RecentAlerts(options.recent());
         List<AlertSink> common = new ArrayList<>(List.of(new LogAlertSink(), recent));
-        if (bootstrapServers.isPresent()) {
-            evaluator.restore(AlertHistory.read(bootstrapServers.get(), options.topic(), options.restoreTimeout()));
-            common.add(KafkaAlertSink.connect(bootstrapServers.get(), options.topic(), registry));
+        if (kafka.isPresent()) {
+            evaluator.restore(AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout()));
+            common.add(KafkaAlertSink.connect(kafka.get(), options.topic(), registry));
         } else {
             LOG.warn("no Kafka cluster for alerts: alert state is kept in memory only and a restart may fire alerts again");
         }

@@ -13,9 +13,9 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 import java.nio.charset.StandardCharsets;
+import java.util.HashMap;
 import java.util.Map;
 import java.util.Optional;
-import java.util.Properties;
 
 /**
  * Writes each transition's document to the alerts topic, keyed {@code study/assumptions/window/rule}
@@ -51,18 +51,21 @@ public final class KafkaAlertSink implements AlertSink {
                 .register(registry);
     }
 
-    /** A sink with its own idempotent producer, closed with the sink. */
-    public static KafkaAlertSink connect(String bootstrapServers, String topic, MeterRegistry registry) {
-        Properties p = new Properties();
-        p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
+    /**
+     * A sink with its own idempotent producer, closed with the sink.
+     *
+     * @param clientProperties the configuration's Kafka client properties (bootstrap servers,
+     *                         security, …), passed on verbatim except for what this producer needs
+     */
+    public static KafkaAlertSink connect(Map<String, String> clientProperties, String topic, MeterRegistry registry) {
+        Map<String, Object> p = new HashMap<>(clientProperties);
+        p.remove(ProducerConfig.TRANSACTIONAL_ID_CONFIG);
         p.put(ProducerConfig.CLIENT_ID_CONFIG, "bracket-alerts");
         p.put(ProducerConfig.ACKS_CONFIG, "all");
         p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
         // send() blocks while the broker is unknown; alerts must not hold the bound updater for a minute.
         p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 10_000);
-        p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
-        p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
-        return new KafkaAlertSink(new KafkaProducer<>(p), topic, registry, true);
+        return new KafkaAlertSink(new KafkaProducer<>(p, new StringSerializer(), new StringSerializer()), topic, registry, true);
     }
 
     /**

@@ -1,6 +1,7 @@
 package dev.bracket.stream;
 
 import com.fasterxml.jackson.core.JsonProcessingException;
+import dev.bracket.bands.BandSettings;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
@@ -29,13 +30,14 @@ import java.util.Map;
 import java.util.Set;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.TimeUnit;
+import java.util.function.Consumer;
 
 /**
  * Reads the partials topic (committed records only), keeps the latest statistics of every
  * source partition per cell, and recomputes a study's reports when its numbers changed, at most
  * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
- * {@link ReportDocument} keyed {@code study/window} and into {@link LatestReports} for the
- * HTTP API. Run {@link #run} on its own thread.
+ * {@link ReportDocument} keyed {@code study/window} (with both confidence bands at the configured
+ * level) and into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on its own thread.
  */
 public final class BoundUpdater implements Runnable, AutoCloseable {
 
@@ -53,11 +55,24 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final Map<String, Long> revisions = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     private final boolean windowed;
+    private final BandSettings bands;
+    private final Consumer<PublishedReport> listener;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
 
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock) {
+        this(clients, metrics, latest, partialsPartitions, clock, report -> { });
+    }
+
+    /**
+     * @param listener told of every published report after it reached {@link LatestReports}
+     *                 (the alert evaluator); called on the updater's thread
+     */
+    public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock,
+                        Consumer<PublishedReport> listener) {
         this.config = clients.config();
+        this.bands = BandSettings.both(config.bandLevel());
+        this.listener = listener;
         this.clients = clients;
         this.metrics = metrics;
         this.latest = latest;
@@ -128,7 +143,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         }
         Instant now = clock.instant();
         for (WindowSpec window : config.windows()) {
-            WindowReport report = WindowReport.current(study, window, merged);
+            WindowReport report = WindowReport.current(study, window, merged, bands);
             String key = study.id() + "/" + window.name();
             long revision = revisions.merge(key, 1L, Long::sum);
             try {
@@ -141,7 +156,13 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             } catch (JsonProcessingException e) {
                 throw new IllegalStateException("cannot encode the report of " + key, e);
             }
-            latest.put(new PublishedReport(study.id(), window.name(), now, report.report()));
+            PublishedReport published = new PublishedReport(study.id(), window.name(), now, report.report());
+            latest.put(published);
+            try {
+                listener.accept(published);
+            } catch (RuntimeException e) {
+                LOG.error("report listener failed on {}: {}", key, e.toString());
+            }
         }
         metrics.published(study.id());
     }

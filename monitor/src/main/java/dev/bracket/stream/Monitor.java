@@ -1,30 +1,37 @@
 package dev.bracket.stream;
 
+import dev.bracket.alerts.AlertService;
 import dev.bracket.config.BracketConfig;
+import dev.bracket.config.StudyConfig;
 import dev.bracket.report.LatestReports;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 
 import java.time.Clock;
 import java.time.Duration;
+import java.util.Optional;
+import java.util.stream.Collectors;
 
 /**
  * A running monitor instance against a Kafka cluster: topic setup, one aggregation group
- * member and one bound updater, each on its own thread. Start with {@link #start}; stop with
- * {@link #close} (final commit, then clients closed).
+ * member and one bound updater, each on its own thread, and the alert evaluator fed by both
+ * (state restored from the alerts topic at start). Start with {@link #start}; stop with
+ * {@link #close} (final commit, then clients closed, then alert sinks drained).
  */
 public final class Monitor implements AutoCloseable {
 
     private final StreamAggregator aggregator;
     private final BoundUpdater updater;
     private final StreamMetrics metrics;
+    private final AlertService alerts;
     private final Thread aggregatorThread;
     private final Thread updaterThread;
 
-    private Monitor(StreamAggregator aggregator, BoundUpdater updater, StreamMetrics metrics) {
+    private Monitor(StreamAggregator aggregator, BoundUpdater updater, StreamMetrics metrics, AlertService alerts) {
         this.aggregator = aggregator;
         this.updater = updater;
         this.metrics = metrics;
+        this.alerts = alerts;
         this.aggregatorThread = new Thread(aggregator, "bracket-aggregator");
         this.updaterThread = new Thread(updater, "bracket-updater");
     }
@@ -46,8 +53,11 @@ public final class Monitor implements AutoCloseable {
             partials = TopicSetup.ensureTopics(admin, config);
         }
         StreamMetrics metrics = new StreamMetrics(registry);
-        Monitor m = new Monitor(new StreamAggregator(clients, metrics, partials),
-                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC()), metrics);
+        AlertService alerts = AlertService.start(
+                config.studies().stream().collect(Collectors.toMap(StudyConfig::id, StudyConfig::alerts)),
+                config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
+        Monitor m = new Monitor(new StreamAggregator(clients, metrics, partials, alerts::recordEvents),
+                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport), metrics, alerts);
         m.aggregatorThread.start();
         m.updaterThread.start();
         return m;
@@ -55,6 +65,11 @@ public final class Monitor implements AutoCloseable {
 
     public StreamMetrics metrics() {
         return metrics;
+    }
+
+    /** The alert evaluator and its sinks ({@code GET /api/alerts} reads {@link AlertService#apiView()}). */
+    public AlertService alerts() {
+        return alerts;
     }
 
     /** Input partitions this instance currently aggregates. */
@@ -68,6 +83,7 @@ public final class Monitor implements AutoCloseable {
         updater.close();
         join(aggregatorThread);
         join(updaterThread);
+        alerts.close();
     }
 
     private static void join(Thread t) {

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.bands.BandSettings;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -117,9 +118,10 @@ public final class Replay {
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();
+        BandSettings bands = BandSettings.both(config.bandLevel()); // as the live bound updater publishes
         for (StudyConfig study : config.studies()) {
             for (WindowSpec w : config.windows()) {
-                reports.add(WindowReport.current(study, w, merged));
+                reports.add(WindowReport.current(study, w, merged, bands));
             }
         }
         return new Result(reports, accepted, new EnumMap<>(rejectedByReason), List.copyOf(rejected));

@@ -60,6 +60,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
+    private final StudyEventCounts eventCounts;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
@@ -73,6 +74,12 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private long lastCommitNanos;
 
     public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions) {
+        this(clients, metrics, partialsPartitions, StudyEventCounts.NONE);
+    }
+
+    /** @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality) */
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, StudyEventCounts eventCounts) {
+        this.eventCounts = eventCounts;
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
@@ -126,6 +133,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     }
 
     private void process(ConsumerRecords<byte[], byte[]> records) {
+        Map<String, long[]> perStudy = new HashMap<>(); // accepted, rejected, out of range
         for (TopicPartition tp : records.partitions()) {
             PartitionState state = states.get(tp);
             if (state == null) {
@@ -136,10 +144,18 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             long next = -1;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 ParsedEvent e = parser.parse(r.value(), r.timestamp());
+                long[] counts = e.study() == null ? null : perStudy.computeIfAbsent(e.study().id(), k -> new long[3]);
                 if (e.isUsable()) {
                     state.add(e);
                     accepted.increment();
+                    if (counts != null) {
+                        counts[0]++;
+                    }
                 } else {
+                    if (counts != null) {
+                        counts[1]++;
+                        counts[2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
+                    }
                     reject(r, e);
                 }
                 next = r.offset() + 1;
@@ -148,6 +164,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 pendingOffsets.put(tp, next);
             }
         }
+        perStudy.forEach((study, c) -> eventCounts.counted(study, c[0], c[1], c[2]));
     }
 
     private void reject(ConsumerRecord<byte[], byte[]> r, ParsedEvent e) {

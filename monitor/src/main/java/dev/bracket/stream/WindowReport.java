@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.bands.BandSettings;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.StudyReport;
@@ -19,6 +20,11 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
      * ending with the watermark's pane for sliding.
      */
     public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials) {
+        return current(study, window, partials, BandSettings.none());
+    }
+
+    /** As {@link #current(StudyConfig, WindowSpec, MergedPartials)}, with the given confidence bands in every row. */
+    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandSettings bands) {
         long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
@@ -29,7 +35,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         long from = start;
         long to = end;
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
-                study.range(), study.assumptions());
+                study.range(), study.assumptions(), bands);
         return new WindowReport(study, window, start, end, report, partials.late(study.id(), window.name()));
     }
 }
