@@ -42,6 +42,8 @@ public final class AlertHistory {
         p.put(ConsumerConfig.CLIENT_ID_CONFIG, "bracket-alerts-restore");
         p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
         p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        // Looking for the topic must not create it: it has to be compacted (see KafkaAlertSink.topic).
+        p.put(ConsumerConfig.ALLOW_AUTO_CREATE_TOPICS_CONFIG, false);
         try (KafkaConsumer<String, String> consumer = new KafkaConsumer<>(p, new StringDeserializer(), new StringDeserializer())) {
             return read(consumer, topic, timeout);
         }

@@ -26,9 +26,9 @@ import java.util.Optional;
 import static org.assertj.core.api.Assertions.assertThat;
 
 /**
- * State restore through the alerts topic's records. The broker is Kafka's own in-memory
- * MockProducer / MockConsumer: the records, keys, headers and the read-to-end loop are real; a
- * test against a running broker belongs with the embedded broker (see the report).
+ * State restore through the alerts topic's records, with Kafka's own MockProducer / MockConsumer:
+ * records, keys, headers and the read-to-end loop are real, and odd records can be planted.
+ * {@link AlertRestartOnBrokerTest} does the same against a running broker.
  */
 @DisplayName("Alert state restore from the alerts topic")
 class AlertRestoreTest {
