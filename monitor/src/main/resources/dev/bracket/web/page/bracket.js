@@ -1,0 +1,121 @@
+// Polls the JSON API and draws, per study and window, one small chart per assumption set:
+// the identified interval's ends over time, the area between them shaded, and zero.
+"use strict";
+
+const charts = new Map();   // "study|window|assumptions" -> uPlot instance
+
+function fmt(v) {
+  return v === null || v === undefined ? "–" : (v >= 0 ? "+" : "") + v.toFixed(4);
+}
+
+function el(tag, attrs, text) {
+  const e = document.createElement(tag);
+  Object.entries(attrs || {}).forEach(([k, v]) => e.setAttribute(k, v));
+  if (text !== undefined) e.textContent = text;
+  return e;
+}
+
+function section(container, id) {
+  let s = document.getElementById(id);
+  if (!s) {
+    s = el("section", {id: id});
+    container.appendChild(s);
+  }
+  return s;
+}
+
+function table(report) {
+  const t = el("table");
+  const head = el("tr");
+  ["assumptions", "status", "lower", "upper", "width", "sign of effect"].forEach(h => head.appendChild(el("th", {}, h)));
+  t.appendChild(head);
+  report.bounds.forEach(row => {
+    const tr = el("tr", {title: row.meaning});
+    tr.appendChild(el("td", {}, row.assumptions.join(" + ")));
+    tr.appendChild(el("td", {}, row.status));
+    tr.appendChild(el("td", {}, fmt(row.lower)));
+    tr.appendChild(el("td", {}, fmt(row.upper)));
+    tr.appendChild(el("td", {}, row.width === null ? "–" : row.width.toFixed(4)));
+    const sign = row.status !== "identified" ? "" : row.sign === "undetermined" ? "not identified (contains 0)" : row.sign;
+    tr.appendChild(el("td", {class: "sign-" + row.sign}, sign));
+    t.appendChild(tr);
+  });
+  return t;
+}
+
+function chartOptions(title, width) {
+  return {
+    title: title, width: width, height: 190,
+    scales: {x: {time: true}},
+    series: [
+      {},
+      {label: "lower", stroke: "#2b5fa8", width: 1.5},
+      {label: "upper", stroke: "#2b5fa8", width: 1.5},
+      {label: "zero", stroke: "#999", dash: [4, 4], width: 1, points: {show: false}},
+    ],
+    bands: [{series: [2, 1], fill: "rgba(43, 95, 168, 0.15)"}],
+    legend: {show: true},
+  };
+}
+
+function drawSeries(holder, study, series) {
+  const key = study + "|" + series.window + "|" + series.assumptions.join(",");
+  const data = [series.time, series.lower, series.upper, series.time.map(() => 0)];
+  let chart = charts.get(key);
+  if (chart) {
+    chart.setData(data);
+    return;
+  }
+  const fig = el("figure", {class: "chart"});
+  fig.appendChild(el("figcaption", {title: series.meaning}, series.assumptions.join(" + ")));
+  holder.appendChild(fig);
+  chart = new uPlot(chartOptions("", Math.max(320, Math.min(460, holder.clientWidth - 10))), data, fig);
+  charts.set(key, chart);
+}
+
+async function getJson(url) {
+  const r = await fetch(url, {cache: "no-store"});
+  if (!r.ok) throw new Error(url + ": HTTP " + r.status);
+  return r.json();
+}
+
+async function refresh() {
+  const main = document.getElementById("studies");
+  let list;
+  try {
+    list = await getJson("/api/studies");
+  } catch (e) {
+    return;   // the monitor may be restarting; try again on the next tick
+  }
+  if (list.studies.length === 0) return;
+  main.querySelectorAll(".quiet").forEach(n => n.remove());
+  for (const s of list.studies) {
+    const [detail, history] = await Promise.all([
+      getJson("/api/studies/" + encodeURIComponent(s.study)),
+      getJson("/api/studies/" + encodeURIComponent(s.study) + "/history").catch(() => ({series: []})),
+    ]);
+    const box = section(main, "study-" + s.study);
+    for (const w of detail.windows) {
+      const wid = "study-" + s.study + "-window-" + w.window;
+      let ws = document.getElementById(wid);
+      if (!ws) {
+        ws = el("div", {id: wid});
+        if (box.childElementCount === 0) box.appendChild(el("h2", {}, "Study " + s.study));
+        ws.appendChild(el("h3"));
+        ws.appendChild(el("div", {class: "table"}));
+        ws.appendChild(el("div", {class: "charts"}));
+        box.appendChild(ws);
+      }
+      const c = w.counts;
+      ws.querySelector("h3").textContent = "Window " + w.window + ": " + c.total + " units (" + c.treated +
+          " treated, " + c.control + " untreated), computed " + new Date(w.computedAt).toLocaleTimeString();
+      const tableBox = ws.querySelector(".table");
+      tableBox.replaceChildren(table(w.report));
+      const holder = ws.querySelector(".charts");
+      history.series.filter(x => x.window === w.window).forEach(x => drawSeries(holder, s.study, x));
+    }
+  }
+}
+
+refresh();
+setInterval(refresh, 2000);
