@@ -43,18 +43,26 @@ function table(report) {
   return t;
 }
 
-function chartOptions(title, width) {
+// The y axis always shows zero, so whether an interval excludes it can be seen at a glance.
+function withZero(u, min, max) {
+  const lo = Math.min(min, 0), hi = Math.max(max, 0);
+  const pad = (hi - lo) * 0.08 || 0.05;
+  return [lo - pad, hi + pad];
+}
+
+function chartOptions(width) {
+  const line = {stroke: "#2b5fa8", width: 1.5, points: {show: false}};
   return {
-    title: title, width: width, height: 190,
-    scales: {x: {time: true}},
+    width: width, height: 170,
+    scales: {x: {time: true}, y: {range: withZero}},
     series: [
       {},
-      {label: "lower", stroke: "#2b5fa8", width: 1.5},
-      {label: "upper", stroke: "#2b5fa8", width: 1.5},
-      {label: "zero", stroke: "#999", dash: [4, 4], width: 1, points: {show: false}},
+      Object.assign({label: "lower"}, line),
+      Object.assign({label: "upper"}, line),
+      {label: "zero", stroke: "#888", dash: [4, 4], width: 1, points: {show: false}},
     ],
     bands: [{series: [2, 1], fill: "rgba(43, 95, 168, 0.15)"}],
-    legend: {show: true},
+    legend: {show: false},
   };
 }
 
@@ -69,7 +77,7 @@ function drawSeries(holder, study, series) {
   const fig = el("figure", {class: "chart"});
   fig.appendChild(el("figcaption", {title: series.meaning}, series.assumptions.join(" + ")));
   holder.appendChild(fig);
-  chart = new uPlot(chartOptions("", Math.max(320, Math.min(460, holder.clientWidth - 10))), data, fig);
+  chart = new uPlot(chartOptions(Math.max(300, fig.clientWidth)), data, fig);
   charts.set(key, chart);
 }
 
