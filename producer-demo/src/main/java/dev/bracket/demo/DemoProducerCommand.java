@@ -30,7 +30,7 @@ import java.util.concurrent.atomic.AtomicBoolean;
 public final class DemoProducerCommand implements Callable<Integer> {
 
     /** The topic the monitor reads outcomes from unless configured otherwise. */
-    public static final String DEFAULT_TOPIC = "bracket-outcomes";
+    public static final String DEFAULT_TOPIC = "bracket-events";
     public static final String DEFAULT_STUDY = "host-rollout";
 
     @CommandLine.Spec
