@@ -1,5 +1,7 @@
 package dev.bracket.cli;
 
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.demo.TrueEffects;
@@ -70,23 +72,38 @@ final class DemoScreen {
         out.append('\n');
         List<BoundRow> rows = published.report().rows();
         int width = Math.max("assumptions".length(), rows.stream().mapToInt(r -> r.assumptions().toString().length()).max().orElse(0));
-        String format = "%-" + width + "s  %9s  %9s  %8s  %-28s  %s%n";
-        out.append(String.format(Locale.ROOT, format, "assumptions", "lower", "upper", "width", "sign of effect", "true ATE inside?"));
+        String format = "%-" + width + "s  %9s  %9s  %8s  %-27s  %-19s  %s%n";
+        String bandHeader = rows.stream().flatMap(r -> anytimeBand(r).stream()).findFirst()
+                .map(b -> String.format(Locale.ROOT, "%.0f%% anytime band", 100 * b.level())).orElse("");
+        out.append(String.format(Locale.ROOT, format, "assumptions", "lower", "upper", "width", "sign of the interval",
+                bandHeader, "true ATE inside?"));
         for (BoundRow row : rows) {
             IdentifiedInterval iv = row.interval();
+            String band = anytimeBand(row).map(DemoScreen::bandText).orElse("");
             if (iv.isIdentified()) {
                 boolean covers = iv.lower() <= s.truth().ate() && s.truth().ate() <= iv.upper();
-                out.append(String.format(Locale.ROOT, format, row.assumptions(),
-                        String.format(Locale.ROOT, "%+.4f", iv.lower()), String.format(Locale.ROOT, "%+.4f", iv.upper()),
-                        String.format(Locale.ROOT, "%.4f", iv.width()), signText(row),
-                        covers ? "yes" : "NO - an assumption is false here"));
+                out.append(String.format(Locale.ROOT, format, row.assumptions(), signed(iv.lower()), signed(iv.upper()),
+                        String.format(Locale.ROOT, "%.4f", iv.width()), signText(row), band,
+                        covers ? "yes" : "NO: an assumption is false here"));
             } else {
-                out.append(String.format(Locale.ROOT, format, row.assumptions(), "-", "-", "-", iv.status().id(), "-"));
+                out.append(String.format(Locale.ROOT, format, row.assumptions(), "-", "-", "-", iv.status().id(), band, "-"));
             }
         }
         out.append('\n');
         appendCautions(out);
         return out.toString();
+    }
+
+    private static Optional<ConfidenceBand> anytimeBand(BoundRow row) {
+        return row.bands().stream().filter(b -> b.method() == BandMethod.ANYTIME).findFirst();
+    }
+
+    private static String bandText(ConfidenceBand b) {
+        return b.isIdentified() ? "[" + signed(b.lower()) + ", " + signed(b.upper()) + "]" : b.status().id();
+    }
+
+    private static String signed(double v) {
+        return String.format(Locale.ROOT, "%+.4f", v);
     }
 
     private static String signText(BoundRow row) {

@@ -1,5 +1,7 @@
 package dev.bracket.web;
 
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.report.BoundRow;
@@ -14,7 +16,8 @@ import java.util.Map;
 
 /**
  * The recent past of every interval, for the chart on the web page: per (study, window,
- * assumption set) a series of the interval's ends at each report time. Bounded: a series keeps
+ * assumption set) a series of the interval's ends, and its confidence bands' ends, at each
+ * report time. Bounded: a series keeps
  * its newest {@code capacity} points and forgets older ones, so memory stays flat however long
  * the monitor runs. Thread-safe.
  */
@@ -25,11 +28,22 @@ public final class ReportHistory {
     }
 
     /**
-     * One report's interval. The ends are NaN when the status is not identified.
+     * One report's interval and confidence bands. Ends are NaN when their status is not identified.
      *
      * @param epochMillis when the report was computed
+     * @param bands       the row's bands, in the report's order (empty when none were computed)
      */
-    public record Point(long epochMillis, double lower, double upper, BoundStatus status) {
+    public record Point(long epochMillis, double lower, double upper, BoundStatus status, List<BandEnds> bands) {
+        public Point {
+            bands = List.copyOf(bands);
+        }
+    }
+
+    /** The ends of one confidence band at one report; NaN unless the band is identified. */
+    public record BandEnds(BandMethod method, double level, double lower, double upper) {
+        static BandEnds of(ConfidenceBand band) {
+            return new BandEnds(band.method(), band.level(), band.lower(), band.upper());
+        }
     }
 
     /** A copy of one series, oldest point first. */
@@ -68,7 +82,8 @@ public final class ReportHistory {
             if (points.size() == capacity) {
                 points.removeFirst();
             }
-            points.addLast(new Point(at, row.interval().lower(), row.interval().upper(), row.interval().status()));
+            points.addLast(new Point(at, row.interval().lower(), row.interval().upper(), row.interval().status(),
+                    row.bands().stream().map(BandEnds::of).toList()));
         }
         return true;
     }

@@ -2,6 +2,7 @@ package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
@@ -10,6 +11,7 @@ import dev.bracket.report.ReportJson;
 import java.time.Instant;
 import java.util.Comparator;
 import java.util.List;
+import java.util.Map;
 import java.util.Optional;
 
 /**
@@ -71,7 +73,9 @@ public final class StudyDocuments {
     /**
      * {@code GET /api/studies/{id}/history}: one series per window and assumption set, as
      * columns ready for a chart: {@code time} (Unix seconds), {@code lower}, {@code upper}
-     * (null where the interval was not identified) and {@code status}.
+     * (null where the interval was not identified) and {@code status}; and {@code bands}, one
+     * entry per band method with {@code method}, {@code level}, {@code lower}, {@code upper}
+     * columns (null where that band did not exist or was not identified).
      */
     public static Optional<ObjectNode> history(ReportHistory history, String study) {
         List<ReportHistory.Series> all = history.study(study);
@@ -99,8 +103,27 @@ public final class StudyDocuments {
                 addNumber(upper, p.upper());
                 status.add(p.status().id());
             }
+            ArrayNode bands = o.putArray("bands");
+            s.points().stream().flatMap(p -> p.bands().stream())
+                    .map(b -> Map.entry(b.method(), b.level())).distinct()
+                    .forEach(kind -> bands.add(bandColumns(s.points(), kind.getKey(), kind.getValue())));
         }
         return Optional.of(root);
+    }
+
+    private static ObjectNode bandColumns(List<ReportHistory.Point> points, BandMethod method, double level) {
+        ObjectNode b = ReportJson.mapper().createObjectNode();
+        b.put("method", method.id());
+        b.put("level", level);
+        ArrayNode lower = b.putArray("lower");
+        ArrayNode upper = b.putArray("upper");
+        for (ReportHistory.Point p : points) {
+            Optional<ReportHistory.BandEnds> ends = p.bands().stream()
+                    .filter(e -> e.method() == method && e.level() == level).findFirst();
+            addNumber(lower, ends.map(ReportHistory.BandEnds::lower).orElse(Double.NaN));
+            addNumber(upper, ends.map(ReportHistory.BandEnds::upper).orElse(Double.NaN));
+        }
+        return b;
     }
 
     /** {@code {"error": message}} for 4xx answers. */

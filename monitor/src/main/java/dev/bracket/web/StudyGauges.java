@@ -1,5 +1,7 @@
 package dev.bracket.web;
 
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
@@ -10,6 +12,7 @@ import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Tags;
 
+import java.util.List;
 import java.util.Optional;
 import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
@@ -24,6 +27,9 @@ import java.util.function.ToDoubleFunction;
  *       interval (NaN when it is refuted or there are not enough data)</li>
  *   <li>{@code bracket_interval_sign}: +1 / -1 when the interval excludes zero, else 0</li>
  *   <li>{@code bracket_interval_refuted}: 1 when the assumptions contradict the data</li>
+ *   <li>{@code bracket_band_lower}, {@code bracket_band_upper}: ends of each confidence band, with
+ *       labels {@code method} ({@code anytime}, {@code fixed-horizon}) and {@code level} (NaN
+ *       when the band is refuted or there are not enough data)</li>
  *   <li>{@code bracket_arm_units}: units in the arm ({@code arm="treated"|"control"})</li>
  *   <li>{@code bracket_report_timestamp_seconds}: when the report was computed (Unix time)</li>
  * </ul>
@@ -66,7 +72,24 @@ public final class StudyGauges {
                 intervalGauge("bracket.interval.refuted", "1 when the assumptions contradict the data", tags,
                         iv -> iv.status() == BoundStatus.REFUTED ? 1 : 0, study, window, set);
             }
+            for (ConfidenceBand band : row.bands()) {
+                BandMethod method = band.method();
+                double level = band.level();
+                if (registered.add(List.of(study, window, set, method, level))) {
+                    Tags tags = Tags.of("study", study, "window", window, "assumptions", set.toString(),
+                            "method", method.id(), "level", Double.toString(level));
+                    gauge("bracket.band.lower", "Lower end of the confidence band around the interval", tags, null,
+                            r -> band(r, set, method, level).map(ConfidenceBand::lower).orElse(Double.NaN), study, window);
+                    gauge("bracket.band.upper", "Upper end of the confidence band around the interval", tags, null,
+                            r -> band(r, set, method, level).map(ConfidenceBand::upper).orElse(Double.NaN), study, window);
+                }
+            }
         }
+    }
+
+    private static Optional<ConfidenceBand> band(PublishedReport report, AssumptionSet set, BandMethod method, double level) {
+        return report.report().rows().stream().filter(r -> r.assumptions().equals(set)).findFirst()
+                .flatMap(row -> row.bands().stream().filter(b -> b.method() == method && b.level() == level).findFirst());
     }
 
     private void intervalGauge(String name, String help, Tags tags, ToDoubleFunction<IdentifiedInterval> value,

@@ -1,5 +1,8 @@
 package dev.bracket.cli;
 
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
@@ -33,7 +36,10 @@ class DemoScreenTest {
         StudyCells cells = StudyCells.single(new ObservedArms(
                 ArmStatistics.ofSummary(400, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
         StudyReport report = StudyReport.of(cells, new OutcomeRange(0, 1),
-                List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mtr-positive,mts-positive")));
+                List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mtr-positive,mts-positive")),
+                BandSettings.both(0.95));
+        ConfidenceBand anytime = report.rows().get(0).bands().stream()
+                .filter(b -> b.method() == BandMethod.ANYTIME).findFirst().orElseThrow();
         String screen = DemoScreen.render(state(Optional.of(new PublishedReport("host-rollout", "cumulative",
                 Instant.parse("2026-01-01T10:00:00Z"), report))));
 
@@ -41,6 +47,8 @@ class DemoScreenTest {
         assertThat(line(screen, "worst-case ")).contains("-0.4400", "+0.5600", "1.0000", "not identified (contains 0)", "yes");
         // MTR+ with MTS+: [0, mu1 - mu0] = [0, 0.14] (Manski & Pepper 2000), which misses an ATE of -0.02.
         assertThat(line(screen, "mtr-positive,mts-positive")).contains("+0.0000", "+0.1400", "NO");
+        assertThat(screen).contains("95% anytime band");
+        assertThat(line(screen, "worst-case ")).contains(String.format(java.util.Locale.ROOT, "[%+.4f, %+.4f]", anytime.lower(), anytime.upper()));
         assertThat(screen).contains("True ATE -0.0200", "1,234", "1,000 units", "400 with the setting", "600 without",
                 "Naive difference of means +0.1400", "12 s of 60 s", "http://127.0.0.1:8080/",
                 "only as credible as its assumptions", "not clinical");

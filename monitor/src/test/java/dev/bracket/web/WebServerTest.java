@@ -1,6 +1,9 @@
 package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
@@ -43,7 +46,7 @@ class WebServerTest {
     private static StudyReport report(long treatedN) {
         StudyCells cells = StudyCells.single(new ObservedArms(
                 ArmStatistics.ofSummary(treatedN, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
-        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS);
+        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandSettings.both(0.95));
     }
 
     @BeforeAll
@@ -139,6 +142,12 @@ class WebServerTest {
                 .contains("bracket_arm_units{arm=\"treated\",study=\"rollout-a\",window=\"cumulative\"} 400.0")
                 .contains("bracket_report_timestamp_seconds{study=\"rollout-a\",window=\"cumulative\"} " + (double) T0.getEpochSecond())
                 .contains("bracket_events_accepted_total{topic=\"outcomes\"} 7.0");
+        for (ConfidenceBand band : LATEST.get("rollout-a", "cumulative").orElseThrow().report().rows().get(0).bands()) {
+            String labels = "{assumptions=\"worst-case\",level=\"0.95\",method=\"" + band.method().id()
+                    + "\",study=\"rollout-a\",window=\"cumulative\"}";
+            assertThat(text).contains("bracket_band_lower" + labels + " " + band.lower())
+                    .contains("bracket_band_upper" + labels + " " + band.upper());
+        }
     }
 
     @Test
@@ -159,6 +168,13 @@ class WebServerTest {
         // second report: p = 0.5, so lower = 0.5*0.62 - 0.5*0.48 - 0.5 = -0.43 (Manski 1990)
         assertThat(worst.get("lower").get(1).asDouble()).isCloseTo(-0.43, within(1e-12));
         assertThat(worst.get("status").get(1).asText()).isEqualTo("identified");
+        JsonNode bands = worst.get("bands");
+        assertThat(bands).extracting(b -> b.get("method").asText()).containsExactlyInAnyOrder("fixed-horizon", "anytime");
+        ConfidenceBand anytime = LATEST.get("rollout-b", "cumulative").orElseThrow().report().rows().get(0).bands().stream()
+                .filter(b -> b.method() == BandMethod.ANYTIME).findFirst().orElseThrow();
+        JsonNode anytimeColumns = bands.get(0).get("method").asText().equals("anytime") ? bands.get(0) : bands.get(1);
+        assertThat(anytimeColumns.get("lower").get(1).asDouble()).isEqualTo(anytime.lower());
+        assertThat(anytimeColumns.get("upper")).hasSize(2);
     }
 
     @Test
