@@ -13,7 +13,7 @@ import java.io.PrintWriter;
                 "Honest intervals for the average treatment effect when treatment was not randomised.",
                 "An interval is only as credible as its assumptions; results are statistical statements,",
                 "not clinical or operational advice."},
-        subcommands = {CalcCommand.class, CommandLine.HelpCommand.class})
+        subcommands = {CalcCommand.class, MonitorCommand.class, ReplayCommand.class, CommandLine.HelpCommand.class})
 public final class BracketCommand implements Runnable {
 
     @CommandLine.Spec

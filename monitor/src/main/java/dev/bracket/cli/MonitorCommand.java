@@ -1,0 +1,106 @@
+package dev.bracket.cli;
+
+import dev.bracket.broker.EmbeddedBroker;
+import dev.bracket.config.BracketConfig;
+import dev.bracket.config.InputTopic;
+import dev.bracket.report.BoundRow;
+import dev.bracket.report.LatestReports;
+import dev.bracket.report.PublishedReport;
+import dev.bracket.stream.Monitor;
+import dev.bracket.stream.StreamMetrics;
+import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+import java.io.PrintWriter;
+import java.nio.file.Path;
+import java.time.LocalTime;
+import java.time.temporal.ChronoUnit;
+import java.util.Locale;
+import java.util.concurrent.Callable;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
+import java.util.stream.Collectors;
+
+/** {@code bracket monitor}: the streaming monitor; runs until stopped (Ctrl-C or SIGTERM). */
+@Command(name = "monitor",
+        mixinStandardHelpOptions = true,
+        description = {
+                "Reads outcome events from Kafka, keeps per-partition statistics with exactly-once commits and",
+                "publishes bound documents for every study, window and assumption set to the bounds topic.",
+                "Without kafka.bootstrap.servers in the configuration it starts a single-node Kafka broker in this",
+                "process, keeping its data under broker.data-dir (default ~/.local/state/bracket/kafka)."},
+        footer = {"",
+                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
+                "operational advice; medical use follows local regulation, ethics approval and licensed judgement."})
+public final class MonitorCommand implements Callable<Integer> {
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
+    Path configFile;
+
+    @Override
+    public Integer call() throws InterruptedException {
+        BracketConfig config = ConfigFiles.load(configFile);
+        PrintWriter out = spec.commandLine().getOut();
+        EmbeddedBroker broker = null;
+        if (config.usesEmbeddedBroker()) {
+            out.println("starting a Kafka broker in this process, data in " + config.brokerDataDir());
+            out.flush();
+            broker = EmbeddedBroker.start(config.brokerDataDir(), config.brokerPort());
+            config = config.withBootstrapServers(broker.bootstrapServers());
+            out.println("Kafka broker listening at " + broker.bootstrapServers() + " (use it as bootstrap.servers)");
+        }
+        LatestReports latest = new LatestReports();
+        Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), latest);
+        out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
+                config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
+                config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),
+                config.topics().bounds(), config.instance(), config.group());
+        out.flush();
+        CountDownLatch stop = new CountDownLatch(1);
+        CountDownLatch stopped = new CountDownLatch(1);
+        EmbeddedBroker ownBroker = broker;
+        Runtime.getRuntime().addShutdownHook(new Thread(() -> {
+            stop.countDown();
+            monitor.close();
+            if (ownBroker != null) {
+                ownBroker.close();
+            }
+            stopped.countDown();
+        }, "bracket-shutdown"));
+        long every = config.progressInterval().toMillis();
+        while (!stop.await(every, TimeUnit.MILLISECONDS)) {
+            out.println(progressLine(monitor, latest));
+            out.flush();
+        }
+        stopped.await(60, TimeUnit.SECONDS);
+        out.println("stopped after a final commit");
+        out.flush();
+        return 0;
+    }
+
+    static String progressLine(Monitor monitor, LatestReports latest) {
+        StreamMetrics m = monitor.metrics();
+        StringBuilder line = new StringBuilder();
+        line.append(LocalTime.now().truncatedTo(ChronoUnit.SECONDS)).append(String.format(Locale.ROOT,
+                " events used %d, rejected %d, late %d; partitions %d; commits %d",
+                m.total("bracket.events", "result", "accepted"), m.total("bracket.events", "result", "rejected"),
+                m.total("bracket.events.late"), monitor.assignedPartitions(), m.total("bracket.commits", "result", "committed")));
+        for (String study : latest.studies()) {
+            PublishedReport r = latest.get(study, "cumulative").orElse(null);
+            if (r == null || r.report().rows().isEmpty()) {
+                continue;
+            }
+            BoundRow row = r.report().rows().get(0);
+            line.append(String.format(Locale.ROOT, " | %s n=%d %s: %s", study, r.report().pooled().total(), row.assumptions(),
+                    row.interval().isIdentified()
+                            ? String.format(Locale.ROOT, "[%.4f, %.4f]", row.interval().lower(), row.interval().upper())
+                            : row.interval().status().id()));
+        }
+        return line.toString();
+    }
+}

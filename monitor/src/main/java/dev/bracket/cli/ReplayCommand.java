@@ -1,0 +1,137 @@
+package dev.bracket.cli;
+
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.bracket.config.BracketConfig;
+import dev.bracket.config.InputTopic;
+import dev.bracket.report.ReportJson;
+import dev.bracket.report.ReportTable;
+import dev.bracket.stream.Replay;
+import dev.bracket.stream.ReportDocument;
+import dev.bracket.stream.WindowReport;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+import picocli.CommandLine.Parameters;
+
+import java.io.IOException;
+import java.io.InputStream;
+import java.io.PrintWriter;
+import java.nio.file.Files;
+import java.nio.file.NoSuchFileException;
+import java.nio.file.Path;
+import java.util.List;
+import java.util.Locale;
+import java.util.concurrent.Callable;
+
+/** {@code bracket replay}: the monitor's parsing, validation and statistics over files of events. */
+@Command(name = "replay",
+        mixinStandardHelpOptions = true,
+        description = {
+                "Computes the bounds the monitor would publish, from files of JSON events (one per line).",
+                "Each file counts as one partition read in order; '-' reads standard input.",
+                "Unusable lines are counted and listed on standard error, as the monitor sends them to its rejected topic."},
+        footer = {"",
+                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
+                "operational advice; medical use follows local regulation, ethics approval and licensed judgement.",
+                "",
+                "Example:",
+                "  bracket replay --config bracket.yaml events-monday.jsonl events-tuesday.jsonl --json"})
+public final class ReplayCommand implements Callable<Integer> {
+
+    private static final int SHOW_REJECTED = 20;
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
+    Path configFile;
+
+    @Option(names = "--topic", paramLabel = "NAME",
+            description = "Read events with the field names of this configured input topic (default: the first input).")
+    String topic;
+
+    @Option(names = "--json", description = "Print one JSON document with every study's and window's report instead of tables.")
+    boolean json;
+
+    @Parameters(arity = "1..*", paramLabel = "EVENTS", description = "Files of JSON lines; '-' for standard input.")
+    List<String> files;
+
+    @Override
+    public Integer call() throws IOException {
+        BracketConfig config = ConfigFiles.load(configFile);
+        InputTopic input = config.inputs().stream().filter(i -> topic == null || i.topic().equals(topic)).findFirst()
+                .orElseThrow(() -> new InputError("--topic '" + topic + "' is not an input topic of " + configFile
+                        + "; configured: " + String.join(", ", config.inputs().stream().map(InputTopic::topic).toList())));
+        for (String f : files) {
+            if (!f.equals("-") && !Files.isReadable(Path.of(f))) {
+                throw new InputError(f + ": no such file or not readable");
+            }
+        }
+        Replay replay = new Replay(config, input.fields(), SHOW_REJECTED, System.currentTimeMillis());
+        for (String f : files) {
+            if (f.equals("-")) {
+                replay.read("stdin", System.in);
+            } else {
+                try (InputStream in = Files.newInputStream(Path.of(f))) {
+                    replay.read(f, in);
+                } catch (NoSuchFileException e) {
+                    throw new InputError(f + ": no such file");
+                }
+            }
+        }
+        Replay.Result result = replay.finish();
+        PrintWriter out = spec.commandLine().getOut();
+        if (json) {
+            out.println(ReportJson.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(toJson(result)));
+        } else {
+            printTables(out, result);
+        }
+        out.flush();
+        printRejected(spec.commandLine().getErr(), result);
+        return 0;
+    }
+
+    private static ObjectNode toJson(Replay.Result result) {
+        ObjectNode root = ReportJson.mapper().createObjectNode();
+        root.put("schema", "bracket.replay/1");
+        root.put("accepted", result.accepted());
+        ObjectNode rejected = root.putObject("rejected");
+        rejected.put("total", result.rejectedTotal());
+        ObjectNode byReason = rejected.putObject("byReason");
+        result.rejectedByReason().forEach((r, n) -> byReason.put(r.id(), n));
+        ArrayNode reports = root.putArray("reports");
+        result.reports().forEach(r -> reports.add(ReportDocument.toJson(r, 1, null)));
+        return root;
+    }
+
+    private static void printTables(PrintWriter out, Replay.Result result) {
+        out.printf(Locale.ROOT, "%d event(s) used, %d rejected%n", result.accepted(), result.rejectedTotal());
+        for (WindowReport r : result.reports()) {
+            out.println();
+            String span = r.window().kind() == dev.bracket.config.WindowSpec.Kind.CUMULATIVE ? "all events"
+                    : java.time.Instant.ofEpochMilli(r.start()) + " to " + java.time.Instant.ofEpochMilli(r.end());
+            out.printf(Locale.ROOT, "== study %s, window %s (%s)%s%n", r.study().id(), r.window().name(), span,
+                    r.lateEvents() > 0 ? ", " + r.lateEvents() + " late event(s) left out" : "");
+            out.print(ReportTable.render(r.report()));
+        }
+        out.println();
+        out.println(ReportDocument.CAUTION);
+    }
+
+    private static void printRejected(PrintWriter err, Replay.Result result) {
+        if (result.rejectedTotal() == 0) {
+            return;
+        }
+        for (Replay.Rejected r : result.rejected()) {
+            err.printf(Locale.ROOT, "%s:%d: rejected (%s): %s%n", r.source(), r.line(), r.reason().id(), r.detail());
+        }
+        if (result.rejectedTotal() > result.rejected().size()) {
+            err.printf(Locale.ROOT, "... and %d more rejected line(s)%n", result.rejectedTotal() - result.rejected().size());
+        }
+        StringBuilder summary = new StringBuilder();
+        result.rejectedByReason().forEach((r, n) -> summary.append(summary.isEmpty() ? "" : ", ").append(r.id()).append(' ').append(n));
+        err.printf(Locale.ROOT, "rejected %d line(s): %s%n", result.rejectedTotal(), summary);
+        err.flush();
+    }
+}

@@ -1,0 +1,163 @@
+package dev.bracket.stream;
+
+import com.fasterxml.jackson.core.JsonProcessingException;
+import dev.bracket.config.BracketConfig;
+import dev.bracket.config.StudyConfig;
+import dev.bracket.config.WindowSpec;
+import dev.bracket.report.LatestReports;
+import dev.bracket.report.PublishedReport;
+import dev.bracket.report.ReportJson;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.KafkaException;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.WakeupException;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.nio.charset.StandardCharsets;
+import java.time.Clock;
+import java.time.Duration;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.LinkedHashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
+
+/**
+ * Reads the partials topic (committed records only), keeps the latest statistics of every
+ * source partition per cell, and recomputes a study's reports when its numbers changed, at most
+ * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
+ * {@link ReportDocument} keyed {@code study/window} and into {@link LatestReports} for the
+ * HTTP API. Run {@link #run} on its own thread.
+ */
+public final class BoundUpdater implements Runnable, AutoCloseable {
+
+    private static final Logger LOG = LoggerFactory.getLogger(BoundUpdater.class);
+
+    private final BracketConfig config;
+    private final KafkaClients clients;
+    private final StreamMetrics metrics;
+    private final LatestReports latest;
+    private final int partialsPartitions;
+    private final Clock clock;
+    private final MergedPartials merged = new MergedPartials();
+    private final Set<String> pending = new LinkedHashSet<>();
+    private final Map<String, Long> lastPublishNanos = new HashMap<>();
+    private final Map<String, Long> revisions = new HashMap<>();
+    private final CountDownLatch stopped = new CountDownLatch(1);
+    private final boolean windowed;
+    private volatile boolean running = true;
+    private volatile KafkaConsumer<byte[], byte[]> consumer;
+
+    public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock) {
+        this.config = clients.config();
+        this.clients = clients;
+        this.metrics = metrics;
+        this.latest = latest;
+        this.partialsPartitions = partialsPartitions;
+        this.clock = clock;
+        this.windowed = config.windows().stream().anyMatch(w -> w.kind() != WindowSpec.Kind.CUMULATIVE);
+    }
+
+    @Override
+    public void run() {
+        KafkaProducer<byte[], byte[]> producer = null;
+        try {
+            consumer = clients.committedReader();
+            producer = clients.plainProducer();
+            List<TopicPartition> tps = new ArrayList<>();
+            for (int p = 0; p < partialsPartitions; p++) {
+                tps.add(new TopicPartition(config.topics().partials(), p));
+            }
+            consumer.assign(tps);
+            consumer.seekToBeginning(tps);
+            long interval = config.publishInterval().toNanos();
+            while (running) {
+                try {
+                    for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(100))) {
+                        try {
+                            PartialsCodec.decode(r.key(), r.value(), merged);
+                        } catch (IllegalArgumentException e) {
+                            LOG.warn("skipping record {}-{}@{} of the partials topic: {}", r.topic(), r.partition(), r.offset(), e.getMessage());
+                        }
+                    }
+                } catch (WakeupException e) {
+                    break;
+                } catch (KafkaException e) {
+                    LOG.warn("reading partials failed, retrying: {}", e.toString());
+                    continue;
+                }
+                MergedPartials.Changes changes = merged.takeChanges();
+                pending.addAll(changes.studies());
+                if (windowed && changes.watermarkMoved()) {
+                    config.studies().forEach(s -> pending.add(s.id()));
+                }
+                long now = System.nanoTime();
+                for (var it = pending.iterator(); it.hasNext(); ) {
+                    String study = it.next();
+                    Long last = lastPublishNanos.get(study);
+                    if (last == null || now - last >= interval) {
+                        publish(producer, study);
+                        lastPublishNanos.put(study, now);
+                        it.remove();
+                    }
+                }
+            }
+        } finally {
+            if (consumer != null) {
+                consumer.close();
+            }
+            if (producer != null) {
+                producer.close(Duration.ofSeconds(5));
+            }
+            stopped.countDown();
+        }
+    }
+
+    private void publish(KafkaProducer<byte[], byte[]> producer, String studyId) {
+        StudyConfig study = config.study(studyId).orElse(null);
+        if (study == null) {
+            return; // partials of a study no longer configured
+        }
+        Instant now = clock.instant();
+        for (WindowSpec window : config.windows()) {
+            WindowReport report = WindowReport.current(study, window, merged);
+            String key = study.id() + "/" + window.name();
+            long revision = revisions.merge(key, 1L, Long::sum);
+            try {
+                byte[] doc = ReportJson.mapper().writeValueAsBytes(ReportDocument.toJson(report, revision, now));
+                producer.send(new ProducerRecord<>(config.topics().bounds(), key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
+                    if (e != null) {
+                        LOG.warn("publishing {} failed: {}", key, e.toString());
+                    }
+                });
+            } catch (JsonProcessingException e) {
+                throw new IllegalStateException("cannot encode the report of " + key, e);
+            }
+            latest.put(new PublishedReport(study.id(), window.name(), now, report.report()));
+        }
+        metrics.published(study.id());
+    }
+
+    /** Stops the loop and waits for it. */
+    @Override
+    public void close() {
+        running = false;
+        KafkaConsumer<byte[], byte[]> c = consumer;
+        if (c != null) {
+            c.wakeup();
+        }
+        try {
+            stopped.await(30, TimeUnit.SECONDS);
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+    }
+}

@@ -1,0 +1,218 @@
+package dev.bracket.stream;
+
+import com.fasterxml.jackson.core.JsonFactory;
+import com.fasterxml.jackson.core.JsonParser;
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.core.JsonToken;
+import dev.bracket.config.FieldMapping;
+import dev.bracket.config.StudyConfig;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
+
+import java.io.IOException;
+import java.time.Instant;
+import java.time.OffsetDateTime;
+import java.time.format.DateTimeParseException;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+
+/**
+ * Reads one JSON event with Jackson's streaming parser (no tree, no data binding) and checks it:
+ * the fields named by the {@link FieldMapping} must be present with the right types, the study
+ * must be configured and the outcome must lie in that study's declared range. Fields the
+ * mapping does not name are skipped. Never throws on bad input: the returned event carries a
+ * {@link RejectReason} and a one-line detail instead.
+ *
+ * <p>Accepted forms: {@code treated} true/false or 1/0; {@code outcome} any JSON number;
+ * {@code time} epoch milliseconds or an ISO-8601 instant with offset (absent: the record
+ * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
+ * {@code unit} and {@code id} strings or numbers. One parser per thread.
+ */
+public final class EventParser {
+
+    private static final JsonFactory JSON = JsonFactory.builder().build();
+
+    private final FieldMapping fields;
+    private final Map<String, StudyConfig> studies = new HashMap<>();
+    private final int maxBytes;
+    private final ParsedEvent event = new ParsedEvent();
+
+    public EventParser(List<StudyConfig> studies, FieldMapping fields, int maxBytes) {
+        this.fields = fields;
+        this.maxBytes = maxBytes;
+        studies.forEach(s -> this.studies.put(s.id(), s));
+    }
+
+    /**
+     * Parses {@code bytes}. The result is this parser's reused holder: read it before the next call.
+     *
+     * @param recordTime the time to use when the event has no time field (epoch millis)
+     */
+    public ParsedEvent parse(byte[] bytes, long recordTime) {
+        ParsedEvent e = event;
+        e.reset();
+        if (bytes == null || bytes.length == 0) {
+            return e.reject(RejectReason.BAD_JSON, "empty record (no bytes)");
+        }
+        if (bytes.length > maxBytes) {
+            return e.reject(RejectReason.TOO_LARGE, bytes.length + " bytes exceed the limit of " + maxBytes + " (max-event-bytes)");
+        }
+        try (JsonParser p = JSON.createParser(bytes)) {
+            return read(p, e, recordTime);
+        } catch (JsonProcessingException ex) {
+            return e.reject(RejectReason.BAD_JSON, "not valid JSON: " + firstLine(ex.getOriginalMessage()));
+        } catch (IOException | RuntimeException ex) {
+            return e.reject(RejectReason.BAD_JSON, "not readable as JSON: " + firstLine(String.valueOf(ex.getMessage())));
+        }
+    }
+
+    private ParsedEvent read(JsonParser p, ParsedEvent e, long recordTime) throws IOException {
+        if (p.nextToken() != JsonToken.START_OBJECT) {
+            return e.reject(RejectReason.BAD_JSON, "an event must be a JSON object");
+        }
+        String studyId = null;
+        boolean hasUnit = false;
+        boolean hasTreated = false;
+        boolean hasOutcome = false;
+        String name;
+        while ((name = p.nextFieldName()) != null) {
+            JsonToken t = p.nextToken();
+            if (t == JsonToken.VALUE_NULL) {
+                continue;
+            }
+            // Field names from the parser are canonicalised; equals() settles on the identity check.
+            if (name.equals(fields.study())) {
+                if (t != JsonToken.VALUE_STRING) {
+                    return wrongType(e, fields.study(), "a string", t);
+                }
+                studyId = p.getText();
+            } else if (name.equals(fields.unit())) {
+                if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
+                    return wrongType(e, fields.unit(), "a string or whole number", t);
+                }
+                hasUnit = true;
+            } else if (name.equals(fields.treated())) {
+                if (t == JsonToken.VALUE_TRUE || t == JsonToken.VALUE_FALSE) {
+                    e.treated = t == JsonToken.VALUE_TRUE;
+                } else if (t == JsonToken.VALUE_NUMBER_INT && (p.getLongValue() == 0 || p.getLongValue() == 1)) {
+                    e.treated = p.getLongValue() == 1;
+                } else {
+                    return wrongType(e, fields.treated(), "true/false or 1/0", t);
+                }
+                hasTreated = true;
+            } else if (name.equals(fields.outcome())) {
+                if (t != JsonToken.VALUE_NUMBER_INT && t != JsonToken.VALUE_NUMBER_FLOAT) {
+                    return wrongType(e, fields.outcome(), "a number", t);
+                }
+                e.outcome = p.getDoubleValue();
+                hasOutcome = true;
+            } else if (name.equals(fields.time())) {
+                if (t == JsonToken.VALUE_NUMBER_INT) {
+                    e.time = p.getLongValue();
+                } else if (t == JsonToken.VALUE_STRING) {
+                    String text = p.getText();
+                    long parsed = isoMillis(text);
+                    if (parsed == Long.MIN_VALUE) {
+                        return e.reject(RejectReason.WRONG_TYPE, "field '" + fields.time()
+                                + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z, was '" + clip(text) + "'");
+                    }
+                    e.time = parsed;
+                } else {
+                    return wrongType(e, fields.time(), "epoch milliseconds or an ISO-8601 string", t);
+                }
+            } else if (name.equals(fields.stratum())) {
+                if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
+                    return wrongType(e, fields.stratum(), "a string or whole number", t);
+                }
+                e.stratum = p.getText();
+            } else if (name.equals(fields.instrument())) {
+                if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
+                    return wrongType(e, fields.instrument(), "a string or whole number", t);
+                }
+                e.instrument = p.getText();
+            } else if (name.equals(fields.id())) {
+                if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
+                    return wrongType(e, fields.id(), "a string or whole number", t);
+                }
+            } else {
+                p.skipChildren();
+            }
+        }
+        if (p.nextToken() != null) {
+            return e.reject(RejectReason.BAD_JSON, "unexpected content after the event's closing brace");
+        }
+        if (studyId == null) {
+            return missing(e, fields.study());
+        }
+        if (!hasUnit) {
+            return missing(e, fields.unit());
+        }
+        if (!hasTreated) {
+            return missing(e, fields.treated());
+        }
+        if (!hasOutcome) {
+            return missing(e, fields.outcome());
+        }
+        StudyConfig study = studies.get(studyId);
+        if (study == null) {
+            return e.reject(RejectReason.UNKNOWN_STUDY, "study '" + clip(studyId) + "' is not configured");
+        }
+        e.study = study;
+        OutcomeRange range = study.range();
+        if (!range.contains(e.outcome)) {
+            return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "
+                    + range.max() + "] declared for study '" + study.id() + "'");
+        }
+        if (e.time == Long.MIN_VALUE) {
+            e.time = recordTime;
+        }
+        if (e.stratum == null) {
+            e.stratum = StudyCells.NONE;
+        }
+        if (e.instrument == null) {
+            e.instrument = StudyCells.NONE;
+        }
+        return e;
+    }
+
+    private static long isoMillis(String text) {
+        try {
+            return Instant.parse(text).toEpochMilli();
+        } catch (DateTimeParseException e) {
+            try {
+                return OffsetDateTime.parse(text).toInstant().toEpochMilli();
+            } catch (DateTimeParseException e2) {
+                return Long.MIN_VALUE;
+            }
+        }
+    }
+
+    private static ParsedEvent missing(ParsedEvent e, String field) {
+        return e.reject(RejectReason.MISSING_FIELD, "field '" + field + "' is missing (or null)");
+    }
+
+    private static ParsedEvent wrongType(ParsedEvent e, String field, String expected, JsonToken t) {
+        return e.reject(RejectReason.WRONG_TYPE, "field '" + field + "' must be " + expected + ", was " + describe(t));
+    }
+
+    private static String describe(JsonToken t) {
+        return switch (t) {
+            case VALUE_STRING -> "a string";
+            case VALUE_NUMBER_INT -> "a whole number";
+            case VALUE_NUMBER_FLOAT -> "a decimal number";
+            case VALUE_TRUE, VALUE_FALSE -> "a boolean";
+            case START_OBJECT -> "an object";
+            case START_ARRAY -> "an array";
+            default -> t.toString();
+        };
+    }
+
+    private static String clip(String s) {
+        return s.length() <= 80 ? s : s.substring(0, 77) + "...";
+    }
+
+    private static String firstLine(String s) {
+        return s == null ? "" : clip(s.lines().findFirst().orElse(""));
+    }
+}

@@ -1,0 +1,77 @@
+package dev.bracket.stream;
+
+import dev.bracket.config.StudyConfig;
+
+/**
+ * The usable part of one event, or why it is unusable. Mutable and reused by the parser across
+ * records so that the hot path allocates little; copy what must outlive the next parse.
+ */
+public final class ParsedEvent {
+
+    StudyConfig study;
+    boolean treated;
+    double outcome;
+    long time;
+    String stratum;
+    String instrument;
+    RejectReason rejection;
+    String detail;
+
+    public StudyConfig study() {
+        return study;
+    }
+
+    public boolean treated() {
+        return treated;
+    }
+
+    public double outcome() {
+        return outcome;
+    }
+
+    /** Event time in epoch milliseconds (the record timestamp when the event has none). */
+    public long time() {
+        return time;
+    }
+
+    /** The stratum, or {@code ""} when the event names none. */
+    public String stratum() {
+        return stratum;
+    }
+
+    /** The instrument level, or {@code ""} when the event names none. */
+    public String instrument() {
+        return instrument;
+    }
+
+    /** Null for a usable event. */
+    public RejectReason rejection() {
+        return rejection;
+    }
+
+    /** What exactly was wrong, in one line; null for a usable event. */
+    public String detail() {
+        return detail;
+    }
+
+    public boolean isUsable() {
+        return rejection == null;
+    }
+
+    void reset() {
+        study = null;
+        treated = false;
+        outcome = Double.NaN;
+        time = Long.MIN_VALUE;
+        stratum = null;
+        instrument = null;
+        rejection = null;
+        detail = null;
+    }
+
+    ParsedEvent reject(RejectReason reason, String why) {
+        rejection = reason;
+        detail = why;
+        return this;
+    }
+}

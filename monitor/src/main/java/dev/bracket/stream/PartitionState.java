@@ -1,0 +1,145 @@
+package dev.bracket.stream;
+
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.config.StudyConfig;
+import dev.bracket.config.WindowSpec;
+
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.Iterator;
+import java.util.List;
+import java.util.Map;
+import java.util.function.BiConsumer;
+
+/**
+ * The cells of one source partition: cumulative statistics per (study, stratum, instrument
+ * level, window, pane), the partition's stream time (largest event time seen) and its late
+ * counts. One writer, no locking.
+ *
+ * <p>An event is late for a windowed (tumbling or sliding) window when every window containing
+ * it has closed: {@code paneStart + size + grace <= streamTime}. It then still counts in the
+ * cumulative window and in windows that are open, and is counted as late for the closed one.
+ * Closed panes can no longer change; {@link #evictClosed} drops them.
+ */
+public final class PartitionState {
+
+    private final SourcePartition source;
+    private final List<WindowSpec> windows;
+    private final long graceMillis;
+    private final BiConsumer<StudyConfig, WindowSpec> onLate;
+    private final Map<CellKey, CellAccumulator> cells = new HashMap<>();
+    private final Map<LateKey, Long> late = new HashMap<>();
+    private long streamTime = Long.MIN_VALUE;
+    private boolean progressDirty;
+
+    /**
+     * @param onLate told of each late (event, window) pair, e.g. to count it in a metric
+     */
+    public PartitionState(SourcePartition source, List<WindowSpec> windows, long graceMillis,
+                          BiConsumer<StudyConfig, WindowSpec> onLate) {
+        this.source = source;
+        this.windows = List.copyOf(windows);
+        this.graceMillis = graceMillis;
+        this.onLate = onLate;
+    }
+
+    public SourcePartition source() {
+        return source;
+    }
+
+    /** Folds a usable event into its cells, one per window. */
+    public void add(ParsedEvent e) {
+        long t = e.time();
+        if (t > streamTime) {
+            streamTime = t;
+            progressDirty = true;
+        }
+        String study = e.study().id();
+        for (WindowSpec w : windows) {
+            long pane = w.paneStart(t);
+            if (w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w, pane)) {
+                late.merge(new LateKey(study, w.name()), 1L, Long::sum);
+                progressDirty = true;
+                onLate.accept(e.study(), w);
+                continue;
+            }
+            CellKey key = new CellKey(study, e.stratum(), e.instrument(), w.name(), pane);
+            CellAccumulator cell = cells.get(key);
+            if (cell == null) {
+                cell = new CellAccumulator();
+                cells.put(key, cell);
+            }
+            cell.add(e.treated(), e.outcome());
+        }
+    }
+
+    private boolean isClosed(WindowSpec w, long paneStart) {
+        // Saturating: paneStart + size + grace may exceed Long.MAX_VALUE for far-future times.
+        long closesAt = paneStart + w.size().toMillis();
+        closesAt = closesAt > Long.MAX_VALUE - graceMillis ? Long.MAX_VALUE : closesAt + graceMillis;
+        return closesAt <= streamTime;
+    }
+
+    /**
+     * Removes cells whose panes have closed and returns their keys (for tombstones in the
+     * partials topic). Closed panes lie before every window a report can still be asked for.
+     */
+    public List<CellKey> evictClosed() {
+        List<CellKey> closed = new ArrayList<>();
+        Map<String, WindowSpec> byName = new HashMap<>();
+        windows.forEach(w -> byName.put(w.name(), w));
+        for (Iterator<Map.Entry<CellKey, CellAccumulator>> it = cells.entrySet().iterator(); it.hasNext(); ) {
+            CellKey key = it.next().getKey();
+            WindowSpec w = byName.get(key.window());
+            if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w, key.paneStart())) {
+                closed.add(key);
+                it.remove();
+            }
+        }
+        return closed;
+    }
+
+    /** Calls {@code sink} with every cell changed since {@link #markClean}. */
+    public void forEachDirty(BiConsumer<CellKey, ObservedArms> sink) {
+        cells.forEach((k, c) -> {
+            if (c.isDirty()) {
+                sink.accept(k, c.snapshot());
+            }
+        });
+    }
+
+    public boolean progressChanged() {
+        return progressDirty;
+    }
+
+    /** Marks everything as written. */
+    public void markClean() {
+        cells.values().forEach(CellAccumulator::markClean);
+        progressDirty = false;
+    }
+
+    /** Every cell's current statistics. */
+    public Map<CellKey, ObservedArms> cells() {
+        Map<CellKey, ObservedArms> out = new HashMap<>();
+        cells.forEach((k, c) -> out.put(k, c.snapshot()));
+        return out;
+    }
+
+    public SourceProgress progress() {
+        return new SourceProgress(streamTime, late);
+    }
+
+    /** Puts back a cell read from the partials topic (not marked as changed). */
+    public void restoreCell(CellKey key, ObservedArms arms) {
+        CellAccumulator cell = new CellAccumulator();
+        cell.set(arms);
+        cells.put(key, cell);
+    }
+
+    /** Puts back the stream time and late counts read from the partials topic. */
+    public void restoreProgress(SourceProgress progress) {
+        streamTime = progress.streamTime();
+        late.clear();
+        late.putAll(progress.late());
+    }
+}

@@ -1,0 +1,383 @@
+package dev.bracket.stream;
+
+import dev.bracket.config.BracketConfig;
+import dev.bracket.config.InputTopic;
+import io.micrometer.core.instrument.Counter;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.ConsumerRecords;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.consumer.OffsetAndMetadata;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.KafkaException;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.errors.InterruptException;
+import org.apache.kafka.common.errors.WakeupException;
+import org.apache.kafka.common.header.Headers;
+import org.apache.kafka.common.header.internals.RecordHeaders;
+import org.slf4j.Logger;
+import org.slf4j.LoggerFactory;
+
+import java.nio.charset.StandardCharsets;
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.Collection;
+import java.util.HashMap;
+import java.util.HashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.concurrent.CountDownLatch;
+
+/**
+ * One member of the aggregation consumer group: reads events, keeps each assigned partition's
+ * cells in memory ({@link PartitionState}) and every commit interval writes the changed cells'
+ * cumulative statistics to the partials topic and commits the input offsets in the same Kafka
+ * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
+ * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
+ * transactions.
+ *
+ * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
+ * or not at all. On assignment a partition's cells are rebuilt from the committed partials and
+ * reading starts at the committed offset, which describe the same point of the stream. After any
+ * error the open transaction is aborted and every assigned partition is rebuilt the same way.
+ *
+ * <p>Run {@link #run} on a thread of its own; {@link #close} stops it from any thread.
+ */
+public final class StreamAggregator implements Runnable, AutoCloseable {
+
+    private static final Logger LOG = LoggerFactory.getLogger(StreamAggregator.class);
+
+    /** Header names on rejected records. */
+    public static final String REASON_HEADER = "bracket.reason";
+    public static final String DETAIL_HEADER = "bracket.detail";
+    public static final String SOURCE_TOPIC_HEADER = "bracket.source.topic";
+    public static final String SOURCE_PARTITION_HEADER = "bracket.source.partition";
+    public static final String SOURCE_OFFSET_HEADER = "bracket.source.offset";
+
+    private final BracketConfig config;
+    private final KafkaClients clients;
+    private final StreamMetrics metrics;
+    private final int partialsPartitions;
+    private final Map<String, EventParser> parsers = new HashMap<>();
+    private final Map<TopicPartition, PartitionState> states = new HashMap<>();
+    private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
+    private final CountDownLatch stopped = new CountDownLatch(1);
+    private volatile boolean running = true;
+    private volatile KafkaConsumer<byte[], byte[]> consumer;
+    private KafkaProducer<byte[], byte[]> producer;
+    private PartialsRestorer restorer;
+    private boolean inTransaction;
+    private boolean needsReset;
+    private long lastCommitNanos;
+
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions) {
+        this.config = clients.config();
+        this.clients = clients;
+        this.metrics = metrics;
+        this.partialsPartitions = partialsPartitions;
+        for (InputTopic in : config.inputs()) {
+            parsers.put(in.topic(), new EventParser(config.studies(), in.fields(), config.maxEventBytes()));
+        }
+    }
+
+    @Override
+    public void run() {
+        try {
+            consumer = clients.groupConsumer();
+            restorer = new PartialsRestorer(clients, partialsPartitions);
+            producer = newProducer();
+            if (!running) {
+                return;
+            }
+            consumer.subscribe(config.inputs().stream().map(InputTopic::topic).toList(), new Rebalance());
+            lastCommitNanos = System.nanoTime();
+            long commitNanos = config.commitInterval().toNanos();
+            while (running) {
+                try {
+                    if (needsReset) {
+                        resetToCommitted(consumer.assignment());
+                    }
+                    ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
+                    if (needsReset) {
+                        continue; // a callback failed: the batch may predate the reset
+                    }
+                    process(records);
+                    if (System.nanoTime() - lastCommitNanos >= commitNanos) {
+                        commit();
+                    }
+                } catch (WakeupException e) {
+                    // close() was called; the loop condition ends it.
+                } catch (KafkaException | IllegalStateException e) {
+                    if (running) {
+                        recover(e);
+                        pause();
+                    }
+                }
+            }
+            if (!needsReset) {
+                commit();
+            }
+        } finally {
+            closeClients();
+            stopped.countDown();
+        }
+    }
+
+    private void process(ConsumerRecords<byte[], byte[]> records) {
+        for (TopicPartition tp : records.partitions()) {
+            PartitionState state = states.get(tp);
+            if (state == null) {
+                continue; // not ours any more
+            }
+            EventParser parser = parsers.get(tp.topic());
+            Counter accepted = metrics.accepted(tp.topic());
+            long next = -1;
+            for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
+                ParsedEvent e = parser.parse(r.value(), r.timestamp());
+                if (e.isUsable()) {
+                    state.add(e);
+                    accepted.increment();
+                } else {
+                    reject(r, e);
+                }
+                next = r.offset() + 1;
+            }
+            if (next >= 0) {
+                pendingOffsets.put(tp, next);
+            }
+        }
+    }
+
+    private void reject(ConsumerRecord<byte[], byte[]> r, ParsedEvent e) {
+        beginIfNeeded();
+        Headers headers = new RecordHeaders(r.headers().toArray());
+        headers.add(REASON_HEADER, utf8(e.rejection().id()));
+        headers.add(DETAIL_HEADER, utf8(e.detail()));
+        headers.add(SOURCE_TOPIC_HEADER, utf8(r.topic()));
+        headers.add(SOURCE_PARTITION_HEADER, utf8(Integer.toString(r.partition())));
+        headers.add(SOURCE_OFFSET_HEADER, utf8(Long.toString(r.offset())));
+        producer.send(new ProducerRecord<>(config.topics().rejected(), null, r.timestamp(), r.key(), r.value(), headers));
+        metrics.rejected(r.topic(), e.rejection());
+    }
+
+    /** Writes changed partials and commits them with the input offsets in one transaction. */
+    private void commit() {
+        lastCommitNanos = System.nanoTime();
+        boolean dirty = inTransaction || !pendingOffsets.isEmpty();
+        for (PartitionState s : states.values()) {
+            dirty |= s.progressChanged();
+        }
+        if (!dirty) {
+            return;
+        }
+        long start = System.nanoTime();
+        try {
+            beginIfNeeded();
+            String partials = config.topics().partials();
+            for (PartitionState s : states.values()) {
+                SourcePartition src = s.source();
+                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
+                for (CellKey closed : s.evictClosed()) {
+                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.cellKey(src, closed), null));
+                }
+                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,
+                        PartialsCodec.cellKey(src, key), PartialsCodec.cellValue(arms))));
+                if (s.progressChanged()) {
+                    producer.send(new ProducerRecord<>(partials, partition,
+                            PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
+                }
+            }
+            if (!pendingOffsets.isEmpty()) {
+                Map<TopicPartition, OffsetAndMetadata> offsets = new HashMap<>();
+                pendingOffsets.forEach((tp, next) -> offsets.put(tp, new OffsetAndMetadata(next)));
+                producer.sendOffsetsToTransaction(offsets, consumer.groupMetadata());
+            }
+            producer.commitTransaction();
+            inTransaction = false;
+            states.values().forEach(PartitionState::markClean);
+            pendingOffsets.clear();
+            metrics.committed();
+            metrics.commitTimer().record(Duration.ofNanos(System.nanoTime() - start));
+        } catch (KafkaException | IllegalStateException e) {
+            if (e instanceof InterruptException) {
+                throw e;
+            }
+            recover(e);
+        }
+    }
+
+    private void beginIfNeeded() {
+        if (!inTransaction) {
+            producer.beginTransaction();
+            inTransaction = true;
+        }
+    }
+
+    /**
+     * Aborts the open transaction (or replaces a producer that can no longer abort, e.g. fenced)
+     * and schedules a rebuild of every assigned partition from committed state.
+     */
+    private void recover(RuntimeException cause) {
+        LOG.warn("aggregation error, aborting and restarting from the last commit: {}", cause.toString());
+        metrics.aborted();
+        if (inTransaction) {
+            try {
+                producer.abortTransaction();
+            } catch (KafkaException e) {
+                LOG.warn("abort failed ({}); replacing the producer", e.toString());
+                replaceProducer();
+            }
+            inTransaction = false;
+        } else if (!(cause instanceof IllegalStateException) && isFatalForProducer(cause)) {
+            replaceProducer();
+        }
+        needsReset = true;
+    }
+
+    private static boolean isFatalForProducer(RuntimeException e) {
+        return e instanceof org.apache.kafka.common.errors.ProducerFencedException
+                || e instanceof org.apache.kafka.common.errors.InvalidProducerEpochException
+                || e instanceof org.apache.kafka.common.errors.OutOfOrderSequenceException;
+    }
+
+    private void replaceProducer() {
+        try {
+            producer.close(Duration.ZERO);
+        } catch (KafkaException e) {
+            LOG.debug("closing the old producer failed", e);
+        }
+        producer = newProducer();
+    }
+
+    private KafkaProducer<byte[], byte[]> newProducer() {
+        KafkaProducer<byte[], byte[]> p = clients.transactionalProducer();
+        p.initTransactions();
+        return p;
+    }
+
+    /** Drops the given partitions' state and rebuilds it from the partials topic and the committed offsets. */
+    private void resetToCommitted(Collection<TopicPartition> partitions) {
+        for (TopicPartition tp : partitions) {
+            states.remove(tp);
+            pendingOffsets.remove(tp);
+        }
+        if (!partitions.isEmpty()) {
+            restore(partitions);
+        }
+        needsReset = false;
+    }
+
+    private void restore(Collection<TopicPartition> partitions) {
+        Set<TopicPartition> set = new HashSet<>(partitions);
+        // First the committed offsets: with read_committed this waits until no transaction that
+        // commits offsets for these partitions is pending, so the partials read next are final.
+        Map<TopicPartition, OffsetAndMetadata> committed = consumer.committed(set);
+        List<SourcePartition> sources = new ArrayList<>();
+        set.forEach(tp -> sources.add(new SourcePartition(tp.topic(), tp.partition())));
+        Map<SourcePartition, PartialsRestorer.Restored> restored = restorer.restore(sources);
+        for (TopicPartition tp : set) {
+            SourcePartition src = new SourcePartition(tp.topic(), tp.partition());
+            PartitionState state = new PartitionState(src, config.windows(), config.grace().toMillis(),
+                    (study, window) -> metrics.late(study.id(), window.name()));
+            PartialsRestorer.Restored r = restored.get(src);
+            r.cells().forEach(state::restoreCell);
+            state.restoreProgress(r.progress());
+            states.put(tp, state);
+            OffsetAndMetadata at = committed.get(tp);
+            if (at != null) {
+                consumer.seek(tp, at);
+            } else {
+                consumer.seekToBeginning(List.of(tp));
+            }
+        }
+        metrics.restored(set.size());
+        metrics.assignedPartitions(states.size());
+        LOG.info("restored {} partition(s) {} from '{}'", set.size(), set, config.topics().partials());
+    }
+
+    private final class Rebalance implements ConsumerRebalanceListener {
+        @Override
+        public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+            if (!needsReset) {
+                commit(); // hands over exactly what was processed
+            }
+            partitions.forEach(tp -> {
+                states.remove(tp);
+                pendingOffsets.remove(tp);
+            });
+            metrics.assignedPartitions(states.size());
+        }
+
+        @Override
+        public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            if (!partitions.isEmpty() && !needsReset) {
+                restore(partitions);
+            }
+        }
+
+        @Override
+        public void onPartitionsLost(Collection<TopicPartition> partitions) {
+            // Another member may already own them: write nothing for them, and rebuild the rest.
+            if (inTransaction) {
+                try {
+                    producer.abortTransaction();
+                } catch (KafkaException e) {
+                    replaceProducer();
+                }
+                inTransaction = false;
+            }
+            partitions.forEach(tp -> {
+                states.remove(tp);
+                pendingOffsets.remove(tp);
+            });
+            needsReset = true;
+            metrics.assignedPartitions(states.size());
+        }
+    }
+
+    private void pause() {
+        try {
+            Thread.sleep(500); // back off before retrying against a broker that just failed us
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+            running = false;
+        }
+    }
+
+    private void closeClients() {
+        for (AutoCloseable c : new AutoCloseable[] {consumer, restorer, producer}) {
+            if (c != null) {
+                try {
+                    c.close();
+                } catch (Exception e) {
+                    LOG.debug("close failed", e);
+                }
+            }
+        }
+    }
+
+    /** Stops the loop after a final commit and waits for it (at most {@code timeout}). */
+    public void close(Duration timeout) {
+        running = false;
+        KafkaConsumer<byte[], byte[]> c = consumer;
+        if (c != null) {
+            c.wakeup();
+        }
+        try {
+            stopped.await(timeout.toMillis(), java.util.concurrent.TimeUnit.MILLISECONDS);
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+    }
+
+    @Override
+    public void close() {
+        close(Duration.ofSeconds(30));
+    }
+
+    private static byte[] utf8(String s) {
+        return s.getBytes(StandardCharsets.UTF_8);
+    }
+}

@@ -1,0 +1,52 @@
+package dev.bracket.stream;
+
+import dev.bracket.broker.EmbeddedBroker;
+import org.apache.kafka.clients.consumer.ConsumerConfig;
+import org.apache.kafka.clients.consumer.ConsumerRecord;
+import org.apache.kafka.clients.consumer.KafkaConsumer;
+import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.common.TopicPartition;
+import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
+
+import java.time.Duration;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Map;
+
+/** Clients for tests against a broker started by the test class. */
+final class KafkaTestSupport {
+
+    private KafkaTestSupport() {
+    }
+
+    static KafkaProducer<byte[], byte[]> producer(EmbeddedBroker broker) {
+        return new KafkaProducer<>(Map.of(
+                ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
+                ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true,
+                ProducerConfig.ACKS_CONFIG, "all",
+                ProducerConfig.LINGER_MS_CONFIG, 10),
+                new ByteArraySerializer(), new ByteArraySerializer());
+    }
+
+    /** Every record of a topic now visible to a read_committed reader. */
+    static List<ConsumerRecord<byte[], byte[]>> readAll(EmbeddedBroker broker, String topic) {
+        try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of(
+                ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
+                ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed",
+                ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false),
+                new ByteArrayDeserializer(), new ByteArrayDeserializer())) {
+            List<TopicPartition> tps = c.partitionsFor(topic).stream().map(p -> new TopicPartition(topic, p.partition())).toList();
+            c.assign(tps);
+            c.seekToBeginning(tps);
+            Map<TopicPartition, Long> end = c.endOffsets(tps);
+            List<ConsumerRecord<byte[], byte[]>> out = new ArrayList<>();
+            long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
+            while (tps.stream().anyMatch(tp -> c.position(tp) < end.get(tp)) && System.nanoTime() < deadline) {
+                c.poll(Duration.ofMillis(200)).forEach(out::add);
+            }
+            return out;
+        }
+    }
+}
