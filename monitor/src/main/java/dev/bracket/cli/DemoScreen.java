@@ -72,9 +72,10 @@ final class DemoScreen {
         out.append('\n');
         List<BoundRow> rows = published.report().rows();
         int width = Math.max("assumptions".length(), rows.stream().mapToInt(r -> r.assumptions().toString().length()).max().orElse(0));
-        String format = "%-" + width + "s  %9s  %9s  %8s  %-27s  %-19s  %s%n";
         String bandHeader = rows.stream().flatMap(r -> anytimeBand(r).stream()).findFirst()
                 .map(b -> String.format(Locale.ROOT, "%.0f%% anytime band", 100 * b.level())).orElse("");
+        // the band column is left out while the reports carry no bands
+        String format = "%-" + width + "s  %9s  %9s  %8s  %-27s  " + (bandHeader.isEmpty() ? "%s" : "%-19s  ") + "%s%n";
         out.append(String.format(Locale.ROOT, format, "assumptions", "lower", "upper", "width", "sign of the interval",
                 bandHeader, "true ATE inside?"));
         for (BoundRow row : rows) {

@@ -55,6 +55,18 @@ class DemoScreenTest {
     }
 
     @Test
+    @DisplayName("without bands in the reports there is no band column")
+    void noBandColumnWithoutBands() {
+        StudyCells cells = StudyCells.single(new ObservedArms(
+                ArmStatistics.ofSummary(400, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
+        StudyReport report = StudyReport.of(cells, new OutcomeRange(0, 1), List.of(AssumptionSet.parse("worst-case")));
+        String screen = DemoScreen.render(state(Optional.of(new PublishedReport("host-rollout", "cumulative",
+                Instant.parse("2026-01-01T10:00:00Z"), report))));
+        assertThat(screen).doesNotContain("band");
+        assertThat(line(screen, "worst-case ")).matches("worst-case +-0\\.4400 +\\+0\\.5600 +1\\.0000 +not identified \\(contains 0\\) +yes");
+    }
+
+    @Test
     @DisplayName("before the first report the screen says it is waiting, with the cautions")
     void waitingScreen() {
         String screen = DemoScreen.render(state(Optional.empty()));
