@@ -94,29 +94,32 @@ public final class DemoCommand implements Callable<Integer> {
         LatestReports latest = new LatestReports();
         PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
         // First the port, so a busy one fails before anything else starts.
-        WebServer web = HttpServing.start(latest, registry, "127.0.0.1", port, "--port");
-        Path dataDir = Files.createTempDirectory("bracket-demo-");
-        AtomicBoolean stop = new AtomicBoolean();
-        CountDownLatch finished = new CountDownLatch(1);
-        Thread hook = new Thread(() -> {
-            stop.set(true);
-            awaitQuietly(finished, 60);
-        }, "bracket-demo-stop");
-        Runtime.getRuntime().addShutdownHook(hook);
-        try {
-            out.println("Starting a Kafka broker in this process (a few seconds)...");
-            out.flush();
-            try (web; EmbeddedBroker broker = EmbeddedBroker.start(dataDir, 0)) {
-                run(scenario, broker, web, latest, stop, out);
-            }
-            return 0;
-        } finally {
-            deleteTree(dataDir);
-            finished.countDown();
+        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", port, "--port")) {
+            Path dataDir = Files.createTempDirectory("bracket-demo-");
+            AtomicBoolean stop = new AtomicBoolean();
+            CountDownLatch finished = new CountDownLatch(1);
+            Thread hook = new Thread(() -> {
+                stop.set(true);
+                awaitQuietly(finished, 60);
+            }, "bracket-demo-stop");
+            Runtime.getRuntime().addShutdownHook(hook);
             try {
-                Runtime.getRuntime().removeShutdownHook(hook);
-            } catch (IllegalStateException shuttingDown) {
-                // Ctrl-C: the hook is running and returns now that we are done
+                out.println("Starting a Kafka broker in this process (a few seconds)...");
+                out.flush();
+                try (EmbeddedBroker broker = EmbeddedBroker.start(dataDir, 0)) {
+                    run(scenario, broker, web, latest, stop, out);
+                }
+                out.println("Stopped; the demo's broker data are removed.");
+                out.flush();
+                return 0;
+            } finally {
+                deleteTree(dataDir);
+                finished.countDown();
+                try {
+                    Runtime.getRuntime().removeShutdownHook(hook);
+                } catch (IllegalStateException shuttingDown) {
+                    // Ctrl-C: the hook is running and returns now that we are done
+                }
             }
         }
     }
