@@ -42,13 +42,13 @@ import java.util.stream.Stream;
 @Command(name = "demo",
         mixinStandardHelpOptions = true,
         description = {
-                "Runs the whole system in this process on invented data: a Kafka broker, a simulated rollout",
-                "(on-call engineers turn a new setting on for hosts they choose), the monitor and the web page.",
-                "The terminal shows every assumption set's interval beside the true effect, which only a",
-                "simulation knows. Stops at the end of --duration or on Ctrl-C; nothing is kept afterwards."},
+                "Runs everything in one process on invented data: a Kafka broker, a simulated rollout, the monitor and the web page.",
+                "On-call engineers turn a new setting on for hosts they choose, so comparing hosts with and without it is biased. "
+                        + "The terminal shows every assumption set's interval beside the true effect, which only a simulation knows.",
+                "Stops at the end of --duration or on Ctrl-C; nothing is kept afterwards."},
         footer = {"",
-                "The scenario and its numbers are invented for demonstration. An interval is only as credible as its",
-                "assumptions; results are statistical statements, not clinical or operational advice."})
+                "The scenario and its numbers are invented for demonstration. An interval is only as credible as its assumptions; "
+                        + "results are statistical statements, not clinical or operational advice."})
 public final class DemoCommand implements Callable<Integer> {
 
     static final String STUDY = DemoProducerCommand.DEFAULT_STUDY;
@@ -66,10 +66,10 @@ public final class DemoCommand implements Callable<Integer> {
             description = "Simulated events per second (default: ${DEFAULT-VALUE}).")
     double rate;
 
-    @Option(names = "--seed", defaultValue = "1", description = "Fixes the simulated hosts and outcomes (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--seed", paramLabel = "N", defaultValue = "1", description = "Fixes the simulated hosts and outcomes (default: ${DEFAULT-VALUE}).")
     long seed;
 
-    @Option(names = "--port", defaultValue = "8080",
+    @Option(names = "--port", paramLabel = "PORT", defaultValue = "8080",
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
     int port;
 

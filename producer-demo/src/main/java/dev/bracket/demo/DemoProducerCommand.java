@@ -22,10 +22,9 @@ import java.util.concurrent.atomic.AtomicBoolean;
 @Command(name = "demo-producer",
         mixinStandardHelpOptions = true,
         description = {
-                "Sends outcome events of an invented rollout to Kafka: on-call engineers turn a new setting on for",
-                "hosts they choose, so the naive comparison of treated and untreated hosts is biased. The simulation",
-                "knows both potential outcomes of every host-interval and prints the true effect at the start.",
-                "With --from-file it sends the lines of a JSON-lines file instead."},
+                "Sends outcome events of an invented rollout to Kafka, or the lines of a JSON-lines file.",
+                "On-call engineers turn a new setting on for hosts they choose, so comparing hosts with and without it is biased. "
+                        + "The simulation knows both potential outcomes of every host-interval and prints the true effect at the start."},
         footer = {"", "The scenario and its numbers are invented for demonstration."})
 public final class DemoProducerCommand implements Callable<Integer> {
 
@@ -40,10 +39,10 @@ public final class DemoProducerCommand implements Callable<Integer> {
             description = "Kafka brokers to contact (default: ${DEFAULT-VALUE}).")
     String bootstrapServers;
 
-    @Option(names = "--topic", defaultValue = DEFAULT_TOPIC, description = "Topic to send to (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--topic", paramLabel = "TOPIC", defaultValue = DEFAULT_TOPIC, description = "Topic to send to (default: ${DEFAULT-VALUE}).")
     String topic;
 
-    @Option(names = "--study", defaultValue = DEFAULT_STUDY, description = "Study identifier put in every simulated event (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--study", paramLabel = "ID", defaultValue = DEFAULT_STUDY, description = "Study identifier put in every simulated event (default: ${DEFAULT-VALUE}).")
     String study;
 
     @Option(names = "--rate", paramLabel = "EVENTS_PER_S", defaultValue = "200",
@@ -76,7 +75,7 @@ public final class DemoProducerCommand implements Callable<Integer> {
     @Option(names = "--strata", description = "Put each host's region in the events' stratum field.")
     boolean strata;
 
-    @Option(names = "--seed", defaultValue = "1", description = "Fixes hosts, picks and outcomes; the same seed gives the same events (default: ${DEFAULT-VALUE}).")
+    @Option(names = "--seed", paramLabel = "N", defaultValue = "1", description = "Fixes hosts, picks and outcomes; the same seed gives the same events (default: ${DEFAULT-VALUE}).")
     long seed;
 
     @Option(names = "--from-file", paramLabel = "FILE", description = "Send this file's JSON lines instead of simulating ('-' reads standard input).")
