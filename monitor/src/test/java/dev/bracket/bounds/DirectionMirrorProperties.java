@@ -1,6 +1,7 @@
 package dev.bracket.bounds;
 
 import net.jqwik.api.Arbitraries;
+import net.jqwik.api.Assume;
 import net.jqwik.api.Arbitrary;
 import net.jqwik.api.Combinators;
 import net.jqwik.api.Example;
@@ -75,6 +76,11 @@ class DirectionMirrorProperties {
     @Property(tries = 1000)
     void resultsOnTheReflectedOutcomeAreNegatedUnderTheMirroredAssumptions(
             @ForAll("cases") Case c, @ForAll("assumptionSets") Set<Assumption> set, @ForAll Direction better) {
+        // Means that cross by about the rounding slack sit on the refutation threshold itself,
+        // where reflecting (a + b - mu) may move them across it; the mirror holds away from it.
+        double slack = 1e-9 * (Math.abs(c.a()) + Math.abs(c.b()));
+        double gap = Math.abs(c.mu1() - c.mu0());
+        Assume.that(gap == 0 || gap < 0.5 * slack || gap > 2 * slack);
         IdentifiedInterval original = BoundCalculator.interval(c.p(), c.mu1(), c.mu0(),
                 new OutcomeRange(c.a(), c.b(), better), AssumptionSet.of(set));
         IdentifiedInterval mirrored = BoundCalculator.interval(c.p(), c.a() + c.b() - c.mu1(), c.a() + c.b() - c.mu0(),
