@@ -129,6 +129,7 @@ public final class DemoCommand implements Callable<Integer> {
         BracketConfig config = BracketConfig.parse("bracket demo", configYaml()).withBootstrapServers(broker.bootstrapServers());
         try (Monitor monitor = Monitor.start(config, web.registry(), latest);
              Producer<String, String> kafka = DemoProducer.kafkaProducer(broker.bootstrapServers())) {
+            web.showAlerts(monitor.alerts()::apiView);
             DemoProducer sender = new DemoProducer(kafka, TOPIC, rate, Clock.systemUTC());
             Thread producerThread = new Thread(() -> sender.run(new ScenarioFeed(scenario, STUDY),
                     new DemoProducer.Limits(0, duration), stop::get), "bracket-demo-producer");
@@ -187,6 +188,8 @@ public final class DemoCommand implements Callable<Integer> {
                   rejected: bracket-demo-rejected
                   partials: bracket-demo-partials
                   bounds: bracket-demo-bounds
+                alerts:
+                  topic: bracket-demo-alerts
                 commit-interval: 500ms
                 publish-interval: 500ms
                 group: bracket-demo

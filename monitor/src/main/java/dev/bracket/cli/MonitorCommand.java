@@ -72,6 +72,9 @@ public final class MonitorCommand implements Callable<Integer> {
             out.println("Kafka broker listening at " + broker.bootstrapServers() + " (use it as bootstrap.servers)");
         }
         Monitor monitor = Monitor.start(config, registry, latest);
+        if (web != null) {
+            web.showAlerts(monitor.alerts()::apiView);
+        }
         out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
                 config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
                 config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),

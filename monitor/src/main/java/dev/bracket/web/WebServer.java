@@ -15,6 +15,7 @@ import java.util.Optional;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
+import java.util.function.Supplier;
 
 /**
  * The monitor's HTTP face: the JSON API, Prometheus metrics and the web page with the
@@ -27,6 +28,8 @@ import java.util.concurrent.TimeUnit;
  *   GET /api/studies              {@link StudyDocuments#list}
  *   GET /api/studies/{id}         {@link StudyDocuments#study}; 404 with {"error": ...} for an unknown study
  *   GET /api/studies/{id}/history {@link StudyDocuments#history}
+ *   GET /api/alerts               alerts firing now and the newest transitions ({@code AlertJson#listing});
+ *                                 503 with {"error": ...} until {@link #showAlerts} is called
  *   GET /metrics                  Prometheus text: the registry passed in, with {@link StudyGauges}
  * </pre>
  */
@@ -45,6 +48,7 @@ public final class WebServer implements AutoCloseable {
     private final Javalin app;
     private ScheduledExecutorService sampler;
     private String host;
+    private volatile Supplier<? extends JsonNode> alerts;
 
     /**
      * @param latest   where the bound updater publishes reports
@@ -66,6 +70,15 @@ public final class WebServer implements AutoCloseable {
         app.get("/api/studies/{id}/history", ctx -> {
             refresh();
             found(ctx, StudyDocuments.history(history, ctx.pathParam("id")));
+        });
+        app.get("/api/alerts", ctx -> {
+            Supplier<? extends JsonNode> view = alerts;
+            if (view == null) {
+                ctx.status(HttpStatus.SERVICE_UNAVAILABLE);
+                json(ctx, StudyDocuments.error("no alert evaluator is running yet; try again once the monitor has started"));
+            } else {
+                json(ctx, view.get());
+            }
         });
         app.get("/metrics", ctx -> {
             refresh();
@@ -97,6 +110,14 @@ public final class WebServer implements AutoCloseable {
                 history.record(r);
             }
         }
+    }
+
+    /**
+     * Serves {@code GET /api/alerts} from {@code view} (the monitor's {@code AlertService::apiView});
+     * the monitor starts after the server, so this is set once it runs.
+     */
+    public void showAlerts(Supplier<? extends JsonNode> view) {
+        this.alerts = view;
     }
 
     /** The bound port, after {@link #start}. */
