@@ -52,7 +52,7 @@ import java.util.stream.Stream;
 public final class DemoCommand implements Callable<Integer> {
 
     static final String STUDY = DemoProducerCommand.DEFAULT_STUDY;
-    private static final String TOPIC = "bracket-demo-events";
+    static final String TOPIC = "bracket-demo-events";
     private static final Duration DRAIN_LIMIT = Duration.ofSeconds(20);
 
     @CommandLine.Spec
