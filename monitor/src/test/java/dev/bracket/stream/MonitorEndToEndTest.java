@@ -167,6 +167,10 @@ class MonitorEndToEndTest {
 
     /** The newest document per key on a bounds topic. */
     static Map<String, JsonNode> latestDocuments(String topic) throws Exception {
+        return latestDocuments(broker, topic);
+    }
+
+    static Map<String, JsonNode> latestDocuments(EmbeddedBroker broker, String topic) throws Exception {
         Map<String, JsonNode> out = new TreeMap<>();
         for (ConsumerRecord<byte[], byte[]> r : KafkaTestSupport.readAll(broker, topic)) {
             out.put(new String(r.key(), StandardCharsets.UTF_8), JSON.readTree(r.value()));
