@@ -20,6 +20,7 @@ public final class Monitor implements AutoCloseable {
     private final StreamMetrics metrics;
     private final Thread aggregatorThread;
     private final Thread updaterThread;
+    private final java.util.concurrent.atomic.AtomicBoolean closed = new java.util.concurrent.atomic.AtomicBoolean();
 
     private Monitor(StreamAggregator aggregator, BoundUpdater updater, StreamMetrics metrics) {
         this.aggregator = aggregator;
@@ -64,6 +65,9 @@ public final class Monitor implements AutoCloseable {
 
     @Override
     public void close() {
+        if (!closed.compareAndSet(false, true)) {
+            return;
+        }
         aggregator.close(Duration.ofSeconds(30));
         updater.close();
         join(aggregatorThread);
