@@ -13,7 +13,8 @@ package dev.bracket.bounds;
  *
  * The ATE is increasing in m10 and decreasing in m01, so over the box the assumptions leave for
  * (m10, m01) (see {@link AssumptionSet#constrain}) the lowest value uses (min m10, max m01) and
- * the highest (max m10, min m01). The box is a product of intervals; an empty box means
+ * the highest (max m10, min m01). The box is a product of intervals; an empty box (beyond
+ * rounding, see {@link OutcomeRange#roundingSlack()}) means
  * {@link BoundStatus#REFUTED}.
  */
 public final class BoundCalculator {
@@ -36,14 +37,14 @@ public final class BoundCalculator {
      */
     public static IdentifiedInterval interval(double p, double mu1, double mu0, OutcomeRange range, AssumptionSet assumptions) {
         UnobservedMeans box = assumptions.constrain(range, mu1, mu0);
-        if (box.isEmpty()) {
+        if (box.isEmpty(range.roundingSlack())) {
             return IdentifiedInterval.refuted();
         }
         double q = 1 - p;
         // Grouped by arm so that a constraint binding at an observed mean cancels exactly.
         double lower = p * (mu1 - box.m01High()) + q * (box.m10Low() - mu0);
         double upper = p * (mu1 - box.m01Low()) + q * (box.m10High() - mu0);
-        // Rounding can leave lower a hair above upper when the box is a single point.
-        return IdentifiedInterval.of(Math.min(lower, upper), Math.max(lower, upper));
+        // Rounding can leave lower a hair above upper when the box is (nearly) a single point.
+        return IdentifiedInterval.spanning(lower, upper);
     }
 }

@@ -17,6 +17,11 @@ public record IdentifiedInterval(double lower, double upper, BoundStatus status)
         return new IdentifiedInterval(lower, upper, BoundStatus.IDENTIFIED);
     }
 
+    /** The interval between two ends given in either order: rounding can cross ends that are equal in exact arithmetic. */
+    public static IdentifiedInterval spanning(double end, double otherEnd) {
+        return of(Math.min(end, otherEnd), Math.max(end, otherEnd));
+    }
+
     public static IdentifiedInterval refuted() {
         return new IdentifiedInterval(Double.NaN, Double.NaN, BoundStatus.REFUTED);
     }

@@ -3,6 +3,7 @@ package dev.bracket.bounds;
 import java.util.Collections;
 import java.util.LinkedHashMap;
 import java.util.Map;
+import java.util.Optional;
 
 /**
  * Bounds under mean independence of the potential outcomes from an instrument Z (Manski 1990,
@@ -32,25 +33,37 @@ public final class InstrumentBounds {
     private InstrumentBounds() {
     }
 
-    /** Bounds on the two potential-outcome means at one instrument level. */
-    record LevelMeans(double y1Low, double y1High, double y0Low, double y0High) {
+    /**
+     * Bounds on the two potential-outcome means at one instrument level:
+     * {@code E[Y1 | z] in [y1Low, y1High]} and {@code E[Y0 | z] in [y0Low, y0High]}.
+     */
+    public record LevelMeans(double y1Low, double y1High, double y0Low, double y0High) {
     }
 
     /** Per-level bounds on E[Y1] and E[Y0]; null when the level's assumptions are refuted. */
     static LevelMeans levelMeans(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
-        double p = arms.treatedShare();
-        double q = 1 - p;
         double mu1 = arms.treated().isEmpty() ? Double.NaN : arms.treated().mean();
         double mu0 = arms.control().isEmpty() ? Double.NaN : arms.control().mean();
+        return levelMeans(arms.treatedShare(), mu1, mu0, range, assumptions).orElse(null);
+    }
+
+    /**
+     * Per-level bounds as a function of the level's observable quantities (treated share and arm
+     * means; a NaN mean marks an arm with no units). Empty when the assumptions are refuted at
+     * these values. Like {@link BoundCalculator#interval(double, double, double, OutcomeRange,
+     * AssumptionSet)} the ends are linear in {@code p} for fixed means; the confidence bands rely on it.
+     */
+    public static Optional<LevelMeans> levelMeans(double p, double mu1, double mu0, OutcomeRange range, AssumptionSet assumptions) {
+        double q = 1 - p;
         UnobservedMeans box = assumptions.constrain(range, mu1, mu0);
-        if (box.isEmpty()) {
-            return null;
+        if (box.isEmpty(range.roundingSlack())) {
+            return Optional.empty();
         }
         double treatedPart = p == 0 ? 0 : p * mu1;
         double controlPart = q == 0 ? 0 : q * mu0;
-        return new LevelMeans(
+        return Optional.of(new LevelMeans(
                 treatedPart + q * box.m10Low(), treatedPart + q * box.m10High(),
-                controlPart + p * box.m01Low(), controlPart + p * box.m01High());
+                controlPart + p * box.m01Low(), controlPart + p * box.m01High()));
     }
 
     /**
@@ -85,7 +98,7 @@ public final class InstrumentBounds {
                 perLevel.put(e.getKey(), IdentifiedInterval.refuted());
                 continue;
             }
-            perLevel.put(e.getKey(), IdentifiedInterval.of(m.y1Low - m.y0High, m.y1High - m.y0Low));
+            perLevel.put(e.getKey(), IdentifiedInterval.spanning(m.y1Low - m.y0High, m.y1High - m.y0Low));
             l1 = Math.max(l1, m.y1Low);
             u1 = Math.min(u1, m.y1High);
             l0 = Math.max(l0, m.y0Low);
@@ -94,10 +107,10 @@ public final class InstrumentBounds {
         IdentifiedInterval overall;
         if (treated == 0 || control == 0) {
             overall = IdentifiedInterval.insufficientData();
-        } else if (refuted || l1 > u1 || l0 > u0) {
+        } else if (refuted || l1 - u1 > range.roundingSlack() || l0 - u0 > range.roundingSlack()) {
             overall = IdentifiedInterval.refuted();
         } else {
-            overall = IdentifiedInterval.of(l1 - u0, u1 - l0);
+            overall = IdentifiedInterval.spanning(l1 - u0, u1 - l0);
         }
         return new Result(overall, perLevel);
     }

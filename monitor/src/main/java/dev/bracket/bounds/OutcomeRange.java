@@ -33,6 +33,16 @@ public record OutcomeRange(double min, double max, Direction better) {
         return y >= min && y <= max;
     }
 
+    /**
+     * How far two computed means may cross before that counts as a contradiction rather than
+     * rounding: 1e-9 of the size of the range ends. Means that are equal in exact arithmetic
+     * (3 of 12 and 1 of 4 binary outcomes) differ in the last bits when accumulated by Welford's
+     * update, and that must not refute an assumption.
+     */
+    double roundingSlack() {
+        return 1e-9 * (Math.abs(min) + Math.abs(max));
+    }
+
     /** The reflected outcome {@code min + max - y}; maps the range onto itself with the order reversed. */
     public double reflect(double y) {
         return min + max - y;

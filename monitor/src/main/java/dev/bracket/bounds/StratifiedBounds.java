@@ -40,6 +40,9 @@ public final class StratifiedBounds {
         boolean insufficient = total == 0;
         for (Map.Entry<String, Map<String, ObservedArms>> e : study.byStratum().entrySet()) {
             Map<String, ObservedArms> levels = e.getValue();
+            if (study.pooled(e.getKey()).total() == 0) {
+                continue; // a stratum with no units has weight zero
+            }
             IdentifiedInterval interval = levels.size() == 1
                     ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
                     : InstrumentBounds.interval(levels, range, assumptions);

@@ -37,8 +37,12 @@ public record UnobservedMeans(double m10Low, double m10High, double m01Low, doub
         return Double.isNaN(value) ? this : new UnobservedMeans(m10Low, m10High, m01Low, Math.min(m01High, value));
     }
 
-    /** True when some (m10, m01) satisfies every constraint. */
-    public boolean isEmpty() {
-        return m10Low > m10High || m01Low > m01High;
+    /**
+     * True when no (m10, m01) satisfies every constraint: some lower end lies above its upper end
+     * by more than {@code slack} (a smaller crossing is rounding in the observed means, see
+     * {@link OutcomeRange#roundingSlack()}).
+     */
+    public boolean isEmpty(double slack) {
+        return m10Low - m10High > slack || m01Low - m01High > slack;
     }
 }

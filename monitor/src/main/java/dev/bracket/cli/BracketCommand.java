@@ -36,11 +36,11 @@ public final class BracketCommand implements Runnable {
         return cl;
     }
 
-    /** Picocli's own parse errors (unknown flag, not a number): one line and a pointer to help. */
+    /** Picocli's own parse errors (unknown flag, not a number): one line, ending with a pointer to help. */
     private static int onBadParameters(CommandLine.ParameterException e, String[] args) {
         PrintWriter err = e.getCommandLine().getErr();
-        err.println(e.getCommandLine().getCommandName() + ": " + e.getMessage());
-        err.println("Try '" + e.getCommandLine().getCommandSpec().qualifiedName() + " --help'.");
+        err.println(e.getCommandLine().getCommandName() + ": " + e.getMessage()
+                + "; try '" + e.getCommandLine().getCommandSpec().qualifiedName() + " --help'");
         return CommandLine.ExitCode.USAGE;
     }
 

@@ -1,5 +1,9 @@
 package dev.bracket.cli;
 
+import dev.bracket.bands.AnytimeBand;
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.ObservedArms;
@@ -19,7 +23,9 @@ import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.util.ArrayList;
+import java.util.EnumSet;
 import java.util.List;
+import java.util.Locale;
 import java.util.concurrent.Callable;
 
 /** {@code bracket calc}: intervals from summary statistics, without a stream. */
@@ -28,10 +34,19 @@ import java.util.concurrent.Callable;
         description = {
                 "Bounds on the average treatment effect from per-arm summary statistics.",
                 "Give the two arms with --treated-* and --control-*, or many cells (strata, instrument levels) with --cells.",
-                "Without --assume every single assumption is reported."},
+                "Without --assume every single assumption is reported.",
+                "Each interval gets confidence bands (--band): a fixed-horizon band, valid",
+                "for one look planned in advance, and an anytime band, valid however often",
+                "the data are looked at (the one to act on)."},
         footer = {"",
                 "Assumptions: worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,",
                 "optimizing-selection, sorting-on-gains. Join several with commas to assume them together.",
+                "",
+                "Standard deviations (--treated-sd, --control-sd or the sd column) stand in",
+                "for the spread of each arm's outcomes in the fixed-horizon band's standard",
+                "errors. Without an SD for every arm, that band assumes the largest spread",
+                "possible in [A, B], variance (B-A)^2/4: safe, but wide. The anytime band",
+                "needs no SD; it uses only counts, means and the declared range.",
                 "",
                 "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
                 "operational advice; medical use follows local regulation, ethics approval and licensed judgement.",
@@ -60,7 +75,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
     Double treatedMean;
 
-    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional).")
+    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed-horizon band).")
     Double treatedSd;
 
     @Option(names = "--control-n", paramLabel = "N0", description = "Units that did not receive treatment.")
@@ -69,7 +84,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
     Double controlMean;
 
-    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional).")
+    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional; used by the fixed-horizon band).")
     Double controlSd;
 
     @Option(names = "--cells", paramLabel = "FILE",
@@ -83,12 +98,22 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--json", description = "Print the versioned JSON document instead of the table.")
     boolean json;
 
+    @Option(names = "--level", paramLabel = "L", defaultValue = "0.95",
+            description = "Confidence level of the bands, strictly between 0 and 1 (default: ${DEFAULT-VALUE}).")
+    double level;
+
+    @Option(names = "--band", paramLabel = "fixed|anytime|both", defaultValue = "both",
+            description = "Which confidence bands to show (default: ${DEFAULT-VALUE}).")
+    String band;
+
     @Override
     public Integer call() throws IOException {
         OutcomeRange range = range();
         List<AssumptionSet> sets = sets();
-        StudyCells cells = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
-        StudyReport report = StudyReport.of(cells, range, sets);
+        BandSettings bands = bands();
+        CalcInput.Cells input = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
+        StudyReport report = StudyReport.of(input.cells(), range, sets,
+                bands.withVariance(input.everySdGiven() ? VarianceBasis.SAMPLE : VarianceBasis.RANGE_BOUND));
         if (json) {
             spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter()
                     .writeValueAsString(ReportJson.toJson(report)));
@@ -126,7 +151,20 @@ public final class CalcCommand implements Callable<Integer> {
         return sets;
     }
 
-    private StudyCells cellsFromFlags(OutcomeRange range) {
+    private BandSettings bands() {
+        if (!(level > 0 && level < 1)) {
+            throw new InputError("--level must lie strictly between 0 and 1 (for example 0.95), was " + CalcInput.fmt(level));
+        }
+        EnumSet<BandMethod> methods = switch (band.trim().toLowerCase(Locale.ROOT)) {
+            case "both" -> EnumSet.allOf(BandMethod.class);
+            case "fixed", "fixed-horizon" -> EnumSet.of(BandMethod.FIXED_HORIZON);
+            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
+            default -> throw new InputError("--band must be fixed, anytime or both, was '" + band + "'");
+        };
+        return new BandSettings(level, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+    }
+
+    private CalcInput.Cells cellsFromFlags(OutcomeRange range) {
         requireFlag(treatedN, "--treated-n");
         requireFlag(treatedMean, "--treated-mean");
         requireFlag(controlN, "--control-n");
@@ -134,10 +172,11 @@ public final class CalcCommand implements Callable<Integer> {
         ObservedArms arms = new ObservedArms(
                 CalcInput.arm(treatedN, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
                 CalcInput.arm(controlN, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
-        return StudyCells.single(arms);
+        boolean everySdGiven = (treatedSd != null || treatedN < 2) && (controlSd != null || controlN < 2);
+        return new CalcInput.Cells(StudyCells.single(arms), everySdGiven);
     }
 
-    private StudyCells cellsFromFile(OutcomeRange range) throws IOException {
+    private CalcInput.Cells cellsFromFile(OutcomeRange range) throws IOException {
         for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd}) {
             if (flag != null) {
                 throw new InputError("--cells cannot be combined with --treated-* or --control-*; put every arm in the file");

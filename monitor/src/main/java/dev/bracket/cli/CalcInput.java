@@ -2,11 +2,19 @@ package dev.bracket.cli;
 
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
 
 /** Checks of one arm's summary statistics against the declared outcome range. */
 final class CalcInput {
 
     private CalcInput() {
+    }
+
+    /**
+     * The cells given to {@code calc}, and whether every arm with two or more units came with a
+     * standard deviation (otherwise the fixed-horizon band bounds the variances by the range).
+     */
+    record Cells(StudyCells cells, boolean everySdGiven) {
     }
 
     /**

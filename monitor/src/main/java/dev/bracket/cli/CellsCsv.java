@@ -27,17 +27,20 @@ final class CellsCsv {
     private CellsCsv() {
     }
 
-    static StudyCells read(Reader in, String source, OutcomeRange range) throws IOException {
+    static CalcInput.Cells read(Reader in, String source, OutcomeRange range) throws IOException {
         CsvMapper mapper = new CsvMapper();
         mapper.enable(CsvParser.Feature.TRIM_SPACES);
         mapper.enable(CsvParser.Feature.SKIP_EMPTY_LINES);
         CsvSchema schema = CsvSchema.emptySchema().withHeader();
         StudyCells cells = StudyCells.empty();
+        boolean everySdGiven = true;
         try (MappingIterator<Map<String, String>> rows = mapper.readerForMapOf(String.class).with(schema).readValues(in)) {
             boolean checkedHeader = false;
             while (rows.hasNext()) {
+                // Where the row starts: hasNext() has just reached it. After next() the parser is
+                // past the line end (and past any blank lines that follow).
+                long line = rows.getParser().currentLocation().getLineNr();
                 Map<String, String> row = rows.next();
-                long line = rows.getCurrentLocation().getLineNr();
                 String where = source + ", line " + line;
                 if (!checkedHeader) {
                     checkHeader(row.keySet(), source);
@@ -46,12 +49,10 @@ final class CellsCsv {
                 boolean treated = arm(row.get("arm"), where);
                 long n = count(row.get("n"), where);
                 double mean = number(row.get("mean"), "mean", where);
-                if (n > 0 && !range.contains(mean)) {
-                    throw new InputError(where + ": mean " + mean + " lies outside the outcome range ["
-                            + range.min() + ", " + range.max() + "]; fix the row or the range");
-                }
                 String sdText = row.getOrDefault("sd", "");
-                double sd = sdText == null || sdText.isEmpty() ? 0.0 : number(sdText, "sd", where);
+                boolean sdGiven = sdText != null && !sdText.isEmpty();
+                everySdGiven &= sdGiven || n < 2;
+                double sd = sdGiven ? number(sdText, "sd", where) : 0.0;
                 ArmStatistics stats = CalcInput.arm(n, mean, sd, range, where + ": ");
                 ObservedArms arms = treated
                         ? new ObservedArms(stats, ArmStatistics.empty())
@@ -67,7 +68,7 @@ final class CellsCsv {
             }
             throw new InputError(source + ": not readable as CSV (" + e.getMessage().lines().findFirst().orElse("") + ")", e);
         }
-        return cells;
+        return new CalcInput.Cells(cells, everySdGiven);
     }
 
     private static void checkHeader(Set<String> header, String source) {

@@ -1,24 +1,39 @@
 package dev.bracket.report;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.IdentifiedInterval;
 
+import java.util.List;
 import java.util.Map;
 
 /**
- * One line of a report: an assumption set, its identified interval for the whole study, and
- * (for stratified studies) each stratum's interval. The JSON shape of a row is shared by
+ * One line of a report: an assumption set, its identified interval for the whole study,
+ * (for stratified studies) each stratum's interval, and the confidence bands requested around
+ * the study's interval (none unless asked for). The JSON shape of a row is shared by
  * {@code calc --json}, {@code replay --json} and the HTTP API.
  */
-public record BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, Map<String, IdentifiedInterval> perStratum) {
+public record BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, Map<String, IdentifiedInterval> perStratum,
+                       List<ConfidenceBand> bands) {
 
     public BoundRow {
         perStratum = Map.copyOf(perStratum);
+        bands = List.copyOf(bands);
+    }
+
+    /** A row without confidence bands. */
+    public BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, Map<String, IdentifiedInterval> perStratum) {
+        this(assumptions, interval, perStratum, List.of());
     }
 
     /** "positive", "negative" or "undetermined": whether the identified set lies on one side of zero. */
     public String sign() {
-        return switch (interval.identifiedSign()) {
+        return signWord(interval.identifiedSign());
+    }
+
+    /** The word for a sign: +1 "positive", -1 "negative", otherwise "undetermined". Shared with the bands. */
+    static String signWord(int sign) {
+        return switch (sign) {
             case 1 -> "positive";
             case -1 -> "negative";
             default -> "undetermined";

@@ -3,6 +3,7 @@ package dev.bracket.report;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
@@ -63,7 +64,7 @@ public final class ReportJson {
         return o;
     }
 
-    /** One row: assumptions, meaning, status, interval, width, sign and per-stratum intervals. */
+    /** One row: assumptions, meaning, status, interval, width, sign, per-stratum intervals and any confidence bands. */
     public static ObjectNode row(BoundRow row) {
         ObjectNode o = MAPPER.createObjectNode();
         ArrayNode ids = o.putArray("assumptions");
@@ -79,6 +80,25 @@ public final class ReportJson {
                 interval(s, iv);
             });
         }
+        if (!row.bands().isEmpty()) {
+            ArrayNode bands = o.putArray("bands");
+            row.bands().forEach(b -> bands.add(band(b)));
+        }
+        return o;
+    }
+
+    /** A confidence band: method, level, status, ends, width, whether it excludes zero, sign, and what it rests on. */
+    static ObjectNode band(ConfidenceBand band) {
+        ObjectNode o = MAPPER.createObjectNode();
+        o.put("method", band.method().id());
+        o.put("level", band.level());
+        o.put("status", band.status().id());
+        number(o, "lower", band.lower());
+        number(o, "upper", band.upper());
+        number(o, "width", band.width());
+        o.put("excludesZero", band.excludesZero());
+        o.put("sign", BoundRow.signWord(band.sign()));
+        o.put("basis", band.basis());
         return o;
     }
 

@@ -1,13 +1,19 @@
 package dev.bracket.report;
 
+import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 
+import java.util.LinkedHashSet;
 import java.util.Locale;
 import java.util.Map;
+import java.util.Set;
 import java.util.TreeMap;
 
-/** The human-readable form of a {@link StudyReport}: a fixed-width table and the meanings below it. */
+/**
+ * The human-readable form of a {@link StudyReport}: a fixed-width table (with any confidence bands
+ * under their row) and, below it, the meanings of the assumptions and what the bands rest on.
+ */
 public final class ReportTable {
 
     private ReportTable() {
@@ -20,12 +26,16 @@ public final class ReportTable {
         out.append(armLine("treated", report.pooled().treated()));
         out.append(armLine("control", report.pooled().control()));
         out.append('\n');
-        int width = report.rows().stream().mapToInt(r -> r.assumptions().toString().length()).max().orElse(10);
+        int width = report.rows().stream().mapToInt(r -> Math.max(r.assumptions().toString().length(),
+                r.bands().stream().mapToInt(b -> bandLabel(b).length()).max().orElse(0))).max().orElse(10);
         width = Math.max(width, "assumptions".length());
         String format = "%-" + width + "s  %-18s  %10s  %10s  %9s  %s%n";
         out.append(String.format(Locale.ROOT, format, "assumptions", "status", "lower", "upper", "width", "sign of effect"));
         for (BoundRow row : report.rows()) {
             appendInterval(out, format, row.assumptions().toString(), row.interval(), row.sign());
+            for (ConfidenceBand b : row.bands()) {
+                appendBand(out, format, b);
+            }
             for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {
                 appendInterval(out, format, "  stratum " + s.getKey(), s.getValue(), "");
             }
@@ -34,12 +44,54 @@ public final class ReportTable {
         for (BoundRow row : report.rows()) {
             out.append(String.format(Locale.ROOT, "%s: %s%n", row.assumptions(), row.assumptions().meaning()));
         }
+        appendBandNotes(out, report);
         return out.toString();
+    }
+
+    private static void appendBand(StringBuilder out, String format, ConfidenceBand b) {
+        boolean ok = b.isIdentified();
+        String signText = !ok ? "" : signText(BoundRow.signWord(b.sign()));
+        out.append(String.format(Locale.ROOT, format, bandLabel(b), b.status().id(),
+                ok ? num(b.lower()) : "-", ok ? num(b.upper()) : "-", ok ? num(b.width()) : "-", signText));
+    }
+
+    /** The sign column: the sign word, or a plain explanation when no sign is identified; blank for stratum lines. */
+    private static String signText(String word) {
+        return word.equals("undetermined") ? "not identified (contains 0)" : word;
+    }
+
+    private static String bandLabel(ConfidenceBand b) {
+        return "  " + b.method().id() + " " + percent(b.level()) + " band";
+    }
+
+    /** What each kind of band rests on, once per distinct basis, and which one to act on. */
+    private static void appendBandNotes(StringBuilder out, StudyReport report) {
+        Set<String> notes = new LinkedHashSet<>();
+        for (BoundRow row : report.rows()) {
+            for (ConfidenceBand b : row.bands()) {
+                notes.add(b.method().id() + " band: " + b.basis() + ".");
+            }
+        }
+        if (notes.isEmpty()) {
+            return;
+        }
+        out.append('\n');
+        notes.forEach(n -> out.append(n).append(System.lineSeparator()));
+        out.append("The fixed-horizon band holds for one look planned in advance; the anytime band stays valid however often")
+                .append(System.lineSeparator())
+                .append("the data are looked at, so decide and alert on the anytime band. A band is only as credible as the assumptions.")
+                .append(System.lineSeparator());
+    }
+
+    /** A level as a percentage without trailing zeros, e.g. 95% or 99.5%. */
+    private static String percent(double level) {
+        return java.math.BigDecimal.valueOf(level * 100).setScale(6, java.math.RoundingMode.HALF_UP)
+                .stripTrailingZeros().toPlainString() + "%";
     }
 
     private static void appendInterval(StringBuilder out, String format, String label, IdentifiedInterval iv, String sign) {
         boolean ok = iv.isIdentified();
-        String signText = !ok || sign.isEmpty() ? "" : sign.equals("undetermined") ? "not identified (contains 0)" : sign;
+        String signText = !ok ? "" : signText(sign);
         out.append(String.format(Locale.ROOT, format, label, iv.status().id(),
                 ok ? num(iv.lower()) : "-", ok ? num(iv.upper()) : "-", ok ? num(iv.width()) : "-", signText));
     }

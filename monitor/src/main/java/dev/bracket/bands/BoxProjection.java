@@ -1,0 +1,150 @@
+package dev.bracket.bands;
+
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.BoundCalculator;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.InstrumentBounds;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
+
+import java.util.Map;
+import java.util.Optional;
+import java.util.function.Function;
+
+/**
+ * Turns boxes of plausible observable quantities, one per cell, into a band for the study's ATE
+ * interval. If every cell's true (p, mu1, mu0) lies in its box, the true identified set lies in
+ * the returned band, and "refuted" is returned only if no point of some box is compatible with
+ * the assumptions; so a band built from boxes with simultaneous coverage 1 - alpha has coverage
+ * (of the whole identified set) and a false-refutation rate controlled at the same level.
+ *
+ * <p>Within a cell the ends are bilinear in p and the means, piecewise along {@code mu1 = mu0};
+ * their extremes over the box are attained at p in {pLow, pHigh} and the mean vertices of
+ * {@link ObservablesBox#meanVertices()}. Vertices where the assumptions are refuted are skipped,
+ * which is why the diagonal points are needed besides the corners: at a refuted corner the
+ * extreme moves to where the box meets the diagonal.
+ *
+ * <p>Instrument levels (Manski 1990 mean independence, see {@link InstrumentBounds}): with
+ * per-level ranges of the bounds on E[Y1] and E[Y0], the band is
+ * {@code [max_z min L1_z - min_z max U0_z, min_z max U1_z - max_z min L0_z]}, and the data refute
+ * the assumptions when {@code max_z min L1_z > min_z max U1_z} (or the same for Y0): valid because
+ * the true L1_z is at least min L1_z for every z and the true U1_w at most max U1_w.
+ *
+ * <p>Strata: the band is the stratum bands weighted by the observed stratum shares, the same
+ * weights {@link dev.bracket.bounds.StratifiedBounds} uses; it covers the ATE of the population
+ * with the observed stratum mix.
+ */
+final class BoxProjection {
+
+    private BoxProjection() {
+    }
+
+    /** Lower and upper end of a band. */
+    record Ends(double lower, double upper) {
+    }
+
+    /** Number of cells (stratum × instrument level) with units: the Bonferroni divisor, three sequences each. */
+    static int cellCount(StudyCells cells) {
+        int k = 0;
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            for (ObservedArms arms : levels.values()) {
+                if (arms.total() > 0) {
+                    k++;
+                }
+            }
+        }
+        return k;
+    }
+
+    /** The band of a study from one box per cell; empty when the boxes refute the assumptions. */
+    static Optional<Ends> study(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
+                                Function<ObservedArms, ObservablesBox> boxOf) {
+        long total = cells.pooled().total();
+        double lower = 0;
+        double upper = 0;
+        for (Map.Entry<String, Map<String, ObservedArms>> e : cells.byStratum().entrySet()) {
+            Map<String, ObservedArms> levels = e.getValue();
+            long stratumTotal = cells.pooled(e.getKey()).total();
+            if (stratumTotal == 0) {
+                continue; // weight zero, as in StratifiedBounds
+            }
+            Optional<Ends> stratum = levels.size() == 1
+                    ? cell(boxOf.apply(levels.values().iterator().next()), range, assumptions)
+                    : instrument(levels, range, assumptions, boxOf);
+            if (stratum.isEmpty()) {
+                return Optional.empty();
+            }
+            double w = (double) stratumTotal / total;
+            lower += w * stratum.get().lower();
+            upper += w * stratum.get().upper();
+        }
+        return Optional.of(new Ends(lower, upper));
+    }
+
+    /** Lowest lower end and highest upper end over one cell's box; empty when every point is refuted. */
+    static Optional<Ends> cell(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
+        double lower = Double.POSITIVE_INFINITY;
+        double upper = Double.NEGATIVE_INFINITY;
+        for (double[] m : box.meanVertices()) {
+            for (double p : new double[] {box.pLow(), box.pHigh()}) {
+                IdentifiedInterval iv = BoundCalculator.interval(p, m[0], m[1], range, assumptions);
+                if (iv.isIdentified()) {
+                    lower = Math.min(lower, iv.lower());
+                    upper = Math.max(upper, iv.upper());
+                }
+            }
+        }
+        return lower <= upper ? Optional.of(new Ends(lower, upper)) : Optional.empty();
+    }
+
+    private static Optional<Ends> instrument(Map<String, ObservedArms> levels, OutcomeRange range, AssumptionSet assumptions,
+                                             Function<ObservedArms, ObservablesBox> boxOf) {
+        double l1 = Double.NEGATIVE_INFINITY;
+        double u1 = Double.POSITIVE_INFINITY;
+        double l0 = Double.NEGATIVE_INFINITY;
+        double u0 = Double.POSITIVE_INFINITY;
+        for (ObservedArms arms : levels.values()) {
+            if (arms.total() == 0) {
+                continue;
+            }
+            Optional<InstrumentBounds.LevelMeans> level = levelRanges(boxOf.apply(arms), range, assumptions);
+            if (level.isEmpty()) {
+                return Optional.empty();
+            }
+            l1 = Math.max(l1, level.get().y1Low());
+            u1 = Math.min(u1, level.get().y1High());
+            l0 = Math.max(l0, level.get().y0Low());
+            u0 = Math.min(u0, level.get().y0High());
+        }
+        if (l1 > u1 || l0 > u0) {
+            return Optional.empty();
+        }
+        return Optional.of(new Ends(l1 - u0, u1 - l0));
+    }
+
+    /**
+     * Over one level's box: the smallest lower and largest upper bound on E[Y1 | z] and on
+     * E[Y0 | z], packed as a {@link InstrumentBounds.LevelMeans}; empty when every point is refuted.
+     */
+    private static Optional<InstrumentBounds.LevelMeans> levelRanges(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
+        double y1Low = Double.POSITIVE_INFINITY;
+        double y1High = Double.NEGATIVE_INFINITY;
+        double y0Low = Double.POSITIVE_INFINITY;
+        double y0High = Double.NEGATIVE_INFINITY;
+        boolean any = false;
+        for (double[] m : box.meanVertices()) {
+            for (double p : new double[] {box.pLow(), box.pHigh()}) {
+                Optional<InstrumentBounds.LevelMeans> at = InstrumentBounds.levelMeans(p, m[0], m[1], range, assumptions);
+                if (at.isPresent()) {
+                    any = true;
+                    y1Low = Math.min(y1Low, at.get().y1Low());
+                    y1High = Math.max(y1High, at.get().y1High());
+                    y0Low = Math.min(y0Low, at.get().y0Low());
+                    y0High = Math.max(y0High, at.get().y0High());
+                }
+            }
+        }
+        return any ? Optional.of(new InstrumentBounds.LevelMeans(y1Low, y1High, y0Low, y0High)) : Optional.empty();
+    }
+}

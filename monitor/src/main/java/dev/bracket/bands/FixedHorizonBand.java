@@ -1,0 +1,161 @@
+package dev.bracket.bands;
+
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.BoundCalculator;
+import dev.bracket.bounds.BoundStatus;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StratifiedBounds;
+import dev.bracket.bounds.StudyCells;
+import org.apache.commons.math3.distribution.NormalDistribution;
+
+import java.util.Map;
+import java.util.Optional;
+
+/**
+ * The fixed-horizon band: with probability at least {@code level} (asymptotically) it holds the
+ * true ATE, at one look planned in advance. Looking again as data accrue raises the error rate
+ * far above {@code 1 - level}; streams use {@link AnytimeBand} for decisions.
+ *
+ * <p>Three cases:
+ * <ol>
+ *   <li>One cell, or strata without instrument levels, with an estimated interval compatible
+ *       with the assumptions: {@link ImbensManski} (with Stoye's pre-test) around the estimated
+ *       interval, with {@link EndpointStandardErrors}. For strata the ends are the share-weighted
+ *       sums of the stratum ends (as in {@link StratifiedBounds}), so their variances are the
+ *       weighted sums of the stratum variances (independent cells, weights held at the observed
+ *       shares).</li>
+ *   <li>Instrument levels: the intersection over levels is a max/min of noisy cells, which is
+ *       not smooth and is biased towards narrow intervals. Instead every cell gets a Wald box for
+ *       (p, mu1, mu0) at error {@code alpha / (3 K)} each (Bonferroni over K cells) — Wilson
+ *       (1927, JASA 22(158)) score interval for p, normal intervals for the means — and
+ *       {@link BoxProjection} gives the band. Conservative: it covers the whole identified set.</li>
+ *   <li>The estimate itself refutes the assumptions (for example {@code mu1^ < mu0^} under
+ *       {@code mtr-positive,mts-positive}): there are no estimated ends to centre on, so the
+ *       Wald-box projection is used as in case 2; the band is refuted when no point of the boxes
+ *       is compatible with the assumptions (a test at level alpha), and otherwise spans the
+ *       intervals compatible with the data.</li>
+ * </ol>
+ * Insufficient data when an arm of any cell has a single unit, or the interval itself is
+ * insufficient data.
+ */
+public final class FixedHorizonBand {
+
+    private static final NormalDistribution STANDARD_NORMAL = new NormalDistribution(0, 1);
+
+    private FixedHorizonBand() {
+    }
+
+    /** The band of a whole study. */
+    public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
+                                    VarianceBasis variance) {
+        IdentifiedInterval estimate = StratifiedBounds.interval(cells, range, assumptions).overall();
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
+            return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
+        }
+        if (estimate.isIdentified() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
+            Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
+            if (band.isPresent()) {
+                return band.get();
+            }
+        }
+        return projection(cells, range, assumptions, level, variance);
+    }
+
+    /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
+    public static ConfidenceBand ofCell(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double level,
+                                        VarianceBasis variance) {
+        if (arms.hasEmptyArm() || hasSingleUnitArm(arms)) {
+            return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
+        }
+        IdentifiedInterval estimate = BoundCalculator.interval(arms, range, assumptions);
+        Optional<EndpointStandardErrors> se = estimate.isIdentified()
+                ? EndpointStandardErrors.of(arms, range, assumptions, variance) : Optional.empty();
+        if (se.isPresent()) {
+            return imbensManski(estimate.lower(), estimate.upper(), se.get().lower(), se.get().upper(), arms.total(),
+                    range, level, variance);
+        }
+        return projection(StudyCells.single(arms), range, assumptions, level, variance);
+    }
+
+    /** Strata without instrument levels: share-weighted ends and variances; empty if a stratum has no standard errors. */
+    private static Optional<ConfidenceBand> imbensManski(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
+                                                         double level, VarianceBasis variance) {
+        long total = cells.pooled().total();
+        double lower = 0;
+        double upper = 0;
+        double varLower = 0;
+        double varUpper = 0;
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            ObservedArms arms = levels.values().iterator().next();
+            if (arms.total() == 0) {
+                continue; // weight zero, as in StratifiedBounds
+            }
+            IdentifiedInterval iv = BoundCalculator.interval(arms, range, assumptions);
+            Optional<EndpointStandardErrors> se = EndpointStandardErrors.of(arms, range, assumptions, variance);
+            if (!iv.isIdentified() || se.isEmpty()) {
+                return Optional.empty();
+            }
+            double w = (double) arms.total() / total;
+            lower += w * iv.lower();
+            upper += w * iv.upper();
+            varLower += w * w * se.get().lower() * se.get().lower();
+            varUpper += w * w * se.get().upper() * se.get().upper();
+        }
+        return Optional.of(imbensManski(lower, upper, Math.sqrt(varLower), Math.sqrt(varUpper), total, range, level, variance));
+    }
+
+    private static ConfidenceBand imbensManski(double lower, double upper, double seLower, double seUpper, long n,
+                                               OutcomeRange range, double level, VarianceBasis variance) {
+        double[] band = ImbensManski.interval(lower, upper, seLower, seUpper, level, n);
+        // No ATE lies outside [-(b-a), b-a]; clipping keeps the band honest at tiny samples.
+        return ConfidenceBand.of(BandMethod.FIXED_HORIZON, level,
+                Math.max(band[0], -range.width()), Math.min(band[1], range.width()), deltaBasis(variance));
+    }
+
+    private static ConfidenceBand projection(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
+                                             VarianceBasis variance) {
+        int k = BoxProjection.cellCount(cells);
+        double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (6.0 * k));
+        String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
+                + k + (k == 1 ? " cell" : " cells") + " (conservative), using " + variance.description();
+        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, z, variance))
+                .map(e -> ConfidenceBand.of(BandMethod.FIXED_HORIZON, level, e.lower(), e.upper(), basis))
+                .orElseGet(() -> ConfidenceBand.refuted(BandMethod.FIXED_HORIZON, level, basis));
+    }
+
+    /** Wilson score interval for p and normal intervals for the means, each two-sided with quantile z. */
+    static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, double z, VarianceBasis variance) {
+        double n = arms.total();
+        double p = arms.treatedShare();
+        double z2n = z * z / n;
+        double centre = (p + z2n / 2) / (1 + z2n);
+        double half = z / (1 + z2n) * Math.sqrt(p * (1 - p) / n + z2n / (4 * n));
+        ArmStatistics t = arms.treated();
+        ArmStatistics c = arms.control();
+        return ObservablesBox.around(centre, half,
+                t.isEmpty() ? range.min() : t.mean(), meanRadius(t, range, z, variance),
+                c.isEmpty() ? range.min() : c.mean(), meanRadius(c, range, z, variance),
+                range);
+    }
+
+    private static double meanRadius(ArmStatistics arm, OutcomeRange range, double z, VarianceBasis variance) {
+        return arm.isEmpty() ? Double.POSITIVE_INFINITY : z * Math.sqrt(variance.variance(arm, range) / arm.count());
+    }
+
+    private static boolean hasSingleUnitArm(StudyCells cells) {
+        return cells.byStratum().values().stream().flatMap(levels -> levels.values().stream())
+                .anyMatch(FixedHorizonBand::hasSingleUnitArm);
+    }
+
+    private static boolean hasSingleUnitArm(ObservedArms arms) {
+        return arms.treated().count() == 1 || arms.control().count() == 1;
+    }
+
+    private static String deltaBasis(VarianceBasis variance) {
+        return "Imbens-Manski (2004) interval with Stoye's (2009) width pre-test; delta-method standard errors from "
+                + variance.description() + "; valid at one planned look";
+    }
+}

@@ -1,0 +1,73 @@
+package dev.bracket.bands;
+
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.BoundCalculator;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeRange;
+import org.junit.jupiter.api.DisplayName;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.ValueSource;
+
+import java.util.Locale;
+import java.util.SplittableRandom;
+
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+/**
+ * The anytime band narrows toward the identified set as data accrue: its excess width over the
+ * identified interval shrinks at the sqrt(log n / n) rate of the normal-mixture boundary
+ * (Howard et al. 2021, Ann. Statist. 49(2), §3), while the identified set itself does not shrink.
+ */
+class AnytimeWidthTest {
+
+    private static final OutcomeRange UNIT = new OutcomeRange(0, 1);
+
+    @ParameterizedTest(name = "{0}")
+    @ValueSource(strings = {"worst-case", "mtr-positive,mts-positive", "optimizing-selection"})
+    @DisplayName("excess width shrinks at every tenfold increase of n from 100 to 100,000")
+    void shrinksTowardTheIdentifiedSet(String set) {
+        AssumptionSet assumptions = AssumptionSet.parse(set);
+        IdentifiedInterval truth = BoundCalculator.interval(0.3, 0.6, 0.45, UNIT, assumptions);
+        AnytimeBand anytime = new AnytimeBand(0.95);
+        SplittableRandom rng = new SplittableRandom(49_2021L);
+        long n1 = 0;
+        long n0 = 0;
+        double sum1 = 0;
+        double sum0 = 0;
+        double previousExcess = Double.POSITIVE_INFINITY;
+        double excessAtThousand = Double.NaN;
+        for (long n = 1; n <= 100_000; n++) {
+            if (rng.nextDouble() < 0.3) {
+                n1++;
+                sum1 += rng.nextDouble() < 0.6 ? 1 : 0;
+            } else {
+                n0++;
+                sum0 += rng.nextDouble() < 0.45 ? 1 : 0;
+            }
+            if (n == 100 || n == 1_000 || n == 10_000 || n == 100_000) {
+                ObservedArms arms = new ObservedArms(arm(n1, sum1), arm(n0, sum0));
+                ConfidenceBand band = anytime.ofCell(arms, UNIT, assumptions);
+                ConfidenceBand fixed = FixedHorizonBand.ofCell(arms, UNIT, assumptions, 0.95, VarianceBasis.SAMPLE);
+                double excess = band.width() - truth.width();
+                System.out.printf(Locale.ROOT, "%-26s n=%6d identified width %.4f, anytime band [%.4f, %.4f] width %.4f (excess %.4f),"
+                                + " fixed-horizon width %.4f%n",
+                        set, n, truth.width(), band.lower(), band.upper(), band.width(), excess, fixed.width());
+                assertTrue(band.lower() <= truth.lower() && band.upper() >= truth.upper(), "band must hold the identified set");
+                assertTrue(excess < previousExcess, "excess width must shrink, at n = " + n);
+                previousExcess = excess;
+                if (n == 1_000) {
+                    excessAtThousand = excess;
+                }
+            }
+        }
+        // 100 times the data: sqrt(100) = 10 less noise, minus the slowly growing log factor; require at least 5.
+        assertTrue(previousExcess < excessAtThousand / 5, "excess at 100,000 should be far below that at 1,000");
+    }
+
+    private static ArmStatistics arm(long n, double sum) {
+        double mean = sum / n;
+        return new ArmStatistics(n, mean, n * mean * (1 - mean), Double.NaN, Double.NaN);
+    }
+}

@@ -1,0 +1,69 @@
+package dev.bracket.bands;
+
+import org.apache.commons.math3.distribution.NormalDistribution;
+import org.junit.jupiter.api.DisplayName;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.CsvSource;
+import org.junit.jupiter.api.Test;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+class ImbensManskiTest {
+
+    private static final NormalDistribution N01 = new NormalDistribution(0, 1);
+
+    // Imbens & Manski (2004), Econometrica 72(6), §4: C solves Phi(C + sqrt(N) Delta / max sigma) - Phi(-C) = 1 - alpha.
+    // Expected values computed from that equation with an independent solver (SciPy brentq on scipy.stats.norm),
+    // and re-checked below by the residual of the equation with Commons Math's NormalDistribution.
+    @ParameterizedTest(name = "alpha = 0.05, sqrt(N) Delta / max sigma = {0}: C = {1}")
+    @CsvSource({
+            "0,    1.959964",
+            "0.5,  1.769713",
+            "1,    1.681477",
+            "2,    1.646146",
+            "1e6,  1.644854"})
+    @DisplayName("critical values match the paper's equation")
+    void criticalValuesAtFivePercent(double scaledWidth, double expected) {
+        double c = ImbensManski.criticalValue(0.95, scaledWidth);
+        assertEquals(expected, c, 1e-5);
+        double residual = N01.cumulativeProbability(c + scaledWidth) - N01.cumulativeProbability(-c) - 0.95;
+        assertEquals(0, residual, 1e-12);
+    }
+
+    @Test
+    @DisplayName("C runs from the two-sided to the one-sided normal quantile as the interval widens")
+    void criticalValueLimits() {
+        // z(0.975) and z(0.95) from Commons Math: point identification versus a long interval.
+        assertEquals(N01.inverseCumulativeProbability(0.975), ImbensManski.criticalValue(0.95, 0), 1e-10);
+        assertEquals(N01.inverseCumulativeProbability(0.95), ImbensManski.criticalValue(0.95, Double.POSITIVE_INFINITY), 1e-12);
+        double previous = Double.POSITIVE_INFINITY;
+        for (double x = 0; x <= 6; x += 0.25) {
+            double c = ImbensManski.criticalValue(0.95, x);
+            assertTrue(c < previous, "C must fall as the scaled width grows, at " + x);
+            previous = c;
+        }
+    }
+
+    @Test
+    @DisplayName("a short interval falls back to the two-sided value on both sides (Stoye's pre-test)")
+    void shortIntervalUsesConservativeValue() {
+        // Width 0.01 with standard errors 0.02 at N = 1000: width / se = 0.5 < sqrt(ln 1000) = 2.63,
+        // so the width is treated as 0 and C = z(0.975).
+        double[] band = ImbensManski.interval(0.0, 0.01, 0.02, 0.02, 0.95, 1000);
+        double z = N01.inverseCumulativeProbability(0.975);
+        assertEquals(-z * 0.02, band[0], 1e-12);
+        assertEquals(0.01 + z * 0.02, band[1], 1e-12);
+    }
+
+    @Test
+    @DisplayName("a long interval uses the Imbens-Manski value for its estimated width")
+    void longIntervalUsesEstimatedWidth() {
+        // Width 0.2, se 0.02: width / se = 10 > sqrt(ln 1000); C from the equation at x = 10.
+        double[] band = ImbensManski.interval(-0.1, 0.1, 0.02, 0.01, 0.95, 1000);
+        double c = ImbensManski.criticalValue(0.95, 10);
+        assertEquals(-0.1 - c * 0.02, band[0], 1e-12);
+        assertEquals(0.1 + c * 0.01, band[1], 1e-12);
+        assertEquals(N01.inverseCumulativeProbability(0.95), c, 1e-9);
+    }
+}
