@@ -128,7 +128,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         }
         Instant now = clock.instant();
         for (WindowSpec window : config.windows()) {
-            WindowReport report = WindowReport.current(study, window, merged);
+            WindowReport report = WindowReport.current(study, window, merged, config.bands());
             String key = study.id() + "/" + window.name();
             long revision = revisions.merge(key, 1L, Long::sum);
             try {

@@ -119,7 +119,7 @@ public final class Replay {
         List<WindowReport> reports = new ArrayList<>();
         for (StudyConfig study : config.studies()) {
             for (WindowSpec w : config.windows()) {
-                reports.add(WindowReport.current(study, w, merged));
+                reports.add(WindowReport.current(study, w, merged, config.bands()));
             }
         }
         return new Result(reports, accepted, new EnumMap<>(rejectedByReason), List.copyOf(rejected));

@@ -1,11 +1,12 @@
 package dev.bracket.stream;
 
+import dev.bracket.bands.BandSettings;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.StudyReport;
 
 /**
- * A study's bounds in one window, computed from merged partial statistics.
+ * A study's bounds in one window, computed from merged partial statistics, with confidence bands.
  *
  * @param start      first event time in the window (inclusive, epoch millis); {@link Long#MIN_VALUE} for cumulative
  * @param end        end of the window (exclusive); {@link Long#MAX_VALUE} for cumulative
@@ -18,7 +19,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
      * cumulative, the watermark's pane for tumbling, and the last {@code size / step} panes
      * ending with the watermark's pane for sliding.
      */
-    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials) {
+    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandSettings bands) {
         long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
@@ -29,7 +30,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         long from = start;
         long to = end;
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
-                study.range(), study.assumptions());
+                study.range(), study.assumptions(), bands);
         return new WindowReport(study, window, start, end, report, partials.late(study.id(), window.name()));
     }
 }
