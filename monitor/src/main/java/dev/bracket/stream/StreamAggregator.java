@@ -134,11 +134,12 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             EventParser parser = parsers.get(tp.topic());
             Counter accepted = metrics.accepted(tp.topic());
             long next = -1;
+            int used = 0;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 ParsedEvent e = parser.parse(r.value(), r.timestamp());
                 if (e.isUsable()) {
                     state.add(e);
-                    accepted.increment();
+                    used++;
                 } else {
                     reject(r, e);
                 }
@@ -147,6 +148,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
             }
+            accepted.increment(used);
         }
     }
 
