@@ -142,11 +142,11 @@ class MonitorCrashRecoveryTest {
             for (Path log : logs) {
                 assertThat(readLog(log)).contains("restored");
             }
+            child.destroy(); // SIGTERM: the last child stops gracefully
+            assertThat(child.waitFor(60, TimeUnit.SECONDS)).isTrue();
+            assertThat(readLog(logs.get(logs.size() - 1))).contains("stopped after a final commit");
         } finally {
-            child.destroy(); // SIGTERM: graceful stop
-            if (!child.waitFor(30, TimeUnit.SECONDS)) {
-                child.destroyForcibly();
-            }
+            child.destroyForcibly();
             producing.interrupt();
         }
     }
