@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.demo.DemoProducerCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 
@@ -13,7 +14,8 @@ import java.io.PrintWriter;
                 "Honest intervals for the average treatment effect when treatment was not randomised.",
                 "An interval is only as credible as its assumptions; results are statistical statements,",
                 "not clinical or operational advice."},
-        subcommands = {CalcCommand.class, MonitorCommand.class, ReplayCommand.class, CommandLine.HelpCommand.class})
+        subcommands = {CalcCommand.class, MonitorCommand.class, ReplayCommand.class, DemoCommand.class,
+                DemoProducerCommand.class, CommandLine.HelpCommand.class})
 public final class BracketCommand implements Runnable {
 
     @CommandLine.Spec

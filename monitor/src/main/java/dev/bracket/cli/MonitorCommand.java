@@ -8,7 +8,9 @@ import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.stream.Monitor;
 import dev.bracket.stream.StreamMetrics;
-import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
+import dev.bracket.web.WebServer;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
@@ -42,10 +44,25 @@ public final class MonitorCommand implements Callable<Integer> {
     @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
     Path configFile;
 
+    @Option(names = "--http-port", paramLabel = "PORT",
+            description = "Serve the web page, the JSON API and Prometheus /metrics on this port (0: any free port; default: no HTTP).")
+    Integer httpPort;
+
+    @Option(names = "--http-bind", paramLabel = "ADDRESS", defaultValue = "127.0.0.1",
+            description = "Address the HTTP server listens on; 0.0.0.0 for every interface (default: ${DEFAULT-VALUE}).")
+    String httpBind;
+
     @Override
     public Integer call() throws InterruptedException {
         BracketConfig config = ConfigFiles.load(configFile);
         PrintWriter out = spec.commandLine().getOut();
+        LatestReports latest = new LatestReports();
+        PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+        WebServer web = httpPort == null ? null : HttpServing.start(latest, registry, httpBind, httpPort, "--http-port");
+        if (web != null) {
+            out.println("web page, JSON API and Prometheus metrics at " + web.address() + " (metrics: " + web.address() + "metrics)");
+            out.flush();
+        }
         EmbeddedBroker broker = null;
         if (config.usesEmbeddedBroker()) {
             out.println("starting a Kafka broker in this process, data in " + config.brokerDataDir());
@@ -54,8 +71,7 @@ public final class MonitorCommand implements Callable<Integer> {
             config = config.withBootstrapServers(broker.bootstrapServers());
             out.println("Kafka broker listening at " + broker.bootstrapServers() + " (use it as bootstrap.servers)");
         }
-        LatestReports latest = new LatestReports();
-        Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), latest);
+        Monitor monitor = Monitor.start(config, registry, latest);
         out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
                 config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
                 config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),
@@ -68,6 +84,9 @@ public final class MonitorCommand implements Callable<Integer> {
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             stop.countDown();
             monitor.close();
+            if (web != null) {
+                web.close();
+            }
             if (ownBroker != null) {
                 ownBroker.close();
             }

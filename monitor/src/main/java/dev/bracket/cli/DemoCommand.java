@@ -1,0 +1,212 @@
+package dev.bracket.cli;
+
+import dev.bracket.broker.EmbeddedBroker;
+import dev.bracket.config.BracketConfig;
+import dev.bracket.demo.DemoProducer;
+import dev.bracket.demo.DemoProducerCommand;
+import dev.bracket.demo.DurationText;
+import dev.bracket.demo.RolloutScenario;
+import dev.bracket.demo.ScenarioFeed;
+import dev.bracket.demo.ScenarioSettings;
+import dev.bracket.report.LatestReports;
+import dev.bracket.report.PublishedReport;
+import dev.bracket.stream.Monitor;
+import dev.bracket.web.WebServer;
+import io.micrometer.prometheusmetrics.PrometheusConfig;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+import org.apache.kafka.clients.producer.Producer;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Option;
+
+import java.io.IOException;
+import java.io.PrintWriter;
+import java.io.UncheckedIOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.time.Clock;
+import java.time.Duration;
+import java.util.Comparator;
+import java.util.Optional;
+import java.util.concurrent.Callable;
+import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicBoolean;
+import java.util.stream.Stream;
+
+/**
+ * {@code bracket demo}: everything in one process. A Kafka broker, the simulated rollout sending
+ * events, the monitor reading them and the HTTP server, with a terminal view that puts each
+ * interval beside the true effect only a simulation knows.
+ */
+@Command(name = "demo",
+        mixinStandardHelpOptions = true,
+        description = {
+                "Runs everything in one process on invented data: a Kafka broker, a simulated rollout, the monitor and the web page.",
+                "On-call engineers turn a new setting on for hosts they choose, so comparing hosts with and without it is biased. "
+                        + "The terminal shows every assumption set's interval beside the true effect, which only a simulation knows.",
+                "Stops at the end of --duration or on Ctrl-C; nothing is kept afterwards."},
+        footer = {"",
+                "The scenario and its numbers are invented for demonstration. An interval is only as credible as its assumptions; "
+                        + "results are statistical statements, not clinical or operational advice."})
+public final class DemoCommand implements Callable<Integer> {
+
+    static final String STUDY = DemoProducerCommand.DEFAULT_STUDY;
+    private static final String TOPIC = "bracket-demo-events";
+    private static final Duration DRAIN_LIMIT = Duration.ofSeconds(20);
+
+    @CommandLine.Spec
+    CommandLine.Model.CommandSpec spec;
+
+    @Option(names = "--duration", paramLabel = "TIME", defaultValue = "2m", converter = DurationText.Converter.class,
+            description = "How long to send events, e.g. 90s or 10m (default: ${DEFAULT-VALUE}).")
+    Duration duration;
+
+    @Option(names = "--rate", paramLabel = "EVENTS_PER_S", defaultValue = "500",
+            description = "Simulated events per second (default: ${DEFAULT-VALUE}).")
+    double rate;
+
+    @Option(names = "--seed", paramLabel = "N", defaultValue = "1", description = "Fixes the simulated hosts and outcomes (default: ${DEFAULT-VALUE}).")
+    long seed;
+
+    @Option(names = "--port", paramLabel = "PORT", defaultValue = "8080",
+            description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
+    int port;
+
+    @Option(names = "--selection", paramLabel = "S", defaultValue = "" + ScenarioSettings.DEFAULT_SELECTION,
+            description = "How strongly engineers pick healthy hosts, -1 to 1; 0 is as if at random (default: ${DEFAULT-VALUE}).")
+    double selection;
+
+    @Option(names = "--effect", paramLabel = "E", defaultValue = "" + ScenarioSettings.DEFAULT_EFFECT,
+            description = "True average effect of the setting, in [-0.5, 0.5] (default: ${DEFAULT-VALUE}).")
+    double effect;
+
+    @Override
+    public Integer call() throws Exception {
+        RolloutScenario scenario = new RolloutScenario(settings());
+        if (!(rate > 0) || Double.isInfinite(rate)) {
+            throw new InputError("--rate must be a number of events per second above 0, was " + rate);
+        }
+        if (duration.isZero()) {
+            throw new InputError("--duration must be longer than zero");
+        }
+        PrintWriter out = spec.commandLine().getOut();
+        LatestReports latest = new LatestReports();
+        PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
+        // First the port, so a busy one fails before anything else starts.
+        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", port, "--port")) {
+            Path dataDir = Files.createTempDirectory("bracket-demo-");
+            AtomicBoolean stop = new AtomicBoolean();
+            CountDownLatch finished = new CountDownLatch(1);
+            Thread hook = new Thread(() -> {
+                stop.set(true);
+                awaitQuietly(finished, 60);
+            }, "bracket-demo-stop");
+            Runtime.getRuntime().addShutdownHook(hook);
+            try {
+                out.println("Starting a Kafka broker in this process (a few seconds)...");
+                out.flush();
+                try (EmbeddedBroker broker = EmbeddedBroker.start(dataDir, 0)) {
+                    run(scenario, broker, web, latest, stop, out);
+                }
+                out.println("Stopped; the demo's broker data are removed.");
+                out.flush();
+                return 0;
+            } finally {
+                deleteTree(dataDir);
+                finished.countDown();
+                try {
+                    Runtime.getRuntime().removeShutdownHook(hook);
+                } catch (IllegalStateException shuttingDown) {
+                    // Ctrl-C: the hook is running and returns now that we are done
+                }
+            }
+        }
+    }
+
+    private void run(RolloutScenario scenario, EmbeddedBroker broker, WebServer web, LatestReports latest,
+                     AtomicBoolean stop, PrintWriter out) throws InterruptedException {
+        BracketConfig config = BracketConfig.parse("bracket demo", configYaml()).withBootstrapServers(broker.bootstrapServers());
+        try (Monitor monitor = Monitor.start(config, web.registry(), latest);
+             Producer<String, String> kafka = DemoProducer.kafkaProducer(broker.bootstrapServers())) {
+            DemoProducer sender = new DemoProducer(kafka, TOPIC, rate, Clock.systemUTC());
+            Thread producerThread = new Thread(() -> sender.run(new ScenarioFeed(scenario, STUDY),
+                    new DemoProducer.Limits(0, duration), stop::get), "bracket-demo-producer");
+            TerminalView view = new TerminalView(out, System.console() != null);
+            long start = System.nanoTime();
+            producerThread.start();
+            while (producerThread.isAlive() && !stop.get()) {
+                view.show(DemoScreen.render(screen(scenario, sender, start, web, latest)));
+                producerThread.join(view.refreshMillis());
+            }
+            producerThread.join();
+            // Let the monitor take in the last events, so the final screen counts all of them.
+            long drainUntil = System.nanoTime() + DRAIN_LIMIT.toNanos();
+            while (!stop.get() && System.nanoTime() < drainUntil && reportedUnits(latest) < sender.acknowledged()) {
+                Thread.sleep(250);
+            }
+            view.show(DemoScreen.render(screen(scenario, sender, start, web, latest)));
+            out.printf("%nDemo %s: %,d events sent, %,d in the last report. Stopping the monitor and the broker...%n",
+                    stop.get() ? "interrupted" : "finished", sender.sent(), reportedUnits(latest));
+            out.flush();
+        }
+    }
+
+    private DemoScreen.State screen(RolloutScenario scenario, DemoProducer sender, long startNanos, WebServer web,
+                                    LatestReports latest) {
+        Optional<PublishedReport> report = latest.get(STUDY, "cumulative");
+        return new DemoScreen.State(STUDY, scenario.describe(), scenario.truth(), sender.sent(),
+                Duration.ofNanos(System.nanoTime() - startNanos), duration, web.address(), report);
+    }
+
+    private static long reportedUnits(LatestReports latest) {
+        return latest.get(STUDY, "cumulative").map(r -> r.report().pooled().total()).orElse(0L);
+    }
+
+    private ScenarioSettings settings() {
+        try {
+            return new ScenarioSettings(ScenarioSettings.DEFAULT_HOSTS, ScenarioSettings.DEFAULT_ROLLOUT_SHARE,
+                    selection, effect, false, seed);
+        } catch (IllegalArgumentException e) {
+            throw new InputError(e.getMessage().startsWith("selection") ? "--selection: " + e.getMessage()
+                    : e.getMessage().startsWith("effect") ? "--effect: " + e.getMessage() : e.getMessage());
+        }
+    }
+
+    /** The demo study: outcomes are shares in [0, 1], higher is better; every single assumption and one joint set. */
+    static String configYaml() {
+        return """
+                studies:
+                  - id: %s
+                    outcome: {min: 0, max: 1, better: higher}
+                    assume: [worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,
+                             optimizing-selection, sorting-on-gains, "mtr-negative,mts-positive"]
+                inputs:
+                  - topic: %s
+                topics:
+                  rejected: bracket-demo-rejected
+                  partials: bracket-demo-partials
+                  bounds: bracket-demo-bounds
+                commit-interval: 500ms
+                publish-interval: 500ms
+                group: bracket-demo
+                instance: demo
+                """.formatted(STUDY, TOPIC);
+    }
+
+    private static void awaitQuietly(CountDownLatch latch, long seconds) {
+        try {
+            latch.await(seconds, TimeUnit.SECONDS);
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        }
+    }
+
+    private static void deleteTree(Path dir) {
+        try (Stream<Path> paths = Files.walk(dir)) {
+            paths.sorted(Comparator.reverseOrder()).forEach(p -> p.toFile().delete());
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot remove the demo's broker data in " + dir, e);
+        }
+    }
+}

@@ -1,0 +1,112 @@
+package dev.bracket.web;
+
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.ConfidenceBand;
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.BoundStatus;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.report.BoundRow;
+import dev.bracket.report.LatestReports;
+import dev.bracket.report.PublishedReport;
+import io.micrometer.core.instrument.Gauge;
+import io.micrometer.core.instrument.MeterRegistry;
+import io.micrometer.core.instrument.Tags;
+
+import java.util.List;
+import java.util.Optional;
+import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
+import java.util.function.ToDoubleFunction;
+
+/**
+ * Prometheus gauges for the newest reports. Gauges read {@link LatestReports} when scraped, so
+ * they always show the latest computed values; this class only registers a gauge the first
+ * time its study, window and assumption set appear. Names (Prometheus form):
+ * <ul>
+ *   <li>{@code bracket_interval_lower}, {@code bracket_interval_upper}: ends of the identified
+ *       interval (NaN when it is refuted or there are not enough data)</li>
+ *   <li>{@code bracket_interval_sign}: +1 / -1 when the interval excludes zero, else 0</li>
+ *   <li>{@code bracket_interval_refuted}: 1 when the assumptions contradict the data</li>
+ *   <li>{@code bracket_band_lower}, {@code bracket_band_upper}: ends of each confidence band, with
+ *       labels {@code method} ({@code anytime}, {@code fixed-horizon}) and {@code level} (NaN
+ *       when the band is refuted or there are not enough data)</li>
+ *   <li>{@code bracket_arm_units}: units in the arm ({@code arm="treated"|"control"})</li>
+ *   <li>{@code bracket_report_timestamp_seconds}: when the report was computed (Unix time)</li>
+ * </ul>
+ * Labels: {@code study}, {@code window}, and {@code assumptions} (comma-separated identifiers).
+ */
+public final class StudyGauges {
+
+    private final MeterRegistry registry;
+    private final LatestReports latest;
+    private final Set<Object> registered = ConcurrentHashMap.newKeySet();
+
+    public StudyGauges(MeterRegistry registry, LatestReports latest) {
+        this.registry = registry;
+        this.latest = latest;
+    }
+
+    /** Registers the gauges of any study, window or assumption set seen for the first time. */
+    public void register(PublishedReport report) {
+        String study = report.study();
+        String window = report.window();
+        if (registered.add(study + '\u0000' + window)) {
+            Tags tags = Tags.of("study", study, "window", window);
+            gauge("bracket.arm.units", "Units observed in the arm", tags.and("arm", "treated"), null,
+                    r -> r.report().pooled().treated().count(), study, window);
+            gauge("bracket.arm.units", "Units observed in the arm", tags.and("arm", "control"), null,
+                    r -> r.report().pooled().control().count(), study, window);
+            gauge("bracket.report.timestamp", "When the report was computed, Unix time", tags, "seconds",
+                    r -> r.computedAt().toEpochMilli() / 1000.0, study, window);
+        }
+        for (BoundRow row : report.report().rows()) {
+            AssumptionSet set = row.assumptions();
+            if (registered.add(new ReportHistory.SeriesKey(study, window, set))) {
+                Tags tags = Tags.of("study", study, "window", window, "assumptions", set.toString());
+                intervalGauge("bracket.interval.lower", "Lower end of the identified interval of the ATE", tags,
+                        IdentifiedInterval::lower, study, window, set);
+                intervalGauge("bracket.interval.upper", "Upper end of the identified interval of the ATE", tags,
+                        IdentifiedInterval::upper, study, window, set);
+                intervalGauge("bracket.interval.sign", "+1 or -1 when the interval excludes zero, else 0", tags,
+                        IdentifiedInterval::identifiedSign, study, window, set);
+                intervalGauge("bracket.interval.refuted", "1 when the assumptions contradict the data", tags,
+                        iv -> iv.status() == BoundStatus.REFUTED ? 1 : 0, study, window, set);
+            }
+            for (ConfidenceBand band : row.bands()) {
+                BandMethod method = band.method();
+                double level = band.level();
+                if (registered.add(List.of(study, window, set, method, level))) {
+                    Tags tags = Tags.of("study", study, "window", window, "assumptions", set.toString(),
+                            "method", method.id(), "level", Double.toString(level));
+                    gauge("bracket.band.lower", "Lower end of the confidence band around the interval", tags, null,
+                            r -> band(r, set, method, level).map(ConfidenceBand::lower).orElse(Double.NaN), study, window);
+                    gauge("bracket.band.upper", "Upper end of the confidence band around the interval", tags, null,
+                            r -> band(r, set, method, level).map(ConfidenceBand::upper).orElse(Double.NaN), study, window);
+                }
+            }
+        }
+    }
+
+    private static Optional<ConfidenceBand> band(PublishedReport report, AssumptionSet set, BandMethod method, double level) {
+        return report.report().rows().stream().filter(r -> r.assumptions().equals(set)).findFirst()
+                .flatMap(row -> row.bands().stream().filter(b -> b.method() == method && b.level() == level).findFirst());
+    }
+
+    private void intervalGauge(String name, String help, Tags tags, ToDoubleFunction<IdentifiedInterval> value,
+                               String study, String window, AssumptionSet set) {
+        gauge(name, help, tags, null, r -> interval(r, set).map(value::applyAsDouble).orElse(Double.NaN), study, window);
+    }
+
+    private void gauge(String name, String help, Tags tags, String unit, ToDoubleFunction<PublishedReport> value,
+                       String study, String window) {
+        Gauge.builder(name, latest, l -> l.get(study, window).map(value::applyAsDouble).orElse(Double.NaN))
+                .description(help)
+                .tags(tags)
+                .baseUnit(unit)
+                .register(registry);
+    }
+
+    private static Optional<IdentifiedInterval> interval(PublishedReport report, AssumptionSet set) {
+        return report.report().rows().stream().filter(r -> r.assumptions().equals(set)).findFirst().map(BoundRow::interval);
+    }
+}

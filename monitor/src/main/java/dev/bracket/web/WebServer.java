@@ -1,0 +1,139 @@
+package dev.bracket.web;
+
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.report.LatestReports;
+import dev.bracket.report.PublishedReport;
+import dev.bracket.report.ReportJson;
+import io.javalin.Javalin;
+import io.javalin.http.Context;
+import io.javalin.http.HttpStatus;
+import io.javalin.http.staticfiles.Location;
+import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
+
+import java.util.Optional;
+import java.util.concurrent.Executors;
+import java.util.concurrent.ScheduledExecutorService;
+import java.util.concurrent.TimeUnit;
+
+/**
+ * The monitor's HTTP face: the JSON API, Prometheus metrics and the web page with the
+ * intervals over time. Reads the reports the bound updater publishes into {@link LatestReports};
+ * a sampler copies each new report into the bounded {@link ReportHistory} and registers its
+ * gauges, once a second or when {@link #refresh()} is called.
+ *
+ * <pre>
+ *   GET /                         the page (intervals over time, cautions)
+ *   GET /api/studies              {@link StudyDocuments#list}
+ *   GET /api/studies/{id}         {@link StudyDocuments#study}; 404 with {"error": ...} for an unknown study
+ *   GET /api/studies/{id}/history {@link StudyDocuments#history}
+ *   GET /metrics                  Prometheus text: the registry passed in, with {@link StudyGauges}
+ * </pre>
+ */
+public final class WebServer implements AutoCloseable {
+
+    /** Points kept per series: an hour at one report a second. */
+    public static final int DEFAULT_HISTORY = 3600;
+
+    private static final String JSON = "application/json";
+    private static final String PROMETHEUS_TEXT = "text/plain; version=0.0.4; charset=utf-8";
+
+    private final LatestReports latest;
+    private final PrometheusMeterRegistry registry;
+    private final ReportHistory history;
+    private final StudyGauges gauges;
+    private final Javalin app;
+    private ScheduledExecutorService sampler;
+    private String host;
+
+    /**
+     * @param latest   where the bound updater publishes reports
+     * @param registry the registry the rest of the monitor records its counters in; the
+     *                 interval gauges are added to it and {@code /metrics} serves all of it
+     */
+    public WebServer(LatestReports latest, PrometheusMeterRegistry registry, int historyCapacity) {
+        this.latest = latest;
+        this.registry = registry;
+        this.history = new ReportHistory(historyCapacity);
+        this.gauges = new StudyGauges(registry, latest);
+        this.app = Javalin.create(config -> {
+            config.showJavalinBanner = false;
+            config.staticFiles.add("/dev/bracket/web/page", Location.CLASSPATH);
+            config.staticFiles.enableWebjars();
+        });
+        app.get("/api/studies", ctx -> json(ctx, StudyDocuments.list(latest)));
+        app.get("/api/studies/{id}", ctx -> found(ctx, StudyDocuments.study(latest, ctx.pathParam("id"))));
+        app.get("/api/studies/{id}/history", ctx -> {
+            refresh();
+            found(ctx, StudyDocuments.history(history, ctx.pathParam("id")));
+        });
+        app.get("/metrics", ctx -> {
+            refresh();
+            ctx.contentType(PROMETHEUS_TEXT).result(registry.scrape());
+        });
+    }
+
+    /** Binds to {@code host:port} (port 0 picks a free one) and starts sampling reports every second. */
+    public WebServer start(String host, int port) {
+        this.host = host;
+        app.start(host, port);
+        sampler = Executors.newSingleThreadScheduledExecutor(r -> {
+            Thread t = new Thread(r, "bracket-web-sampler");
+            t.setDaemon(true);
+            return t;
+        });
+        sampler.scheduleAtFixedRate(this::refresh, 0, 1, TimeUnit.SECONDS);
+        return this;
+    }
+
+    /**
+     * Copies every report not seen yet into the history and registers its gauges. Also run
+     * before serving history and metrics, so a report published a moment ago is included.
+     */
+    public synchronized void refresh() {
+        for (String study : latest.studies()) {
+            for (PublishedReport r : latest.study(study)) {
+                gauges.register(r);
+                history.record(r);
+            }
+        }
+    }
+
+    /** The bound port, after {@link #start}. */
+    public int port() {
+        return app.port();
+    }
+
+    /** Where people open the page, e.g. {@code http://127.0.0.1:8080/}. */
+    public String address() {
+        String shown = host.equals("0.0.0.0") || host.equals("::") ? "localhost" : host;
+        return "http://" + shown + ":" + port() + "/";
+    }
+
+    public PrometheusMeterRegistry registry() {
+        return registry;
+    }
+
+    @Override
+    public void close() {
+        if (sampler != null) {
+            sampler.shutdownNow();
+        }
+        app.stop();
+    }
+
+    private void found(Context ctx, Optional<? extends JsonNode> document) throws JsonProcessingException {
+        if (document.isPresent()) {
+            json(ctx, document.get());
+        } else {
+            String id = ctx.pathParam("id");
+            ctx.status(HttpStatus.NOT_FOUND);
+            json(ctx, StudyDocuments.error("no study '" + id + "' has a report yet; known studies: "
+                    + (latest.studies().isEmpty() ? "none" : String.join(", ", latest.studies()))));
+        }
+    }
+
+    private static void json(Context ctx, JsonNode node) throws JsonProcessingException {
+        ctx.contentType(JSON).result(ReportJson.mapper().writeValueAsString(node));
+    }
+}
