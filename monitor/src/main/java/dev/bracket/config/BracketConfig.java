@@ -41,6 +41,7 @@ import java.util.regex.Pattern;
  * publish-interval:   least time between two published reports of one study
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
+ * threads:            aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
@@ -58,6 +59,7 @@ public record BracketConfig(
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
+        int threads,
         String group,
         String instance,
         Map<String, String> kafka,
@@ -68,7 +70,7 @@ public record BracketConfig(
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "group", "instance", "kafka", "broker");
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker");
 
     public BracketConfig {
         studies = List.copyOf(studies);
@@ -129,13 +131,17 @@ public record BracketConfig(
         if (grace.isNegative()) {
             throw root.get("grace").fail("must not be negative");
         }
+        long threads = root.get("threads").positiveLong(1);
+        if (threads > 64) {
+            throw root.get("threads").fail("must be at most 64");
+        }
         ConfigNode broker = root.get("broker").onlyKeys(Set.of("data-dir", "port"));
         long port = broker.get("port").isMissing() ? 0 : broker.get("port").positiveLong(0);
         if (port > 65_535) {
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes,
+                bands, commit, publish, progress, (int) maxBytes, (int) threads,
                 name(root.get("group"), "bracket"),
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
@@ -153,7 +159,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, group, instance, k, brokerDataDir, brokerPort);
+                progressInterval, maxEventBytes, threads, group, instance, k, brokerDataDir, brokerPort);
     }
 
     /** Confidence level of the published bands. */

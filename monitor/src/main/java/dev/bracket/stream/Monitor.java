@@ -7,27 +7,31 @@ import org.apache.kafka.clients.admin.Admin;
 
 import java.time.Clock;
 import java.time.Duration;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.concurrent.atomic.AtomicBoolean;
 
 /**
- * A running monitor instance against a Kafka cluster: topic setup, one aggregation group
- * member and one bound updater, each on its own thread. Start with {@link #start}; stop with
- * {@link #close} (final commit, then clients closed).
+ * A running monitor instance against a Kafka cluster: topic setup, {@code threads} aggregation
+ * group members and one bound updater, each on its own thread. Start with {@link #start}; stop
+ * with {@link #close} (final commits, then clients closed).
  */
 public final class Monitor implements AutoCloseable {
 
-    private final StreamAggregator aggregator;
+    private final List<StreamAggregator> aggregators;
     private final BoundUpdater updater;
     private final StreamMetrics metrics;
-    private final Thread aggregatorThread;
-    private final Thread updaterThread;
-    private final java.util.concurrent.atomic.AtomicBoolean closed = new java.util.concurrent.atomic.AtomicBoolean();
+    private final List<Thread> threads = new ArrayList<>();
+    private final AtomicBoolean closed = new AtomicBoolean();
 
-    private Monitor(StreamAggregator aggregator, BoundUpdater updater, StreamMetrics metrics) {
-        this.aggregator = aggregator;
+    private Monitor(List<StreamAggregator> aggregators, BoundUpdater updater, StreamMetrics metrics) {
+        this.aggregators = List.copyOf(aggregators);
         this.updater = updater;
         this.metrics = metrics;
-        this.aggregatorThread = new Thread(aggregator, "bracket-aggregator");
-        this.updaterThread = new Thread(updater, "bracket-updater");
+        for (int i = 0; i < aggregators.size(); i++) {
+            threads.add(new Thread(aggregators.get(i), "bracket-aggregator-" + i));
+        }
+        threads.add(new Thread(updater, "bracket-updater"));
     }
 
     /**
@@ -47,10 +51,12 @@ public final class Monitor implements AutoCloseable {
             partials = TopicSetup.ensureTopics(admin, config);
         }
         StreamMetrics metrics = new StreamMetrics(registry);
-        Monitor m = new Monitor(new StreamAggregator(clients, metrics, partials),
-                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC()), metrics);
-        m.aggregatorThread.start();
-        m.updaterThread.start();
+        List<StreamAggregator> aggregators = new ArrayList<>();
+        for (int member = 0; member < config.threads(); member++) {
+            aggregators.add(new StreamAggregator(clients, metrics, partials, member));
+        }
+        Monitor m = new Monitor(aggregators, new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC()), metrics);
+        m.threads.forEach(Thread::start);
         return m;
     }
 
@@ -68,17 +74,14 @@ public final class Monitor implements AutoCloseable {
         if (!closed.compareAndSet(false, true)) {
             return;
         }
-        aggregator.close(Duration.ofSeconds(30));
+        aggregators.forEach(a -> a.close(Duration.ofSeconds(30)));
         updater.close();
-        join(aggregatorThread);
-        join(updaterThread);
-    }
-
-    private static void join(Thread t) {
-        try {
-            t.join(Duration.ofSeconds(30).toMillis());
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
+        for (Thread t : threads) {
+            try {
+                t.join(Duration.ofSeconds(30).toMillis());
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+            }
         }
     }
 }

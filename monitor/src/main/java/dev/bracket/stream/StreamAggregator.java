@@ -60,6 +60,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
+    private final int member;
+    private int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
@@ -72,11 +74,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private boolean needsReset;
     private long lastCommitNanos;
 
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions) {
+    /**
+     * @param member this member's number within the instance (0 for the first); part of its transactional id
+     */
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member) {
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
+        this.member = member;
         for (InputTopic in : config.inputs()) {
             parsers.put(in.topic(), new EventParser(config.studies(), in.fields(), config.maxEventBytes()));
         }
@@ -121,6 +127,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
         } finally {
             closeClients();
+            states.clear();
+            countOwned();
             stopped.countDown();
         }
     }
@@ -254,7 +262,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     }
 
     private KafkaProducer<byte[], byte[]> newProducer() {
-        KafkaProducer<byte[], byte[]> p = clients.transactionalProducer();
+        KafkaProducer<byte[], byte[]> p = clients.transactionalProducer(member);
         p.initTransactions();
         return p;
     }
@@ -295,7 +303,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
         }
         metrics.restored(set.size());
-        metrics.assignedPartitions(states.size());
+        countOwned();
         LOG.info("restored {} partition(s) {} from '{}'", set.size(), set, config.topics().partials());
     }
 
@@ -309,7 +317,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 states.remove(tp);
                 pendingOffsets.remove(tp);
             });
-            metrics.assignedPartitions(states.size());
+            countOwned();
         }
 
         @Override
@@ -335,8 +343,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 pendingOffsets.remove(tp);
             });
             needsReset = true;
-            metrics.assignedPartitions(states.size());
+            countOwned();
         }
+    }
+
+    private void countOwned() {
+        metrics.partitionsOwnedChanged(states.size() - owned);
+        owned = states.size();
     }
 
     private void pause() {

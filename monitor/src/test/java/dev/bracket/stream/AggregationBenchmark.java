@@ -57,22 +57,28 @@ public final class AggregationBenchmark {
             long bytes = produce(broker, events);
             System.out.printf(Locale.ROOT, "%,d events, %.0f bytes each on average, 3 partitions%n", events, (double) bytes / events);
             double[] plain = new double[runs];
-            double[] monitor = new double[runs];
+            double[] one = new double[runs];
+            double[] two = new double[runs];
             for (int r = 0; r < runs; r++) {
                 plain[r] = plainConsumerParsing(broker, events);
-                monitor[r] = aggregator(broker, events, r);
-                System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f records/s; monitor aggregation (exactly-once) %,.0f records/s%n",
-                        r + 1, plain[r], monitor[r]);
+                one[r] = aggregator(broker, events, "bench-1-" + r, 1);
+                two[r] = aggregator(broker, events, "bench-2-" + r, 2);
+                System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f records/s; monitor (exactly-once) threads=1 %,.0f/s, threads=2 %,.0f/s%n",
+                        r + 1, plain[r], one[r], two[r]);
             }
             double p = median(plain);
-            double m = median(monitor);
-            System.out.printf(Locale.ROOT, "median: plain %,.0f/s, monitor %,.0f/s, ratio %.2f (target >= 0.80)%n", p, m, m / p);
+            System.out.printf(Locale.ROOT, "median: plain %,.0f/s; threads=1 %,.0f/s (ratio %.2f); threads=2 %,.0f/s (ratio %.2f); target >= 0.80%n",
+                    p, median(one), median(one) / p, median(two), median(two) / p);
         } finally {
             deleteQuietly(dir);
         }
     }
 
     private static BracketConfig config(EmbeddedBroker broker, String group) {
+        return config(broker, group, 1);
+    }
+
+    private static BracketConfig config(EmbeddedBroker broker, String group, int threads) {
         return BracketConfig.parse("bench.yaml", """
                 studies:
                   - id: checkout
@@ -88,11 +94,12 @@ public final class AggregationBenchmark {
                   - {name: hourly, kind: tumbling, size: 1h}
                 commit-interval: 1s
                 publish-interval: 1s
+                threads: %d
                 group: %s
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(TOPIC, group, group, broker.bootstrapServers()));
+                """.formatted(TOPIC, threads, group, group, broker.bootstrapServers()));
     }
 
     private static long produce(EmbeddedBroker broker, int events) {
@@ -141,9 +148,8 @@ public final class AggregationBenchmark {
      * The monitor's aggregator in a fresh group: records per second from owning all partitions to
      * having processed every record (the last commit follows within one commit interval).
      */
-    private static double aggregator(EmbeddedBroker broker, int events, int run) throws Exception {
-        String group = "bench-" + (run + 1);
-        BracketConfig config = config(broker, group);
+    private static double aggregator(EmbeddedBroker broker, int events, String group, int threads) throws Exception {
+        BracketConfig config = config(broker, group, threads);
         try (Admin admin = new KafkaClients(config).admin();
              Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports())) {
             while (monitor.assignedPartitions() < 3) {

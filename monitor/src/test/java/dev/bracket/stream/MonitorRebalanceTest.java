@@ -24,8 +24,8 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.awaitility.Awaitility.await;
 
 /**
- * Two instances of one consumer group share the input partitions: the second joins while events
- * stream, then the first leaves; the partitions move with their statistics and the final counts
+ * Two instances of one consumer group share the input partitions: the second (running two
+ * aggregation members) joins while events stream, then the first leaves; the partitions move with their statistics and the final counts
  * are exact.
  */
 class MonitorRebalanceTest {
@@ -44,7 +44,7 @@ class MonitorRebalanceTest {
         broker.close();
     }
 
-    private static BracketConfig config(String instance) {
+    private static BracketConfig config(String instance, int threads) {
         return BracketConfig.parse(instance + ".yaml", """
                 studies:
                   - id: checkout
@@ -59,11 +59,12 @@ class MonitorRebalanceTest {
                 commit-interval: 200ms
                 publish-interval: 200ms
                 max-event-bytes: 1024
+                threads: %d
                 group: rb
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(instance, broker.bootstrapServers()));
+                """.formatted(threads, instance, broker.bootstrapServers()));
     }
 
     @Test
@@ -72,8 +73,8 @@ class MonitorRebalanceTest {
         List<TestEvents.Event> events = TestEvents.stream(60_000, 0, 31);
         long checkout = events.stream().filter(e -> e.study().equals("checkout")).count();
         long registry = events.size() - checkout;
-        try (Admin admin = new KafkaClients(config("a")).admin()) {
-            TopicSetup.ensureTopics(admin, config("a"));
+        try (Admin admin = new KafkaClients(config("a", 1)).admin()) {
+            TopicSetup.ensureTopics(admin, config("a", 1));
         }
         AtomicInteger sent = new AtomicInteger();
         Thread producing = new Thread(() -> {
@@ -95,12 +96,12 @@ class MonitorRebalanceTest {
         }, "test-producer");
 
         LatestReports reportsB = new LatestReports();
-        Monitor a = Monitor.start(config("a"), new SimpleMeterRegistry(), new LatestReports());
+        Monitor a = Monitor.start(config("a", 1), new SimpleMeterRegistry(), new LatestReports());
         Monitor b = null;
         try {
             producing.start();
             await().atMost(Duration.ofSeconds(60)).until(() -> a.assignedPartitions() == 4 && sent.get() >= 15_000);
-            b = Monitor.start(config("b"), new SimpleMeterRegistry(), reportsB);
+            b = Monitor.start(config("b", 2), new SimpleMeterRegistry(), reportsB);
             Monitor joined = b;
             // Cooperative rebalance: b takes over some of a's partitions, with their statistics.
             await().atMost(Duration.ofSeconds(60)).until(() -> joined.assignedPartitions() > 0 && a.assignedPartitions() > 0
