@@ -83,6 +83,7 @@ public final class MonitorCommand implements Callable<Integer> {
         CountDownLatch stop = new CountDownLatch(1);
         CountDownLatch stopped = new CountDownLatch(1);
         EmbeddedBroker ownBroker = broker;
+        // SIGTERM and Ctrl-C run this hook; the JVM halts when it returns, so it reports itself.
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             stop.countDown();
             monitor.close();
@@ -92,6 +93,8 @@ public final class MonitorCommand implements Callable<Integer> {
             if (ownBroker != null) {
                 ownBroker.close();
             }
+            out.println("stopped after a final commit");
+            out.flush();
             stopped.countDown();
         }, "bracket-shutdown"));
         long every = config.progressInterval().toMillis();
@@ -100,8 +103,6 @@ public final class MonitorCommand implements Callable<Integer> {
             out.flush();
         }
         stopped.await(60, TimeUnit.SECONDS);
-        out.println("stopped after a final commit");
-        out.flush();
         return 0;
     }
 

@@ -1,6 +1,10 @@
 package dev.bracket.config;
 
 import dev.bracket.alerts.AlertOptions;
+import dev.bracket.bands.AnytimeBand;
+import dev.bracket.bands.BandMethod;
+import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.OutcomeRange;
@@ -12,6 +16,7 @@ import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.EnumSet;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -32,10 +37,12 @@ import java.util.regex.Pattern;
  * windows:            list of {name, kind: tumbling|sliding, size, step}; "cumulative" is always kept
  * grace:              how late (event time) an event may be and still count in its window pane
  * band-level:         confidence level of published bands
+ * bands:              which bands to publish: both (default), fixed, anytime or none
  * commit-interval:    how often partial statistics and offsets are committed (one transaction)
  * publish-interval:   least time between two published reports of one study
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
+ * threads:            aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
@@ -49,11 +56,12 @@ public record BracketConfig(
         TopicNames topics,
         List<WindowSpec> windows,
         Duration grace,
-        double bandLevel,
+        BandSettings bands,
         Duration commitInterval,
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
+        int threads,
         String group,
         String instance,
         Map<String, String> kafka,
@@ -64,8 +72,8 @@ public record BracketConfig(
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
-    private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "group", "instance", "kafka", "broker",
+    private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -108,6 +116,14 @@ public record BracketConfig(
         if (!(bandLevel > 0 && bandLevel < 1)) {
             throw root.get("band-level").fail("must lie strictly between 0 and 1, e.g. 0.95");
         }
+        Set<BandMethod> methods = switch (root.get("bands").text("both")) {
+            case "both" -> EnumSet.allOf(BandMethod.class);
+            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
+            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
+            case "none" -> EnumSet.noneOf(BandMethod.class);
+            default -> throw root.get("bands").fail("must be both, fixed, anytime or none");
+        };
+        BandSettings bands = new BandSettings(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = root.get("max-event-bytes").positiveLong(65_536);
         if (maxBytes > 16 * 1024 * 1024) {
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
@@ -119,13 +135,17 @@ public record BracketConfig(
         if (grace.isNegative()) {
             throw root.get("grace").fail("must not be negative");
         }
+        long threads = root.get("threads").positiveLong(1);
+        if (threads > 64) {
+            throw root.get("threads").fail("must be at most 64");
+        }
         ConfigNode broker = root.get("broker").onlyKeys(Set.of("data-dir", "port"));
         long port = broker.get("port").isMissing() ? 0 : broker.get("port").positiveLong(0);
         if (port > 65_535) {
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bandLevel, commit, publish, progress, (int) maxBytes,
+                bands, commit, publish, progress, (int) maxBytes, (int) threads,
                 name(root.get("group"), "bracket"),
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
@@ -142,8 +162,13 @@ public record BracketConfig(
     public BracketConfig withBootstrapServers(String servers) {
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
-        return new BracketConfig(source, studies, inputs, topics, windows, grace, bandLevel, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, group, instance, k, brokerDataDir, brokerPort, alerts);
+        return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
+                progressInterval, maxEventBytes, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+    }
+
+    /** Confidence level of the published bands. */
+    public double bandLevel() {
+        return bands.level();
     }
 
     public Optional<StudyConfig> study(String id) {

@@ -1,7 +1,6 @@
 package dev.bracket.stream;
 
 import com.fasterxml.jackson.core.JsonProcessingException;
-import dev.bracket.bands.BandSettings;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
@@ -36,8 +35,7 @@ import java.util.function.Consumer;
  * Reads the partials topic (committed records only), keeps the latest statistics of every
  * source partition per cell, and recomputes a study's reports when its numbers changed, at most
  * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
- * {@link ReportDocument} keyed {@code study/window} (with both confidence bands at the configured
- * level) and into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on its own thread.
+ * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on its own thread.
  */
 public final class BoundUpdater implements Runnable, AutoCloseable {
 
@@ -55,7 +53,6 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final Map<String, Long> revisions = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     private final boolean windowed;
-    private final BandSettings bands;
     private final Consumer<PublishedReport> listener;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
@@ -71,7 +68,6 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock,
                         Consumer<PublishedReport> listener) {
         this.config = clients.config();
-        this.bands = BandSettings.both(config.bandLevel());
         this.listener = listener;
         this.clients = clients;
         this.metrics = metrics;
@@ -143,7 +139,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         }
         Instant now = clock.instant();
         for (WindowSpec window : config.windows()) {
-            WindowReport report = WindowReport.current(study, window, merged, bands);
+            WindowReport report = WindowReport.current(study, window, merged, config.bands());
             String key = study.id() + "/" + window.name();
             long revision = revisions.merge(key, 1L, Long::sum);
             try {

@@ -60,15 +60,15 @@ public final class KafkaClients {
     }
 
     /**
-     * The aggregator's producer. Its transactional id is stable per (group, instance), so a
+     * The producer of one aggregation member. Its transactional id is stable per (group, instance, member), so a
      * restarted instance aborts its predecessor's open transaction at once instead of waiting
      * for the transaction timeout.
      */
-    public KafkaProducer<byte[], byte[]> transactionalProducer() {
+    public KafkaProducer<byte[], byte[]> transactionalProducer(int member) {
         Map<String, Object> p = base();
         p.putIfAbsent(ProducerConfig.TRANSACTION_TIMEOUT_CONFIG, 10_000);
         p.putIfAbsent(ProducerConfig.LINGER_MS_CONFIG, 5);
-        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, transactionalId());
+        p.put(ProducerConfig.TRANSACTIONAL_ID_CONFIG, transactionalId(member));
         p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
         p.put(ProducerConfig.ACKS_CONFIG, "all");
         return new KafkaProducer<>(p, new ByteArraySerializer(), new ByteArraySerializer());
@@ -84,8 +84,9 @@ public final class KafkaClients {
         return new KafkaProducer<>(p, new ByteArraySerializer(), new ByteArraySerializer());
     }
 
-    public String transactionalId() {
-        return "bracket-" + config.group() + "-" + config.instance();
+    /** {@code bracket-GROUP-INSTANCE}, with {@code -N} for the instance's further members (threads). */
+    public String transactionalId(int member) {
+        return "bracket-" + config.group() + "-" + config.instance() + (member == 0 ? "" : "-" + member);
     }
 
     private Map<String, Object> base() {

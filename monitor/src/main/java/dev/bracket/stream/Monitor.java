@@ -9,31 +9,36 @@ import org.apache.kafka.clients.admin.Admin;
 
 import java.time.Clock;
 import java.time.Duration;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Optional;
+import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.stream.Collectors;
 
 /**
- * A running monitor instance against a Kafka cluster: topic setup, one aggregation group
- * member and one bound updater, each on its own thread, and the alert evaluator fed by both
- * (state restored from the alerts topic at start). Start with {@link #start}; stop with
- * {@link #close} (final commit, then clients closed, then alert sinks drained).
+ * A running monitor instance against a Kafka cluster: topic setup, {@code threads} aggregation
+ * group members and one bound updater, each on its own thread, and the alert evaluator fed by
+ * both (state restored from the alerts topic at start). Start with {@link #start}; stop with
+ * {@link #close} (final commits, then clients closed, then alert sinks drained).
  */
 public final class Monitor implements AutoCloseable {
 
-    private final StreamAggregator aggregator;
+    private final List<StreamAggregator> aggregators;
     private final BoundUpdater updater;
     private final StreamMetrics metrics;
     private final AlertService alerts;
-    private final Thread aggregatorThread;
-    private final Thread updaterThread;
+    private final List<Thread> threads = new ArrayList<>();
+    private final AtomicBoolean closed = new AtomicBoolean();
 
-    private Monitor(StreamAggregator aggregator, BoundUpdater updater, StreamMetrics metrics, AlertService alerts) {
-        this.aggregator = aggregator;
+    private Monitor(List<StreamAggregator> aggregators, BoundUpdater updater, StreamMetrics metrics, AlertService alerts) {
+        this.aggregators = List.copyOf(aggregators);
         this.updater = updater;
         this.metrics = metrics;
         this.alerts = alerts;
-        this.aggregatorThread = new Thread(aggregator, "bracket-aggregator");
-        this.updaterThread = new Thread(updater, "bracket-updater");
+        for (int i = 0; i < aggregators.size(); i++) {
+            threads.add(new Thread(aggregators.get(i), "bracket-aggregator-" + i));
+        }
+        threads.add(new Thread(updater, "bracket-updater"));
     }
 
     /**
@@ -56,10 +61,13 @@ public final class Monitor implements AutoCloseable {
         AlertService alerts = AlertService.start(
                 config.studies().stream().collect(Collectors.toMap(StudyConfig::id, StudyConfig::alerts)),
                 config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
-        Monitor m = new Monitor(new StreamAggregator(clients, metrics, partials, alerts::recordEvents),
+        List<StreamAggregator> aggregators = new ArrayList<>();
+        for (int member = 0; member < config.threads(); member++) {
+            aggregators.add(new StreamAggregator(clients, metrics, partials, member, alerts::recordEvents));
+        }
+        Monitor m = new Monitor(aggregators,
                 new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport), metrics, alerts);
-        m.aggregatorThread.start();
-        m.updaterThread.start();
+        m.threads.forEach(Thread::start);
         return m;
     }
 
@@ -79,18 +87,18 @@ public final class Monitor implements AutoCloseable {
 
     @Override
     public void close() {
-        aggregator.close(Duration.ofSeconds(30));
-        updater.close();
-        join(aggregatorThread);
-        join(updaterThread);
-        alerts.close();
-    }
-
-    private static void join(Thread t) {
-        try {
-            t.join(Duration.ofSeconds(30).toMillis());
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
+        if (!closed.compareAndSet(false, true)) {
+            return;
         }
+        aggregators.forEach(a -> a.close(Duration.ofSeconds(30)));
+        updater.close();
+        for (Thread t : threads) {
+            try {
+                t.join(Duration.ofSeconds(30).toMillis());
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+            }
+        }
+        alerts.close();
     }
 }

@@ -1,6 +1,5 @@
 package dev.bracket.stream;
 
-import dev.bracket.bands.BandSettings;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -118,10 +117,9 @@ public final class Replay {
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();
-        BandSettings bands = BandSettings.both(config.bandLevel()); // as the live bound updater publishes
         for (StudyConfig study : config.studies()) {
             for (WindowSpec w : config.windows()) {
-                reports.add(WindowReport.current(study, w, merged, bands));
+                reports.add(WindowReport.current(study, w, merged, config.bands()));
             }
         }
         return new Result(reports, accepted, new EnumMap<>(rejectedByReason), List.copyOf(rejected));

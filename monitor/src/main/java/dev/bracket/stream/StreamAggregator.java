@@ -61,6 +61,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final StreamMetrics metrics;
     private final int partialsPartitions;
     private final StudyEventCounts eventCounts;
+    private final int member;
+    private int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
@@ -73,17 +75,18 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private boolean needsReset;
     private long lastCommitNanos;
 
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions) {
-        this(clients, metrics, partialsPartitions, StudyEventCounts.NONE);
-    }
-
-    /** @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality) */
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, StudyEventCounts eventCounts) {
+    /**
+     * @param member      this member's number within the instance (0 for the first); part of its transactional id
+     * @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality)
+     */
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member,
+                            StudyEventCounts eventCounts) {
         this.eventCounts = eventCounts;
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
+        this.member = member;
         for (InputTopic in : config.inputs()) {
             parsers.put(in.topic(), new EventParser(config.studies(), in.fields(), config.maxEventBytes()));
         }
@@ -128,6 +131,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
         } finally {
             closeClients();
+            states.clear();
+            countOwned();
             stopped.countDown();
         }
     }
@@ -142,12 +147,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             EventParser parser = parsers.get(tp.topic());
             Counter accepted = metrics.accepted(tp.topic());
             long next = -1;
+            int used = 0;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 ParsedEvent e = parser.parse(r.value(), r.timestamp());
                 long[] counts = e.study() == null ? null : perStudy.computeIfAbsent(e.study().id(), k -> new long[3]);
                 if (e.isUsable()) {
                     state.add(e);
-                    accepted.increment();
+                    used++;
                     if (counts != null) {
                         counts[0]++;
                     }
@@ -163,6 +169,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
             }
+            accepted.increment(used);
         }
         perStudy.forEach((study, c) -> eventCounts.counted(study, c[0], c[1], c[2]));
     }
@@ -269,7 +276,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     }
 
     private KafkaProducer<byte[], byte[]> newProducer() {
-        KafkaProducer<byte[], byte[]> p = clients.transactionalProducer();
+        KafkaProducer<byte[], byte[]> p = clients.transactionalProducer(member);
         p.initTransactions();
         return p;
     }
@@ -310,7 +317,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
         }
         metrics.restored(set.size());
-        metrics.assignedPartitions(states.size());
+        countOwned();
         LOG.info("restored {} partition(s) {} from '{}'", set.size(), set, config.topics().partials());
     }
 
@@ -324,7 +331,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 states.remove(tp);
                 pendingOffsets.remove(tp);
             });
-            metrics.assignedPartitions(states.size());
+            countOwned();
         }
 
         @Override
@@ -350,8 +357,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 pendingOffsets.remove(tp);
             });
             needsReset = true;
-            metrics.assignedPartitions(states.size());
+            countOwned();
         }
+    }
+
+    private void countOwned() {
+        metrics.partitionsOwnedChanged(states.size() - owned);
+        owned = states.size();
     }
 
     private void pause() {

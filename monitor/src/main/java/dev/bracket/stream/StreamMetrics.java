@@ -94,11 +94,11 @@ public final class StreamMetrics {
         return commitTime;
     }
 
-    void assignedPartitions(int n) {
-        assigned.set(n);
+    void partitionsOwnedChanged(int delta) {
+        assigned.addAndGet(delta);
     }
 
-    /** Input partitions the aggregator owns now. */
+    /** Input partitions this instance's aggregation members own now. */
     public int assignedPartitions() {
         return assigned.get();
     }

@@ -6,7 +6,7 @@ import dev.bracket.config.WindowSpec;
 import dev.bracket.report.StudyReport;
 
 /**
- * A study's bounds in one window, computed from merged partial statistics.
+ * A study's bounds in one window, computed from merged partial statistics, with confidence bands.
  *
  * @param start      first event time in the window (inclusive, epoch millis); {@link Long#MIN_VALUE} for cumulative
  * @param end        end of the window (exclusive); {@link Long#MAX_VALUE} for cumulative
@@ -19,11 +19,6 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
      * cumulative, the watermark's pane for tumbling, and the last {@code size / step} panes
      * ending with the watermark's pane for sliding.
      */
-    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials) {
-        return current(study, window, partials, BandSettings.none());
-    }
-
-    /** As {@link #current(StudyConfig, WindowSpec, MergedPartials)}, with the given confidence bands in every row. */
     public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandSettings bands) {
         long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;

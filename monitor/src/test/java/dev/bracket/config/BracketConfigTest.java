@@ -1,5 +1,6 @@
 package dev.bracket.config;
 
+import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.Assumption;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -33,8 +34,10 @@ class BracketConfigTest {
               - {name: last-day, kind: sliding, size: 24h, step: 1h}
             grace: 30s
             band-level: 0.9
+            bands: anytime
             commit-interval: 250ms
             publish-interval: 2s
+            threads: 2
             group: checkout-monitor
             instance: host-a
             kafka:
@@ -74,6 +77,8 @@ class BracketConfigTest {
         assertThat(c.commitInterval()).isEqualTo(Duration.ofMillis(250));
         assertThat(c.publishInterval()).isEqualTo(Duration.ofSeconds(2));
         assertThat(c.bandLevel()).isEqualTo(0.9);
+        assertThat(c.bands().methods()).containsExactly(BandMethod.ANYTIME);
+        assertThat(c.threads()).isEqualTo(2);
         assertThat(c.group()).isEqualTo("checkout-monitor");
         assertThat(c.instance()).isEqualTo("host-a");
         assertThat(c.kafka()).containsEntry("security.protocol", "SASL_SSL").containsEntry("sasl.mechanism", "SCRAM-SHA-512");
@@ -88,8 +93,10 @@ class BracketConfigTest {
         assertThat(c.inputs()).containsExactly(new InputTopic("bracket-events", FieldMapping.DEFAULT));
         assertThat(c.windows()).containsExactly(WindowSpec.CUMULATIVE);
         assertThat(c.commitInterval()).isEqualTo(Duration.ofSeconds(1));
+        assertThat(c.threads()).isEqualTo(1);
         assertThat(c.publishInterval()).isEqualTo(Duration.ofMillis(500));
         assertThat(c.bandLevel()).isEqualTo(0.95);
+        assertThat(c.bands().methods()).containsExactlyInAnyOrder(BandMethod.values());
         assertThat(c.brokerDataDir().toString()).endsWith("bracket/kafka");
         assertThat(c.withBootstrapServers("localhost:1").usesEmbeddedBroker()).isFalse();
     }
@@ -116,6 +123,7 @@ class BracketConfigTest {
         assertError(base + "comit-interval: 1s\n", "c.yaml:4:1: unknown key 'comit-interval' in the top level");
         assertError(base + "windows:\n  - {name: w, kind: sliding, size: 1h, step: 7m}\n", "c.yaml:5:46: windows[0].step must divide the size");
         assertError(base + "windows:\n  - {name: cumulative, kind: tumbling, size: 1h}\n", "c.yaml:5:12: windows[0].name repeats the window name");
+        assertError(base + "bands: some\n", "c.yaml:4:8: bands must be both, fixed, anytime or none");
         assertError(base + "band-level: 95\n", "c.yaml:4:13: band-level must lie strictly between 0 and 1");
         assertError(base + "inputs:\n  - topic: 'bad topic'\n", "c.yaml:5:12: inputs[0].topic must be a Kafka topic name");
         assertError("studies: []\n", "c.yaml:1:10: studies must list at least one study");

@@ -75,6 +75,7 @@ class MonitorEndToEndTest {
                   - {name: hourly, kind: tumbling, size: 1h}
                   - {name: two-hours, kind: sliding, size: 2h, step: 1h}
                 grace: 10m
+                band-level: 0.9
                 commit-interval: 200ms
                 publish-interval: 200ms
                 max-event-bytes: 1024
@@ -128,6 +129,10 @@ class MonitorEndToEndTest {
                 }
             }
             assertThat(live.get("checkout/hourly").get("lateEvents").asLong()).isEqualTo(40);
+            // Both confidence bands ride along with every row (compared with replay above).
+            JsonNode bands = live.get("registry/cumulative").get("bounds").get(1).get("bands");
+            assertThat(bands).hasSize(2);
+            assertThat(bands.get(0).get("level").asDouble()).isEqualTo(0.9);
             assertThat(live.get("checkout/cumulative").get("lateEvents").asLong()).isZero();
 
             // Rejected events: original bytes, reason and origin in headers, nothing else.
@@ -167,6 +172,10 @@ class MonitorEndToEndTest {
 
     /** The newest document per key on a bounds topic. */
     static Map<String, JsonNode> latestDocuments(String topic) throws Exception {
+        return latestDocuments(broker, topic);
+    }
+
+    static Map<String, JsonNode> latestDocuments(EmbeddedBroker broker, String topic) throws Exception {
         Map<String, JsonNode> out = new TreeMap<>();
         for (ConsumerRecord<byte[], byte[]> r : KafkaTestSupport.readAll(broker, topic)) {
             out.put(new String(r.key(), StandardCharsets.UTF_8), JSON.readTree(r.value()));

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.bands.BandSettings;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.ObservedArms;
@@ -104,15 +105,15 @@ class PartitionStateTest {
         s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
         merged.progress(s.source(), s.progress());
 
-        WindowReport three = WindowReport.current(STUDY, THREE_MINUTES, merged);
+        WindowReport three = WindowReport.current(STUDY, THREE_MINUTES, merged, BandSettings.none());
         assertThat(three.start()).isEqualTo(60_000);
         assertThat(three.end()).isEqualTo(240_000);
         assertThat(three.report().pooled().treated().count()).isEqualTo(1);
         assertThat(three.report().pooled().control().count()).isEqualTo(2);
-        WindowReport minute = WindowReport.current(STUDY, MINUTE, merged);
+        WindowReport minute = WindowReport.current(STUDY, MINUTE, merged, BandSettings.none());
         assertThat(minute.report().pooled().total()).isEqualTo(1);
         assertThat(minute.report().rows().get(0).interval().isIdentified()).isFalse();
-        assertThat(WindowReport.current(STUDY, WindowSpec.CUMULATIVE, merged).report().pooled().total()).isEqualTo(4);
+        assertThat(WindowReport.current(STUDY, WindowSpec.CUMULATIVE, merged, BandSettings.none()).report().pooled().total()).isEqualTo(4);
     }
 
     @Test

@@ -77,16 +77,17 @@ final class TestEvents {
     }
 
     private static Event bad(int n, String unit) {
+        String head = "{\"id\":\"bad-" + n + "\",\"study\":";
         String[][] kinds = {
-                {"bad-json", "{\"study\":\"checkout\",\"unit\":"},
-                {"missing-field", "{\"study\":\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true}"},
-                {"wrong-type", "{\"study\":\"checkout\",\"unit\":\"" + unit + "\",\"treated\":\"maybe\",\"outcome\":1}"},
-                {"unknown-study", "{\"study\":\"pricing\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":1}"},
-                {"out-of-range", "{\"study\":\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":" + (2 + n) + "}"},
-                {"too-large", "{\"study\":\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":1,\"pad\":\"" + "x".repeat(2_000) + "\"}"},
+                {"bad-json", head + "\"checkout\",\"unit\":"},
+                {"missing-field", head + "\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true}"},
+                {"wrong-type", head + "\"checkout\",\"unit\":\"" + unit + "\",\"treated\":\"maybe\",\"outcome\":1}"},
+                {"unknown-study", head + "\"pricing\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":1}"},
+                {"out-of-range", head + "\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":" + (2 + n) + "}"},
+                {"too-large", head + "\"checkout\",\"unit\":\"" + unit + "\",\"treated\":true,\"outcome\":1,\"pad\":\"" + "x".repeat(2_000) + "\"}"},
         };
         String[] k = kinds[n % kinds.length];
-        return new Event(utf8(unit), utf8(k[1] + (k[0].equals("bad-json") ? " " + n : "")), null, false, Double.NaN, k[0]);
+        return new Event(utf8(unit), utf8(k[1]), null, false, Double.NaN, k[0]);
     }
 
     static byte[] utf8(String s) {
