@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;

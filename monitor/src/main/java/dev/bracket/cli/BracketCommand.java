@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import dev.bracket.demo.DemoProducerCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
@@ -12,8 +13,7 @@ import java.io.PrintWriter;
         versionProvider = BracketCommand.Version.class,
         description = {
                 "Honest intervals for the average treatment effect when treatment was not randomised.",
-                "An interval is only as credible as its assumptions; results are statistical statements,",
-                "not clinical or operational advice."},
+                Cautions.TEXT},
         subcommands = {CalcCommand.class, MonitorCommand.class, ReplayCommand.class, DemoCommand.class,
                 DemoProducerCommand.class, CommandLine.HelpCommand.class})
 public final class BracketCommand implements Runnable {
@@ -33,6 +33,7 @@ public final class BracketCommand implements Runnable {
     /** The configured command line, shared by {@link #main} and tests. */
     public static CommandLine newCommandLine() {
         CommandLine cl = new CommandLine(new BracketCommand());
+        cl.setUsageHelpWidth(110);
         cl.setParameterExceptionHandler(BracketCommand::onBadParameters);
         cl.setExecutionExceptionHandler(BracketCommand::onFailure);
         return cl;

@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bands.BandSettings;
@@ -48,8 +49,7 @@ import java.util.concurrent.Callable;
                 "possible in [A, B], variance (B-A)^2/4: safe, but wide. The anytime band",
                 "needs no SD; it uses only counts, means and the declared range.",
                 "",
-                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
-                "operational advice; medical use follows local regulation, ethics approval and licensed judgement.",
+                Cautions.TEXT,
                 "",
                 "Example:",
                 "  bracket calc --min 0 --max 1 --treated-n 400 --treated-mean 0.62 --control-n 600 --control-mean 0.48 \\",

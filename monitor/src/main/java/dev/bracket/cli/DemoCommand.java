@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
@@ -47,8 +48,7 @@ import java.util.stream.Stream;
                         + "The terminal shows every assumption set's interval beside the true effect, which only a simulation knows.",
                 "Stops at the end of --duration or on Ctrl-C; nothing is kept afterwards."},
         footer = {"",
-                "The scenario and its numbers are invented for demonstration. An interval is only as credible as its assumptions; "
-                        + "results are statistical statements, not clinical or operational advice."})
+                "The scenario and its numbers are invented for demonstration.", Cautions.TEXT})
 public final class DemoCommand implements Callable<Integer> {
 
     static final String STUDY = DemoProducerCommand.DEFAULT_STUDY;

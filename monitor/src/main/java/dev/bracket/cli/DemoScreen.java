@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.IdentifiedInterval;
@@ -24,9 +25,6 @@ final class DemoScreen {
 
     private static final DateTimeFormatter CLOCK = DateTimeFormatter.ofPattern("HH:mm:ss 'UTC'").withZone(ZoneOffset.UTC);
 
-    static final List<String> CAUTIONS = List.of(
-            "An interval is only as credible as its assumptions. Results are statistical statements, not clinical",
-            "or operational advice; medical use follows local regulation, ethics approval and licensed judgement.");
 
     /**
      * What the screen shows.
@@ -116,7 +114,7 @@ final class DemoScreen {
     }
 
     private static void appendCautions(StringBuilder out) {
-        CAUTIONS.forEach(line -> out.append(line).append('\n'));
+        Cautions.ALL.forEach(line -> out.append(line).append('\n'));
     }
 
     private static String progress(Duration elapsed, Duration duration) {

@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
@@ -34,8 +35,7 @@ import java.util.stream.Collectors;
                 "Without kafka.bootstrap.servers in the configuration it starts a single-node Kafka broker in this",
                 "process, keeping its data under broker.data-dir (default ~/.local/state/bracket/kafka)."},
         footer = {"",
-                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
-                "operational advice; medical use follows local regulation, ethics approval and licensed judgement."})
+                Cautions.TEXT})
 public final class MonitorCommand implements Callable<Integer> {
 
     @CommandLine.Spec

@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.BracketConfig;
@@ -32,8 +33,7 @@ import java.util.concurrent.Callable;
                 "Each file counts as one partition read in order; '-' reads standard input.",
                 "Unusable lines are counted and listed on standard error, as the monitor sends them to its rejected topic."},
         footer = {"",
-                "An interval is only as credible as its assumptions. It is a statistical statement, not clinical or",
-                "operational advice; medical use follows local regulation, ethics approval and licensed judgement.",
+                Cautions.TEXT,
                 "",
                 "Example:",
                 "  bracket replay --config bracket.yaml events-monday.jsonl events-tuesday.jsonl --json"})

@@ -45,6 +45,7 @@ public final class ReportTable {
             out.append(String.format(Locale.ROOT, "%s: %s%n", row.assumptions(), row.assumptions().meaning()));
         }
         appendBandNotes(out, report);
+        out.append(System.lineSeparator()).append(Cautions.TEXT).append(System.lineSeparator());
         return out.toString();
     }
 
@@ -79,7 +80,7 @@ public final class ReportTable {
         notes.forEach(n -> out.append(n).append(System.lineSeparator()));
         out.append("The fixed-horizon band holds for one look planned in advance; the anytime band stays valid however often")
                 .append(System.lineSeparator())
-                .append("the data are looked at, so decide and alert on the anytime band. A band is only as credible as the assumptions.")
+                .append("the data are looked at, so decide and alert on the anytime band.")
                 .append(System.lineSeparator());
     }
 

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.ReportJson;
@@ -16,8 +17,7 @@ import java.time.Instant;
 public final class ReportDocument {
 
     /** Attached to every document: it reaches people through dashboards and alerts. */
-    public static final String CAUTION = "An interval is only as credible as its assumptions. It is a statistical statement,"
-            + " not clinical or operational advice; medical use follows local regulation, ethics approval and licensed judgement.";
+    public static final String CAUTION = Cautions.TEXT;
 
     private ReportDocument() {
     }

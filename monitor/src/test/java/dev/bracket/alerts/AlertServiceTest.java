@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bands.BandSettings;
