@@ -1,17 +1,16 @@
 package dev.bracket.stream;
 
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.bracket.broker.EmbeddedBroker;
+import dev.bracket.broker.BrokerPerClass;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
-import org.junit.jupiter.api.AfterAll;
-import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.extension.RegisterExtension;
 import org.junit.jupiter.api.io.TempDir;
 
 import java.io.IOException;
@@ -42,19 +41,11 @@ class MonitorCrashRecoveryTest {
     private static final int EVENTS = 200_000;
     private static final int KILLS = 3;
 
+    @RegisterExtension
+    static final BrokerPerClass KAFKA = new BrokerPerClass();
+
     @TempDir
     static Path dir;
-    static EmbeddedBroker broker;
-
-    @BeforeAll
-    static void startBroker() {
-        broker = EmbeddedBroker.start(dir.resolve("kafka"), 0);
-    }
-
-    @AfterAll
-    static void stopBroker() {
-        broker.close();
-    }
 
     @Test
     @DisplayName("a monitor killed with SIGKILL three times while events stream loses and double-counts nothing")
@@ -86,7 +77,7 @@ class MonitorCrashRecoveryTest {
                   bootstrap.servers: %s
                   session.timeout.ms: 6000
                   heartbeat.interval.ms: 1000
-                """.formatted(broker.bootstrapServers()));
+                """.formatted(KAFKA.bootstrapServers()));
 
         // Topics exist before the producer starts: a producer that auto-creates a topic while the
         // monitor creates it too can stall on its first batch.
@@ -101,7 +92,7 @@ class MonitorCrashRecoveryTest {
         List<Long> committedAtKill = new ArrayList<>();
         Process child = startChild(config, logs);
         producing.start();
-        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
+        try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, KAFKA.bootstrapServers()))) {
             for (int kill = 0; kill < KILLS; kill++) {
                 // A random point of the stream after this child has committed progress of its own,
                 // so that the next child must restore real state and a transaction is likely open.
@@ -121,7 +112,7 @@ class MonitorCrashRecoveryTest {
 
             Map<String, Long> expected = armCounts(usable);
             await().atMost(Duration.ofSeconds(180)).pollInterval(Duration.ofSeconds(1)).untilAsserted(() -> {
-                Map<String, JsonNode> docs = MonitorEndToEndTest.latestDocuments(broker, "crash-bounds");
+                Map<String, JsonNode> docs = MonitorEndToEndTest.latestDocuments(KAFKA.broker(), "crash-bounds");
                 for (String study : List.of("checkout", "registry")) {
                     assertThat(docs).containsKey(study + "/cumulative");
                     JsonNode arms = docs.get(study + "/cumulative").get("arms");
@@ -130,7 +121,7 @@ class MonitorCrashRecoveryTest {
                 }
             });
 
-            List<ConsumerRecord<byte[], byte[]>> rejected = KafkaTestSupport.readAll(broker, "crash-rejected");
+            List<ConsumerRecord<byte[], byte[]>> rejected = KafkaTestSupport.readAll(KAFKA.broker(), "crash-rejected");
             Set<String> distinct = new HashSet<>();
             rejected.forEach(r -> distinct.add(new String(r.value(), StandardCharsets.UTF_8)));
             assertThat(rejected).hasSize(bad.size());
@@ -167,7 +158,7 @@ class MonitorCrashRecoveryTest {
 
     /** Sends the events at about 6,000 per second so that the kills land mid-stream. */
     private static void produce(List<TestEvents.Event> events, AtomicInteger sent, AtomicReference<Throwable> failure) {
-        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(broker)) {
+        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
             long start = System.nanoTime();
             for (TestEvents.Event e : events) {
                 producer.send(new ProducerRecord<>("crash-events", e.key(), e.value()), (md, ex) -> {

@@ -2,6 +2,7 @@ package dev.bracket.stream;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
+import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.cli.BracketCommand;
 import dev.bracket.config.BracketConfig;
@@ -12,10 +13,9 @@ import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.header.Header;
-import org.junit.jupiter.api.AfterAll;
-import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.extension.RegisterExtension;
 import org.junit.jupiter.api.io.TempDir;
 import picocli.CommandLine;
 
@@ -45,19 +45,11 @@ class MonitorEndToEndTest {
 
     private static final ObjectMapper JSON = new ObjectMapper();
 
+    @RegisterExtension
+    static final BrokerPerClass KAFKA = new BrokerPerClass();
+
     @TempDir
     static Path dir;
-    static EmbeddedBroker broker;
-
-    @BeforeAll
-    static void startBroker() {
-        broker = EmbeddedBroker.start(dir.resolve("kafka"), 0);
-    }
-
-    @AfterAll
-    static void stopBroker() {
-        broker.close();
-    }
 
     static String config(String bootstrap) {
         return """
@@ -92,14 +84,14 @@ class MonitorEndToEndTest {
         List<TestEvents.Event> events = new ArrayList<>(TestEvents.stream(20_000, 97, 11));
         events.addAll(TestEvents.late(40, 12));
         Path configFile = dir.resolve("e2e.yaml");
-        Files.writeString(configFile, config(broker.bootstrapServers()));
+        Files.writeString(configFile, config(KAFKA.bootstrapServers()));
         Path eventsFile = dir.resolve("events.jsonl");
         Files.write(eventsFile, events.stream().map(e -> new String(e.value(), StandardCharsets.UTF_8)).toList());
 
         BracketConfig config = BracketConfig.load(configFile);
         SimpleMeterRegistry registry = new SimpleMeterRegistry();
         try (Monitor monitor = Monitor.start(config, registry, new LatestReports());
-             KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(broker)) {
+             KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
             for (TestEvents.Event e : events) {
                 producer.send(new ProducerRecord<>("e2e-events", e.key(), e.value()));
             }
@@ -137,7 +129,7 @@ class MonitorEndToEndTest {
 
             // Rejected events: original bytes, reason and origin in headers, nothing else.
             List<TestEvents.Event> bad = events.stream().filter(e -> !e.usable()).toList();
-            List<ConsumerRecord<byte[], byte[]>> rejected = KafkaTestSupport.readAll(broker, "e2e-rejected");
+            List<ConsumerRecord<byte[], byte[]>> rejected = KafkaTestSupport.readAll(KAFKA.broker(), "e2e-rejected");
             assertThat(rejected).hasSize(bad.size());
             Map<String, String> reasonByValue = new HashMap<>();
             bad.forEach(e -> reasonByValue.put(new String(e.value(), StandardCharsets.UTF_8), e.rejectReason()));
@@ -172,7 +164,7 @@ class MonitorEndToEndTest {
 
     /** The newest document per key on a bounds topic. */
     static Map<String, JsonNode> latestDocuments(String topic) throws Exception {
-        return latestDocuments(broker, topic);
+        return latestDocuments(KAFKA.broker(), topic);
     }
 
     static Map<String, JsonNode> latestDocuments(EmbeddedBroker broker, String topic) throws Exception {

@@ -1,6 +1,6 @@
 package dev.bracket.stream;
 
-import dev.bracket.broker.EmbeddedBroker;
+import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
@@ -8,13 +8,10 @@ import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
-import org.junit.jupiter.api.AfterAll;
-import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
-import org.junit.jupiter.api.io.TempDir;
+import org.junit.jupiter.api.extension.RegisterExtension;
 
-import java.nio.file.Path;
 import java.time.Duration;
 import java.util.List;
 import java.util.concurrent.TimeUnit;
@@ -30,19 +27,8 @@ import static org.awaitility.Awaitility.await;
  */
 class MonitorRebalanceTest {
 
-    @TempDir
-    static Path dir;
-    static EmbeddedBroker broker;
-
-    @BeforeAll
-    static void startBroker() {
-        broker = EmbeddedBroker.start(dir.resolve("kafka"), 0);
-    }
-
-    @AfterAll
-    static void stopBroker() {
-        broker.close();
-    }
+    @RegisterExtension
+    static final BrokerPerClass KAFKA = new BrokerPerClass();
 
     private static BracketConfig config(String instance, int threads) {
         return BracketConfig.parse(instance + ".yaml", """
@@ -64,7 +50,7 @@ class MonitorRebalanceTest {
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(threads, instance, broker.bootstrapServers()));
+                """.formatted(threads, instance, KAFKA.bootstrapServers()));
     }
 
     @Test
@@ -78,7 +64,7 @@ class MonitorRebalanceTest {
         }
         AtomicInteger sent = new AtomicInteger();
         Thread producing = new Thread(() -> {
-            try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(broker)) {
+            try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
                 long start = System.nanoTime();
                 for (TestEvents.Event e : events) {
                     producer.send(new ProducerRecord<>("rb-events", e.key(), e.value()));
