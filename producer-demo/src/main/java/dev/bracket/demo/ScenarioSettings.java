@@ -18,7 +18,7 @@ public record ScenarioSettings(int hosts, double rolloutShare, double selectionS
     public static final int DEFAULT_HOSTS = 400;
     public static final double DEFAULT_ROLLOUT_SHARE = 0.3;
     public static final double DEFAULT_SELECTION = 0.7;
-    public static final double DEFAULT_EFFECT = -0.02;
+    public static final double DEFAULT_EFFECT = -0.08;
 
     public ScenarioSettings {
         if (hosts < 10 || hosts > 1_000_000) {
