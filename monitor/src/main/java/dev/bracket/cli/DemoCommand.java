@@ -137,7 +137,7 @@ public final class DemoCommand implements Callable<Integer> {
             long start = System.nanoTime();
             producerThread.start();
             while (producerThread.isAlive() && !stop.get()) {
-                view.show(DemoScreen.render(screen(scenario, sender, start, web, latest)));
+                view.show(DemoScreen.render(screen(scenario, sender, start, web, latest, monitor)));
                 producerThread.join(view.refreshMillis());
             }
             producerThread.join();
@@ -146,7 +146,7 @@ public final class DemoCommand implements Callable<Integer> {
             while (!stop.get() && System.nanoTime() < drainUntil && reportedUnits(latest) < sender.acknowledged()) {
                 Thread.sleep(250);
             }
-            view.show(DemoScreen.render(screen(scenario, sender, start, web, latest)));
+            view.show(DemoScreen.render(screen(scenario, sender, start, web, latest, monitor)));
             out.printf("%nDemo %s: %,d events sent, %,d in the last report. Stopping the monitor and the broker...%n",
                     stop.get() ? "interrupted" : "finished", sender.sent(), reportedUnits(latest));
             out.flush();
@@ -154,10 +154,10 @@ public final class DemoCommand implements Callable<Integer> {
     }
 
     private DemoScreen.State screen(RolloutScenario scenario, DemoProducer sender, long startNanos, WebServer web,
-                                    LatestReports latest) {
+                                    LatestReports latest, Monitor monitor) {
         Optional<PublishedReport> report = latest.get(STUDY, "cumulative");
         return new DemoScreen.State(STUDY, scenario.describe(), scenario.truth(), sender.sent(),
-                Duration.ofNanos(System.nanoTime() - startNanos), duration, web.address(), report);
+                Duration.ofNanos(System.nanoTime() - startNanos), duration, web.address(), report, monitor.alerts().firing());
     }
 
     private static long reportedUnits(LatestReports latest) {

@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import dev.bracket.alerts.AlertState;
 import dev.bracket.report.Cautions;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bands.ConfidenceBand;
@@ -12,6 +13,7 @@ import dev.bracket.report.PublishedReport;
 import java.time.Duration;
 import java.time.ZoneOffset;
 import java.time.format.DateTimeFormatter;
+import java.util.Comparator;
 import java.util.List;
 import java.util.Locale;
 import java.util.Optional;
@@ -37,9 +39,10 @@ final class DemoScreen {
      * @param duration  planned length of the demo, or null when it runs until Ctrl-C
      * @param address   where the page and API are served
      * @param report    the newest report of the study's cumulative window, if one exists yet
+     * @param firing    the alerts firing now
      */
     record State(String study, String scenario, TrueEffects truth, long sent, Duration elapsed, Duration duration,
-                 String address, Optional<PublishedReport> report) {
+                 String address, Optional<PublishedReport> report, List<AlertState> firing) {
     }
 
     private DemoScreen() {
@@ -89,8 +92,22 @@ final class DemoScreen {
             }
         }
         out.append('\n');
+        appendAlerts(out, s.firing());
         appendCautions(out);
         return out.toString();
+    }
+
+    /** One line per firing alert, oldest first, so what the data now say stands out from the table. */
+    private static void appendAlerts(StringBuilder out, List<AlertState> firing) {
+        if (firing.isEmpty()) {
+            out.append("Alerts: none firing.\n\n");
+            return;
+        }
+        out.append("Alerts firing now (details at /api/alerts):\n");
+        firing.stream().sorted(Comparator.comparing(AlertState::since)).forEach(a -> out.append(String.format(Locale.ROOT,
+                "  since %s  %-16s %-9s %s%n", CLOCK.format(a.since()), a.key().rule().id(),
+                a.variant(), a.key().assumptions())));
+        out.append('\n');
     }
 
     private static Optional<ConfidenceBand> anytimeBand(BoundRow row) {

@@ -19,6 +19,10 @@ import java.time.Instant;
 import java.util.List;
 import java.util.Optional;
 
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertRule;
+import dev.bracket.alerts.AlertState;
+
 import static org.assertj.core.api.Assertions.assertThat;
 
 class DemoScreenTest {
@@ -26,8 +30,12 @@ class DemoScreenTest {
     private static final TrueEffects TRUTH = new TrueEffects(-0.02, 0.4, 0.62, 0.48, 0.5, 0.7);
 
     private static DemoScreen.State state(Optional<PublishedReport> report) {
+        return state(report, List.of());
+    }
+
+    private static DemoScreen.State state(Optional<PublishedReport> report, List<AlertState> firing) {
         return new DemoScreen.State("host-rollout", "An invented rollout.", TRUTH, 1234, Duration.ofSeconds(12),
-                Duration.ofSeconds(60), "http://127.0.0.1:8080/", report);
+                Duration.ofSeconds(60), "http://127.0.0.1:8080/", report, firing);
     }
 
     @Test
@@ -52,6 +60,23 @@ class DemoScreenTest {
         assertThat(screen).contains("True ATE -0.0200", "1,234", "1,000 units", "400 with the setting", "600 without",
                 "Naive difference of means +0.1400", "12 s of 60 s", "http://127.0.0.1:8080/",
                 "only as credible as its assumptions", "not clinical");
+    }
+
+    @Test
+    @DisplayName("firing alerts are listed under the table with their rule, side, assumptions and time; none says so")
+    void firingAlertsAreShown() {
+        StudyCells cells = StudyCells.single(new ObservedArms(
+                ArmStatistics.ofSummary(400, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
+        StudyReport report = StudyReport.of(cells, new OutcomeRange(0, 1), List.of(AssumptionSet.parse("mts-negative")));
+        Optional<PublishedReport> published = Optional.of(new PublishedReport("host-rollout", "cumulative",
+                Instant.parse("2026-01-01T10:00:00Z"), report));
+        Instant since = Instant.parse("2026-01-01T09:59:30Z");
+        AlertState firing = new AlertState(new AlertKey("host-rollout", "mts-negative", "cumulative", AlertRule.SIGN_IDENTIFIED),
+                true, "positive", 1, since, since, 0);
+
+        assertThat(DemoScreen.render(state(published))).contains("Alerts: none firing.");
+        assertThat(line(DemoScreen.render(state(published, List.of(firing))), "  since 09:59:30 UTC"))
+                .contains("sign-identified", "positive", "mts-negative");
     }
 
     @Test
