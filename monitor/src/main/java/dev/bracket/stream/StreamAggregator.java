@@ -3,6 +3,7 @@ package dev.bracket.stream;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import io.micrometer.core.instrument.Counter;
+import io.micrometer.core.instrument.binder.kafka.KafkaClientMetrics;
 import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.ConsumerRecords;
@@ -94,8 +95,12 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     @Override
     public void run() {
+        KafkaClientMetrics consumerMetrics = null;
         try {
             consumer = clients.groupConsumer();
+            // Kafka's own consumer metrics, records-lag-max among them: how far the monitor trails its input.
+            consumerMetrics = new KafkaClientMetrics(consumer);
+            consumerMetrics.bindTo(metrics.registry());
             restorer = new PartialsRestorer(clients, partialsPartitions);
             producer = newProducer();
             if (!running) {
@@ -130,6 +135,9 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 commit();
             }
         } finally {
+            if (consumerMetrics != null) {
+                consumerMetrics.close();
+            }
             closeClients();
             states.clear();
             countOwned();

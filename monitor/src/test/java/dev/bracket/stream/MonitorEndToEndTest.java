@@ -148,6 +148,8 @@ class MonitorEndToEndTest {
                     .as(reason).isEqualTo(n));
             assertThat(monitor.metrics().total("bracket.events", "result", "accepted")).isEqualTo(events.size() - bad.size());
             assertThat(monitor.metrics().total("bracket.events.late", "window", "hourly")).isEqualTo(40);
+            // Consumer lag comes from Kafka's own consumer metrics, bound into the same registry.
+            assertThat(registry.find("kafka.consumer.fetch.manager.records.lag.max").gauges()).isNotEmpty();
         }
     }
 
