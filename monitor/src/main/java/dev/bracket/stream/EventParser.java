@@ -33,7 +33,8 @@ public final class EventParser {
     private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER).build();
 
     private final FieldMapping fields;
-    private final Map<String, StudyConfig> studies = new HashMap<>();
+    private final StudyConfig[] studies;
+    private final Map<String, Integer> studyIndex = new HashMap<>();
     private final int maxBytes;
     private final ParsedEvent event = new ParsedEvent();
     private final TextCache texts = new TextCache();
@@ -41,7 +42,10 @@ public final class EventParser {
     public EventParser(List<StudyConfig> studies, FieldMapping fields, int maxBytes) {
         this.fields = fields;
         this.maxBytes = maxBytes;
-        studies.forEach(s -> this.studies.put(s.id(), s));
+        this.studies = studies.toArray(new StudyConfig[0]);
+        for (int i = 0; i < this.studies.length; i++) {
+            studyIndex.put(this.studies[i].id(), i);
+        }
     }
 
     /**
@@ -153,11 +157,13 @@ public final class EventParser {
         if (!hasOutcome) {
             return missing(e, fields.outcome());
         }
-        StudyConfig study = studies.get(studyId);
-        if (study == null) {
+        Integer index = studyIndex.get(studyId);
+        if (index == null) {
             return e.reject(RejectReason.UNKNOWN_STUDY, "study '" + clip(studyId) + "' is not configured");
         }
+        StudyConfig study = studies[index];
         e.study = study;
+        e.studyIndex = index;
         OutcomeRange range = study.range();
         if (!range.contains(e.outcome)) {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "

@@ -36,7 +36,7 @@ import java.util.concurrent.TimeUnit;
  * <ol>
  *   <li><b>plain</b>: a consumer (default settings) that polls every record and runs Jackson's
  *       streaming parser over all its tokens, nothing else;</li>
- *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics as a Kafka Streams
+ *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics (cumulative and hourly windows) as a Kafka Streams
  *       exactly-once v2 {@code groupByKey().aggregate()} into a RocksDB store, same commit interval;</li>
  *   <li><b>monitor</b>: Bracket's {@link Monitor} (aggregator with Kafka transactions, bound
  *       updater and alert evaluator running) with its default settings, in a fresh consumer group.</li>
@@ -48,6 +48,10 @@ import java.util.concurrent.TimeUnit;
  * the committed offsets' totals equal EVENTS). The targets are monitor/plain at least 0.8 and
  * monitor/streams at least 2.5, both ratios taken within one run. Prints figures; asserts
  * nothing; not part of the test suite ({@code bench/run} runs it).
+ *
+ * <pre>
+ * AggregationBenchmark [EVENTS] [RUNS] [all|plain|streams|monitor]
+ * </pre>
  */
 public final class AggregationBenchmark {
 
@@ -60,6 +64,8 @@ public final class AggregationBenchmark {
     public static void main(String[] args) throws Exception {
         int events = args.length > 0 ? Integer.parseInt(args[0]) : 1_000_000;
         int runs = args.length > 1 ? Integer.parseInt(args[1]) : 5;
+        // For profiling one contender alone: "monitor", "streams" or "plain" (no ratios then).
+        String only = args.length > 2 ? args[2] : "all";
         Path dir = Files.createTempDirectory("bracket-bench");
         try (EmbeddedBroker broker = EmbeddedBroker.start(dir.resolve("kafka"), 0)) {
             BracketConfig base = config(broker, "bench-setup");
@@ -74,6 +80,18 @@ public final class AggregationBenchmark {
             double[] monitor = new double[runs];
             double[] vsPlain = new double[runs];
             double[] vsStreams = new double[runs];
+            if (!only.equals("all")) {
+                for (int r = 0; r < runs; r++) {
+                    double rate = switch (only) {
+                        case "plain" -> plainConsumerParsing(broker, events);
+                        case "streams" -> streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
+                        case "monitor" -> monitor(broker, events, "bench-monitor-" + r);
+                        default -> throw new IllegalArgumentException("unknown contender " + only);
+                    };
+                    System.out.printf(Locale.ROOT, "run %d: %s %,.0f events/s%n", r + 1, only, rate);
+                }
+                return;
+            }
             for (int r = 0; r < runs; r++) {
                 plain[r] = plainConsumerParsing(broker, events);
                 streams[r] = streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
