@@ -57,6 +57,8 @@ public final class AggregationBenchmark {
 
     private static final String TOPIC = "bench-events";
     private static final JsonFactory JSON = new JsonFactory();
+    /** CPU use during the last contender's measured interval. */
+    private static String cpuNote = "";
 
     private AggregationBenchmark() {
     }
@@ -88,7 +90,7 @@ public final class AggregationBenchmark {
                         case "monitor" -> monitor(broker, events, "bench-monitor-" + r);
                         default -> throw new IllegalArgumentException("unknown contender " + only);
                     };
-                    System.out.printf(Locale.ROOT, "run %d: %s %,.0f events/s%n", r + 1, only, rate);
+                    System.out.printf(Locale.ROOT, "run %d: %s %,.0f events/s (%s)%n", r + 1, only, rate, cpuNote);
                 }
                 return;
             }
@@ -155,6 +157,7 @@ public final class AggregationBenchmark {
             List<TopicPartition> tps = List.of(new TopicPartition(TOPIC, 0), new TopicPartition(TOPIC, 1), new TopicPartition(TOPIC, 2));
             c.assign(tps);
             c.seekToBeginning(tps);
+            CpuUse cpu = CpuUse.start(Thread.currentThread().getName()::equals);
             long start = System.nanoTime();
             long seen = 0;
             long tokens = 0;
@@ -169,6 +172,7 @@ public final class AggregationBenchmark {
                 }
             }
             double rate = seen / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since() + "; " + cpu.busiest(3);
             if (tokens < 10L * events) {
                 throw new IllegalStateException("only " + tokens + " tokens parsed");
             }
@@ -183,11 +187,13 @@ public final class AggregationBenchmark {
         try (StreamsPeer peer = new StreamsPeer(config, TOPIC, applicationId, stateDir)) {
             peer.start();
             peer.awaitRunning(60);
+            CpuUse cpu = CpuUse.start(n -> n.startsWith(applicationId + "-") && n.endsWith("-StreamThread-1"));
             long start = System.nanoTime();
             while (peer.folded() < folds) {
                 TimeUnit.MILLISECONDS.sleep(5);
             }
             double rate = events / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since();
             TimeUnit.MILLISECONDS.sleep(config.commitInterval().toMillis() * 2);
             long stored = peer.countInStore();
             if (stored != folds) {
@@ -205,11 +211,13 @@ public final class AggregationBenchmark {
             while (monitor.assignedPartitions() < 3) {
                 TimeUnit.MILLISECONDS.sleep(5);
             }
+            CpuUse cpu = CpuUse.start("bracket-aggregator-0"::equals);
             long start = System.nanoTime();
             while (monitor.metrics().total("bracket.events", "result", "accepted") < events) {
                 TimeUnit.MILLISECONDS.sleep(5);
             }
             double rate = events / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since() + "; " + cpu.busiest(3);
             long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
             while (committed(admin, group) < events) {
                 if (System.nanoTime() > deadline) {
