@@ -31,7 +31,7 @@ import java.util.concurrent.TimeUnit;
 /**
  * Throughput of the aggregation stage against its two reference points, all reading the same
  * topic (EVENTS compact JSON events from {@link BenchEvents}, 3 partitions) of one broker in
- * this JVM, in one run, one after the other, RUNS times:
+ * this JVM, in one run, one after the other, RUNS times after one round that warms the JIT and is not counted:
  *
  * <ol>
  *   <li><b>plain</b>: a consumer (default settings) that polls every record and runs Jackson's
@@ -94,6 +94,11 @@ public final class AggregationBenchmark {
                 }
                 return;
             }
+            double warmPlain = plainConsumerParsing(broker, events);
+            double warmStreams = streamsPeer(broker, events, "bench-streams-warm", dir.resolve("streams-warm"));
+            double warmMonitor = monitor(broker, events, "bench-monitor-warm");
+            System.out.printf(Locale.ROOT, "warm-up (not counted): plain %,.0f/s; Kafka Streams %,.0f/s; monitor %,.0f/s%n",
+                    warmPlain, warmStreams, warmMonitor);
             for (int r = 0; r < runs; r++) {
                 plain[r] = plainConsumerParsing(broker, events);
                 streams[r] = streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
@@ -102,6 +107,7 @@ public final class AggregationBenchmark {
                 vsStreams[r] = monitor[r] / streams[r];
                 System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f events/s; Kafka Streams EOS %,.0f/s; monitor %,.0f/s;"
                         + " monitor/plain %.2f, monitor/streams %.2f%n", r + 1, plain[r], streams[r], monitor[r], vsPlain[r], vsStreams[r]);
+                System.out.println("  monitor's aggregator: " + cpuNote);
             }
             System.out.println("over " + runs + " runs, median (min-max):");
             System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
