@@ -26,8 +26,12 @@ public record WindowSpec(String name, Kind kind, Duration size, Duration step) {
 
     /** Start of the pane holding {@code eventTime}; 0 for cumulative. */
     public long paneStart(long eventTime) {
-        long pane = paneMillis();
-        return pane == 0 ? 0 : Math.floorDiv(eventTime, pane) * pane;
+        return paneStart(eventTime, paneMillis());
+    }
+
+    /** Start of the pane of length {@code paneMillis} holding {@code eventTime}; 0 when the length is 0 (cumulative). */
+    public static long paneStart(long eventTime, long paneMillis) {
+        return paneMillis == 0 ? 0 : Math.floorDiv(eventTime, paneMillis) * paneMillis;
     }
 
     /** Number of panes merged into one report. */

@@ -16,7 +16,7 @@ import java.util.List;
 import java.util.Map;
 
 /**
- * Reads one JSON event with Jackson's streaming parser (no tree, no data binding) and checks it:
+ * Reads one JSON event and checks it:
  * the fields named by the {@link FieldMapping} must be present with the right types, the study
  * must be configured and the outcome must lie in that study's declared range. Fields the
  * mapping does not name are skipped. Never throws on bad input: the returned event carries a
@@ -26,6 +26,10 @@ import java.util.Map;
  * {@code time} epoch milliseconds or an ISO-8601 instant with offset (absent: the record
  * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
  * {@code unit} and {@code id} strings or numbers. One parser per thread.
+ *
+ * <p>Events of the usual shape are read by {@link FlatEventScanner} straight from the bytes;
+ * the others by Jackson's streaming parser (no tree, no data binding), whose messages name
+ * what is wrong.
  */
 public final class EventParser {
 
@@ -33,15 +37,21 @@ public final class EventParser {
     private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER).build();
 
     private final FieldMapping fields;
-    private final Map<String, StudyConfig> studies = new HashMap<>();
+    private final StudyConfig[] studies;
+    private final Map<String, Integer> studyIndex = new HashMap<>();
     private final int maxBytes;
     private final ParsedEvent event = new ParsedEvent();
     private final TextCache texts = new TextCache();
+    private final FlatEventScanner scanner;
 
     public EventParser(List<StudyConfig> studies, FieldMapping fields, int maxBytes) {
         this.fields = fields;
         this.maxBytes = maxBytes;
-        studies.forEach(s -> this.studies.put(s.id(), s));
+        this.scanner = new FlatEventScanner(fields, texts);
+        this.studies = studies.toArray(new StudyConfig[0]);
+        for (int i = 0; i < this.studies.length; i++) {
+            studyIndex.put(this.studies[i].id(), i);
+        }
     }
 
     /**
@@ -50,6 +60,11 @@ public final class EventParser {
      * @param recordTime the time to use when the event has no time field (epoch millis)
      */
     public ParsedEvent parse(byte[] bytes, long recordTime) {
+        return parse(bytes, recordTime, true);
+    }
+
+    /** @param fast whether to try the fast path first (the tests compare both paths) */
+    ParsedEvent parse(byte[] bytes, long recordTime, boolean fast) {
         ParsedEvent e = event;
         e.reset();
         if (bytes == null || bytes.length == 0) {
@@ -58,6 +73,10 @@ public final class EventParser {
         if (bytes.length > maxBytes) {
             return e.reject(RejectReason.TOO_LARGE, bytes.length + " bytes exceed the limit of " + maxBytes + " (max-event-bytes)");
         }
+        if (fast && scanner.scan(bytes, e)) {
+            return complete(e, scanner.study, scanner.hasUnit, scanner.hasTreated, scanner.hasOutcome, recordTime);
+        }
+        e.reset();
         try (JsonParser p = JSON.createParser(bytes)) {
             return read(p, e, recordTime);
         } catch (JsonProcessingException ex) {
@@ -141,6 +160,11 @@ public final class EventParser {
         if (p.nextToken() != null) {
             return e.reject(RejectReason.BAD_JSON, "unexpected content after the event's closing brace");
         }
+        return complete(e, studyId, hasUnit, hasTreated, hasOutcome, recordTime);
+    }
+
+    /** Checks what was read: required fields present, study configured, outcome in its range; fills the defaults. */
+    private ParsedEvent complete(ParsedEvent e, String studyId, boolean hasUnit, boolean hasTreated, boolean hasOutcome, long recordTime) {
         if (studyId == null) {
             return missing(e, fields.study());
         }
@@ -153,11 +177,13 @@ public final class EventParser {
         if (!hasOutcome) {
             return missing(e, fields.outcome());
         }
-        StudyConfig study = studies.get(studyId);
-        if (study == null) {
+        Integer index = studyIndex.get(studyId);
+        if (index == null) {
             return e.reject(RejectReason.UNKNOWN_STUDY, "study '" + clip(studyId) + "' is not configured");
         }
+        StudyConfig study = studies[index];
         e.study = study;
+        e.studyIndex = index;
         OutcomeRange range = study.range();
         if (!range.contains(e.outcome)) {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "

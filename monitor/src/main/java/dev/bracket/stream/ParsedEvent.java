@@ -9,6 +9,7 @@ import dev.bracket.config.StudyConfig;
 public final class ParsedEvent {
 
     StudyConfig study;
+    int studyIndex;
     boolean treated;
     double outcome;
     long time;
@@ -19,6 +20,14 @@ public final class ParsedEvent {
 
     public StudyConfig study() {
         return study;
+    }
+
+    /**
+     * The study's position in the list the parser was made with (counting per study without a
+     * lookup); -1 when {@link #study()} is null.
+     */
+    public int studyIndex() {
+        return studyIndex;
     }
 
     public boolean treated() {
@@ -60,6 +69,7 @@ public final class ParsedEvent {
 
     void reset() {
         study = null;
+        studyIndex = -1;
         treated = false;
         outcome = Double.NaN;
         time = Long.MIN_VALUE;

@@ -5,6 +5,7 @@ import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.HashMap;
 import java.util.Iterator;
 import java.util.List;
@@ -23,12 +24,23 @@ import java.util.function.BiConsumer;
  */
 public final class PartitionState {
 
+    /** Slots of the cell cache (a power of two). */
+    private static final int CACHE_SLOTS = 64;
+
     private final SourcePartition source;
-    private final List<WindowSpec> windows;
+    private final WindowSpec[] windows;
+    private final long[] paneMillis;
+    private final long[] sizeMillis;
     private final long graceMillis;
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
     private final Map<CellKey, CellAccumulator> cells = new HashMap<>();
     private final Map<LateKey, Long> late = new HashMap<>();
+    // A direct-mapped cache in front of the cell map. Events repeat a few cells, and their
+    // strings are the parser's canonical instances, so comparing by identity finds most cells
+    // without making a key and looking it up. A miss (or an equal string that is another
+    // instance) falls through to the map; anything that removes or replaces cells clears it.
+    private final CellKey[] cachedKeys = new CellKey[CACHE_SLOTS];
+    private final CellAccumulator[] cachedCells = new CellAccumulator[CACHE_SLOTS];
     private long streamTime = Long.MIN_VALUE;
     private boolean progressDirty;
 
@@ -38,7 +50,13 @@ public final class PartitionState {
     public PartitionState(SourcePartition source, List<WindowSpec> windows, long graceMillis,
                           BiConsumer<StudyConfig, WindowSpec> onLate) {
         this.source = source;
-        this.windows = List.copyOf(windows);
+        this.windows = windows.toArray(new WindowSpec[0]);
+        this.paneMillis = new long[this.windows.length];
+        this.sizeMillis = new long[this.windows.length];
+        for (int i = 0; i < this.windows.length; i++) {
+            paneMillis[i] = this.windows[i].paneMillis();
+            sizeMillis[i] = this.windows[i].size().toMillis();
+        }
         this.graceMillis = graceMillis;
         this.onLate = onLate;
     }
@@ -55,27 +73,46 @@ public final class PartitionState {
             progressDirty = true;
         }
         String study = e.study().id();
-        for (WindowSpec w : windows) {
-            long pane = w.paneStart(t);
-            if (w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w, pane)) {
-                late.merge(new LateKey(study, w.name()), 1L, Long::sum);
+        for (int w = 0; w < windows.length; w++) {
+            long pane = WindowSpec.paneStart(t, paneMillis[w]);
+            if (windows[w].kind() != WindowSpec.Kind.CUMULATIVE && isClosed(sizeMillis[w], pane)) {
+                late.merge(new LateKey(study, windows[w].name()), 1L, Long::sum);
                 progressDirty = true;
-                onLate.accept(e.study(), w);
+                onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            CellKey key = new CellKey(study, e.stratum(), e.instrument(), w.name(), pane);
-            CellAccumulator cell = cells.get(key);
-            if (cell == null) {
-                cell = new CellAccumulator();
-                cells.put(key, cell);
-            }
-            cell.add(e.treated(), e.outcome());
+            cell(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
         }
     }
 
-    private boolean isClosed(WindowSpec w, long paneStart) {
+    private CellAccumulator cell(String study, String stratum, String level, String window, long pane) {
+        int h = ((study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode()) * 31 + window.hashCode();
+        h = h * 31 + Long.hashCode(pane);
+        int slot = (h ^ (h >>> 16)) & (CACHE_SLOTS - 1);
+        CellKey k = cachedKeys[slot];
+        if (k != null && k.paneStart() == pane && k.study() == study && k.stratum() == stratum && k.level() == level
+                && k.window() == window) {
+            return cachedCells[slot];
+        }
+        CellKey key = new CellKey(study, stratum, level, window, pane);
+        CellAccumulator cell = cells.get(key);
+        if (cell == null) {
+            cell = new CellAccumulator();
+            cells.put(key, cell);
+        }
+        cachedKeys[slot] = key;
+        cachedCells[slot] = cell;
+        return cell;
+    }
+
+    private void clearCache() {
+        Arrays.fill(cachedKeys, null);
+        Arrays.fill(cachedCells, null);
+    }
+
+    private boolean isClosed(long sizeMillis, long paneStart) {
         // Saturating: paneStart + size + grace may exceed Long.MAX_VALUE for far-future times.
-        long closesAt = paneStart + w.size().toMillis();
+        long closesAt = paneStart + sizeMillis;
         closesAt = closesAt > Long.MAX_VALUE - graceMillis ? Long.MAX_VALUE : closesAt + graceMillis;
         return closesAt <= streamTime;
     }
@@ -87,14 +124,19 @@ public final class PartitionState {
     public List<CellKey> evictClosed() {
         List<CellKey> closed = new ArrayList<>();
         Map<String, WindowSpec> byName = new HashMap<>();
-        windows.forEach(w -> byName.put(w.name(), w));
+        for (WindowSpec w : windows) {
+            byName.put(w.name(), w);
+        }
         for (Iterator<Map.Entry<CellKey, CellAccumulator>> it = cells.entrySet().iterator(); it.hasNext(); ) {
             CellKey key = it.next().getKey();
             WindowSpec w = byName.get(key.window());
-            if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w, key.paneStart())) {
+            if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w.size().toMillis(), key.paneStart())) {
                 closed.add(key);
                 it.remove();
             }
+        }
+        if (!closed.isEmpty()) {
+            clearCache();
         }
         return closed;
     }
@@ -134,6 +176,7 @@ public final class PartitionState {
         CellAccumulator cell = new CellAccumulator();
         cell.set(arms);
         cells.put(key, cell);
+        clearCache();
     }
 
     /** Puts back the stream time and late counts read from the partials topic. */

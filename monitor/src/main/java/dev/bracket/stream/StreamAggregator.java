@@ -23,6 +23,7 @@ import org.slf4j.LoggerFactory;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.HashSet;
@@ -65,6 +66,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final int member;
     private int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
+    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
+    private final long[][] studyCounts;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
@@ -88,6 +91,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
         this.member = member;
+        this.studyCounts = new long[config.studies().size()][3];
         for (InputTopic in : config.inputs()) {
             parsers.put(in.topic(), new EventParser(config.studies(), in.fields(), config.maxEventBytes()));
         }
@@ -146,7 +150,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     }
 
     private void process(ConsumerRecords<byte[], byte[]> records) {
-        Map<String, long[]> perStudy = new HashMap<>(); // accepted, rejected, out of range
         for (TopicPartition tp : records.partitions()) {
             PartitionState state = states.get(tp);
             if (state == null) {
@@ -158,17 +161,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             int used = 0;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 ParsedEvent e = parser.parse(r.value(), r.timestamp());
-                long[] counts = e.study() == null ? null : perStudy.computeIfAbsent(e.study().id(), k -> new long[3]);
+                int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
                     used++;
-                    if (counts != null) {
-                        counts[0]++;
-                    }
+                    studyCounts[study][0]++;
                 } else {
-                    if (counts != null) {
-                        counts[1]++;
-                        counts[2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
+                    if (study >= 0) {
+                        studyCounts[study][1]++;
+                        studyCounts[study][2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
                     }
                     reject(r, e);
                 }
@@ -179,7 +180,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
             accepted.increment(used);
         }
-        perStudy.forEach((study, c) -> eventCounts.counted(study, c[0], c[1], c[2]));
+        for (int i = 0; i < studyCounts.length; i++) {
+            long[] c = studyCounts[i];
+            if (c[0] + c[1] > 0) {
+                eventCounts.counted(config.studies().get(i).id(), c[0], c[1], c[2]);
+                Arrays.fill(c, 0);
+            }
+        }
     }
 
     private void reject(ConsumerRecord<byte[], byte[]> r, ParsedEvent e) {

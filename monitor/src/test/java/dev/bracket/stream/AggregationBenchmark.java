@@ -12,109 +12,149 @@ import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
 import org.apache.kafka.clients.producer.KafkaProducer;
+import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+import org.apache.kafka.common.serialization.ByteArraySerializer;
 
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
-import java.util.ArrayList;
-import java.util.Arrays;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
+import java.util.Objects;
 import java.util.concurrent.TimeUnit;
 
 /**
- * Throughput of the aggregation stage against the baseline it must reach (at least 0.8 times a
- * plain consumer that only parses each record with Jackson's streaming parser), on the same
- * topic of a broker in this JVM. Prints figures; asserts nothing. Not part of the test suite.
+ * Throughput of the aggregation stage against its two reference points, all reading the same
+ * topic (EVENTS compact JSON events from {@link BenchEvents}, 3 partitions) of one broker in
+ * this JVM, in one run, one after the other, RUNS times after one round that warms the JIT and is not counted:
+ *
+ * <ol>
+ *   <li><b>plain</b>: a consumer (default settings) that polls every record and runs Jackson's
+ *       streaming parser over all its tokens, nothing else;</li>
+ *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics (cumulative and hourly windows) as a Kafka Streams
+ *       exactly-once v2 {@code groupByKey().aggregate()} into a RocksDB store, same commit interval;</li>
+ *   <li><b>monitor</b>: Bracket's {@link Monitor} (aggregator with Kafka transactions, bound
+ *       updater and alert evaluator running) with its default settings, in a fresh consumer group.</li>
+ * </ol>
+ *
+ * Events per second = EVENTS / (time from owning the partitions (2, 3) or the first poll (1)
+ * until the last event was folded in). The closing transaction of (2) and (3) follows within one
+ * commit interval and is waited for but not timed; then the results are checked (the store's or
+ * the committed offsets' totals equal EVENTS). The targets are monitor/plain at least 0.8 and
+ * monitor/streams at least 2.5, both ratios taken within one run. Prints figures; asserts
+ * nothing; not part of the test suite ({@code bench/run} runs it).
  *
  * <pre>
- * mvn -q -DskipTests package   # builds monitor/target/bracket.jar and the test classes
- * java -cp monitor/target/test-classes:monitor/target/bracket.jar dev.bracket.stream.AggregationBenchmark [EVENTS] [RUNS]
+ * AggregationBenchmark [EVENTS] [RUNS] [all|plain|streams|monitor]
  * </pre>
  */
 public final class AggregationBenchmark {
 
     private static final String TOPIC = "bench-events";
     private static final JsonFactory JSON = new JsonFactory();
+    /** CPU use during the last contender's measured interval. */
+    private static String cpuNote = "";
 
     private AggregationBenchmark() {
     }
 
     public static void main(String[] args) throws Exception {
         int events = args.length > 0 ? Integer.parseInt(args[0]) : 1_000_000;
-        int runs = args.length > 1 ? Integer.parseInt(args[1]) : 3;
+        int runs = args.length > 1 ? Integer.parseInt(args[1]) : 5;
+        // For profiling one contender alone: "monitor", "streams" or "plain" (no ratios then).
+        String only = args.length > 2 ? args[2] : "all";
         Path dir = Files.createTempDirectory("bracket-bench");
         try (EmbeddedBroker broker = EmbeddedBroker.start(dir.resolve("kafka"), 0)) {
-            BracketConfig base = config(broker, "bench-0");
+            BracketConfig base = config(broker, "bench-setup");
             try (Admin admin = new KafkaClients(base).admin()) {
                 TopicSetup.ensureTopics(admin, base);
             }
             long bytes = produce(broker, events);
-            System.out.printf(Locale.ROOT, "%,d events, %.0f bytes each on average, 3 partitions%n", events, (double) bytes / events);
+            System.out.printf(Locale.ROOT, "%,d events on '%s', %.0f bytes of JSON each on average, 3 partitions; commit interval %d ms%n",
+                    events, TOPIC, (double) bytes / events, base.commitInterval().toMillis());
             double[] plain = new double[runs];
-            double[] one = new double[runs];
-            double[] two = new double[runs];
+            double[] streams = new double[runs];
+            double[] monitor = new double[runs];
+            double[] vsPlain = new double[runs];
+            double[] vsStreams = new double[runs];
+            if (!only.equals("all")) {
+                for (int r = 0; r < runs; r++) {
+                    double rate = switch (only) {
+                        case "plain" -> plainConsumerParsing(broker, events);
+                        case "streams" -> streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
+                        case "monitor" -> monitor(broker, events, "bench-monitor-" + r);
+                        default -> throw new IllegalArgumentException("unknown contender " + only);
+                    };
+                    System.out.printf(Locale.ROOT, "run %d: %s %,.0f events/s (%s)%n", r + 1, only, rate, cpuNote);
+                }
+                return;
+            }
+            double warmPlain = plainConsumerParsing(broker, events);
+            double warmStreams = streamsPeer(broker, events, "bench-streams-warm", dir.resolve("streams-warm"));
+            double warmMonitor = monitor(broker, events, "bench-monitor-warm");
+            System.out.printf(Locale.ROOT, "warm-up (not counted): plain %,.0f/s; Kafka Streams %,.0f/s; monitor %,.0f/s%n",
+                    warmPlain, warmStreams, warmMonitor);
             for (int r = 0; r < runs; r++) {
                 plain[r] = plainConsumerParsing(broker, events);
-                one[r] = aggregator(broker, events, "bench-1-" + r, 1);
-                two[r] = aggregator(broker, events, "bench-2-" + r, 2);
-                System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f records/s; monitor (exactly-once) threads=1 %,.0f/s, threads=2 %,.0f/s%n",
-                        r + 1, plain[r], one[r], two[r]);
+                streams[r] = streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
+                monitor[r] = monitor(broker, events, "bench-monitor-" + r);
+                vsPlain[r] = monitor[r] / plain[r];
+                vsStreams[r] = monitor[r] / streams[r];
+                System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f events/s; Kafka Streams EOS %,.0f/s; monitor %,.0f/s;"
+                        + " monitor/plain %.2f, monitor/streams %.2f%n", r + 1, plain[r], streams[r], monitor[r], vsPlain[r], vsStreams[r]);
+                System.out.println("  monitor's aggregator: " + cpuNote);
             }
-            double p = median(plain);
-            System.out.printf(Locale.ROOT, "median: plain %,.0f/s; threads=1 %,.0f/s (ratio %.2f); threads=2 %,.0f/s (ratio %.2f); target >= 0.80%n",
-                    p, median(one), median(one) / p, median(two), median(two) / p);
+            System.out.println("over " + runs + " runs, median (min-max):");
+            System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
+            System.out.println("  Kafka Streams EOS       " + Stats.summary(streams, "%,.0f") + " events/s");
+            System.out.println("  Bracket monitor         " + Stats.summary(monitor, "%,.0f") + " events/s");
+            System.out.println("  monitor / plain         " + Stats.summary(vsPlain, "%.2f") + "   (target >= 0.80)");
+            System.out.println("  monitor / streams       " + Stats.summary(vsStreams, "%.2f") + "   (target >= 2.50)");
         } finally {
-            deleteQuietly(dir);
+            Stats.deleteQuietly(dir);
         }
     }
 
     private static BracketConfig config(EmbeddedBroker broker, String group) {
-        return config(broker, group, 1);
-    }
-
-    private static BracketConfig config(EmbeddedBroker broker, String group, int threads) {
-        return BracketConfig.parse("bench.yaml", """
-                studies:
-                  - id: checkout
-                    outcome: {min: 0, max: 1, better: lower}
-                    assume: [[worst-case], [mts-negative]]
-                  - id: registry
-                    outcome: {min: -5, max: 5}
-                    assume: [[worst-case], [mtr-positive]]
+        return BracketConfig.parse("bench.yaml", BenchEvents.STUDIES + """
                 inputs:
                   - topic: %s
-                topics: {rejected: bench-rejected, partials: bench-partials, bounds: bench-bounds, partitions: 3}
+                topics: {rejected: bench-rejected, partials: %s-partials, bounds: %s-bounds, partitions: 3}
+                alerts: {topic: %s-alerts}
                 windows:
                   - {name: hourly, kind: tumbling, size: 1h}
-                commit-interval: 1s
-                publish-interval: 1s
-                threads: %d
                 group: %s
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(TOPIC, threads, group, group, broker.bootstrapServers()));
+                """.formatted(TOPIC, group, group, group, group, group, broker.bootstrapServers()));
     }
 
     private static long produce(EmbeddedBroker broker, int events) {
         long bytes = 0;
-        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(broker)) {
-            for (TestEvents.Event e : TestEvents.stream(events, 0, 1)) {
-                producer.send(new ProducerRecord<>(TOPIC, e.key(), e.value()));
-                bytes += e.value().length;
+        BenchEvents gen = new BenchEvents(1);
+        byte[][] key = new byte[1][];
+        try (KafkaProducer<byte[], byte[]> producer = new KafkaProducer<>(Map.of(
+                ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
+                ProducerConfig.LINGER_MS_CONFIG, 20,
+                ProducerConfig.BATCH_SIZE_CONFIG, 256 * 1024),
+                new ByteArraySerializer(), new ByteArraySerializer())) {
+            for (long i = 0; i < events; i++) {
+                byte[] value = gen.next(i, key);
+                producer.send(new ProducerRecord<>(TOPIC, key[0], value));
+                bytes += value.length;
             }
             producer.flush();
         }
         return bytes;
     }
 
-    /** The baseline: poll every record and run the streaming parser over all its tokens. */
+    /** Reference (1): poll every record and run the streaming parser over all its tokens. */
     private static double plainConsumerParsing(EmbeddedBroker broker, int events) throws IOException {
         try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of(
                 ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
@@ -123,6 +163,7 @@ public final class AggregationBenchmark {
             List<TopicPartition> tps = List.of(new TopicPartition(TOPIC, 0), new TopicPartition(TOPIC, 1), new TopicPartition(TOPIC, 2));
             c.assign(tps);
             c.seekToBeginning(tps);
+            CpuUse cpu = CpuUse.start(Thread.currentThread().getName()::equals);
             long start = System.nanoTime();
             long seen = 0;
             long tokens = 0;
@@ -136,31 +177,58 @@ public final class AggregationBenchmark {
                     seen++;
                 }
             }
-            double seconds = (System.nanoTime() - start) / 1e9;
-            if (tokens == 0) {
-                throw new IllegalStateException("nothing parsed");
+            double rate = seen / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since() + "; " + cpu.busiest(3);
+            if (tokens < 10L * events) {
+                throw new IllegalStateException("only " + tokens + " tokens parsed");
             }
-            return seen / seconds;
+            return rate;
         }
     }
 
-    /**
-     * The monitor's aggregator in a fresh group: records per second from owning all partitions to
-     * having processed every record (the last commit follows within one commit interval).
-     */
-    private static double aggregator(EmbeddedBroker broker, int events, String group, int threads) throws Exception {
-        BracketConfig config = config(broker, group, threads);
+    /** Reference (2): the Kafka Streams aggregation in a fresh application. */
+    private static double streamsPeer(EmbeddedBroker broker, int events, String applicationId, Path stateDir) throws Exception {
+        BracketConfig config = config(broker, applicationId);
+        long folds = (long) events * config.windows().size();
+        try (StreamsPeer peer = new StreamsPeer(config, TOPIC, applicationId, stateDir)) {
+            peer.start();
+            peer.awaitRunning(60);
+            CpuUse cpu = CpuUse.start(n -> n.startsWith(applicationId + "-") && n.endsWith("-StreamThread-1"));
+            long start = System.nanoTime();
+            while (peer.folded() < folds) {
+                TimeUnit.MILLISECONDS.sleep(5);
+            }
+            double rate = events / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since();
+            TimeUnit.MILLISECONDS.sleep(config.commitInterval().toMillis() * 2);
+            long stored = peer.countInStore();
+            if (stored != folds) {
+                throw new IllegalStateException("Kafka Streams store holds " + stored + " (event, window) pairs, expected " + folds);
+            }
+            return rate;
+        }
+    }
+
+    /** Bracket's monitor in a fresh consumer group. */
+    private static double monitor(EmbeddedBroker broker, int events, String group) throws Exception {
+        BracketConfig config = config(broker, group);
         try (Admin admin = new KafkaClients(config).admin();
              Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports())) {
             while (monitor.assignedPartitions() < 3) {
                 TimeUnit.MILLISECONDS.sleep(5);
             }
+            CpuUse cpu = CpuUse.start("bracket-aggregator-0"::equals);
             long start = System.nanoTime();
             while (monitor.metrics().total("bracket.events", "result", "accepted") < events) {
                 TimeUnit.MILLISECONDS.sleep(5);
             }
             double rate = events / ((System.nanoTime() - start) / 1e9);
+            cpuNote = cpu.since() + "; " + cpu.busiest(3);
+            long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
             while (committed(admin, group) < events) {
+                if (System.nanoTime() > deadline) {
+                    throw new IllegalStateException("the monitor did not commit all " + events + " offsets");
+                }
                 TimeUnit.MILLISECONDS.sleep(20);
             }
             return rate;
@@ -169,23 +237,6 @@ public final class AggregationBenchmark {
 
     private static long committed(Admin admin, String group) throws Exception {
         return admin.listConsumerGroupOffsets(group).partitionsToOffsetAndMetadata().get(10, TimeUnit.SECONDS)
-                .values().stream().filter(java.util.Objects::nonNull).mapToLong(OffsetAndMetadata::offset).sum();
-    }
-
-    private static double median(double[] xs) {
-        double[] s = xs.clone();
-        Arrays.sort(s);
-        return s[s.length / 2];
-    }
-
-    private static void deleteQuietly(Path dir) throws IOException {
-        List<Path> paths = new ArrayList<>();
-        try (var walk = Files.walk(dir)) {
-            walk.forEach(paths::add);
-        }
-        paths.sort((a, b) -> b.getNameCount() - a.getNameCount());
-        for (Path p : paths) {
-            Files.deleteIfExists(p);
-        }
+                .values().stream().filter(Objects::nonNull).mapToLong(OffsetAndMetadata::offset).sum();
     }
 }

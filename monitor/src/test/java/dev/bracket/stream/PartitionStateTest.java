@@ -75,6 +75,52 @@ class PartitionStateTest {
     }
 
     @Test
+    @DisplayName("with more cells than the lookup cache holds, equal names as other String objects, evictions and a restore in between, every cell matches Commons Math")
+    void manyCellsMatchCommonsMath() {
+        // Reference: Commons Math SummaryStatistics per stratum over the same outcomes.
+        Random rnd = new Random(11);
+        PartitionState s = state(0);
+        int strata = 300;
+        SummaryStatistics[] expected = new SummaryStatistics[strata];
+        for (int i = 0; i < strata; i++) {
+            expected[i] = new SummaryStatistics();
+        }
+        String[] names = new String[strata];
+        for (int i = 0; i < strata; i++) {
+            names[i] = "st" + i;
+        }
+        int k = 0;
+        for (int i = 0; i < 60_000; i++) {
+            if (rnd.nextInt(3) == 0) {
+                k = rnd.nextInt(strata); // runs of events in one stratum, as in real streams
+            }
+            double y = rnd.nextDouble() * 10;
+            ParsedEvent e = new ParsedEvent();
+            e.reset();
+            e.study = STUDY;
+            e.stratum = rnd.nextBoolean() ? names[k] : new String(names[k]); // equal, not always identical
+            e.instrument = "";
+            e.treated = true;
+            e.outcome = y;
+            e.time = 1_000L * i;
+            s.add(e);
+            expected[k].addValue(y);
+            if (i % 5_000 == 4_999) {
+                assertThat(s.evictClosed()).isNotEmpty();
+            }
+            if (i == 30_000) {
+                s.cells().forEach(s::restoreCell);
+            }
+        }
+        var cells = s.cells();
+        for (int j = 0; j < strata; j++) {
+            ObservedArms arms = cells.get(new CellKey("s", names[j], "", "cumulative", 0));
+            assertThat(arms.treated().count()).as(names[j]).isEqualTo(expected[j].getN());
+            assertThat(arms.treated().mean()).as(names[j]).isCloseTo(expected[j].getMean(), within(1e-12));
+        }
+    }
+
+    @Test
     @DisplayName("tumbling panes split by event time; an event later than the grace period counts in cumulative only")
     void tumblingPanesAndLateEvents() {
         PartitionState s = state(0);

@@ -1,0 +1,78 @@
+package dev.bracket.stream;
+
+import com.fasterxml.jackson.core.JsonFactory;
+import com.fasterxml.jackson.core.JsonParser;
+import dev.bracket.config.BracketConfig;
+
+import java.io.IOException;
+import java.util.Locale;
+
+/**
+ * The aggregator's per-event work without Kafka, on EVENTS in-memory events from
+ * {@link BenchEvents}: nanoseconds per event of (a) Jackson's streaming parser over all tokens
+ * (the plain consumer's work), (b) {@link EventParser#parse}, (c) parse and fold into a
+ * {@link PartitionState} with cumulative and hourly windows. ROUNDS rounds, the first ones warm
+ * the JIT; prints every round. A guide for tuning the hot path; asserts nothing; not part of the
+ * test suite.
+ *
+ * <pre>
+ * HotPathBenchmark [EVENTS] [ROUNDS]
+ * </pre>
+ */
+public final class HotPathBenchmark {
+
+    private static final JsonFactory JSON = new JsonFactory();
+
+    private HotPathBenchmark() {
+    }
+
+    public static void main(String[] args) throws IOException {
+        int events = args.length > 0 ? Integer.parseInt(args[0]) : 1_000_000;
+        int rounds = args.length > 1 ? Integer.parseInt(args[1]) : 8;
+        BracketConfig config = BracketConfig.parse("hot.yaml", BenchEvents.STUDIES + """
+                inputs:
+                  - topic: events
+                windows:
+                  - {name: hourly, kind: tumbling, size: 1h}
+                kafka:
+                  bootstrap.servers: localhost:9
+                """);
+        BenchEvents gen = new BenchEvents(1);
+        byte[][] key = new byte[1][];
+        byte[][] values = new byte[events][];
+        for (int i = 0; i < events; i++) {
+            values[i] = gen.next(i, key);
+        }
+        EventParser parser = new EventParser(config.studies(), config.inputs().get(0).fields(), config.maxEventBytes());
+        for (int r = 1; r <= rounds; r++) {
+            long t0 = System.nanoTime();
+            long tokens = 0;
+            for (byte[] v : values) {
+                try (JsonParser p = JSON.createParser(v)) {
+                    while (p.nextToken() != null) {
+                        tokens++;
+                    }
+                }
+            }
+            long t1 = System.nanoTime();
+            long usable = 0;
+            for (byte[] v : values) {
+                usable += parser.parse(v, 0L).isUsable() ? 1 : 0;
+            }
+            long t2 = System.nanoTime();
+            PartitionState state = new PartitionState(new SourcePartition("events", 0), config.windows(), config.grace().toMillis(), (s, w) -> { });
+            for (byte[] v : values) {
+                ParsedEvent e = parser.parse(v, 0L);
+                if (e.isUsable()) {
+                    state.add(e);
+                }
+            }
+            long t3 = System.nanoTime();
+            if (tokens == 0 || usable != events || state.cells().isEmpty()) {
+                throw new IllegalStateException("events not read as expected");
+            }
+            System.out.printf(Locale.ROOT, "round %d: Jackson tokens %.0f ns/event; EventParser %.0f ns; parse + fold %.0f ns%n",
+                    r, (t1 - t0) / (double) events, (t2 - t1) / (double) events, (t3 - t2) / (double) events);
+        }
+    }
+}
