@@ -40,10 +40,7 @@ public final class StudyDocuments {
             s.put("updatedAt", updatedAt(reports).toString());
             ArrayNode windows = s.putArray("windows");
             for (PublishedReport r : reports) {
-                ObjectNode w = windows.addObject();
-                w.put("window", r.window());
-                w.put("computedAt", r.computedAt().toString());
-                w.set("counts", counts(r));
+                window(windows, r);
             }
         }
         return root;
@@ -61,13 +58,18 @@ public final class StudyDocuments {
         root.put("updatedAt", updatedAt(reports).toString());
         ArrayNode windows = root.putArray("windows");
         for (PublishedReport r : reports) {
-            ObjectNode w = windows.addObject();
-            w.put("window", r.window());
-            w.put("computedAt", r.computedAt().toString());
-            w.set("counts", counts(r));
-            w.set("report", ReportJson.toJson(r.report()));
+            window(windows, r).set("report", ReportJson.toJson(r.report()));
         }
         return Optional.of(root);
+    }
+
+    /** A window's entry in both documents: its name, when it was computed and its counts. */
+    private static ObjectNode window(ArrayNode windows, PublishedReport r) {
+        ObjectNode w = windows.addObject();
+        w.put("window", r.window());
+        w.put("computedAt", r.computedAt().toString());
+        w.set("counts", counts(r));
+        return w;
     }
 
     /**
