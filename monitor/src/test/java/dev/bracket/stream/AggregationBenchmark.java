@@ -19,6 +19,7 @@ import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 
 import java.io.IOException;
+import java.lang.management.ManagementFactory;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
@@ -110,7 +111,8 @@ public final class AggregationBenchmark {
                 vsStreams[r] = monitor[r] / streams[r];
                 System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f events/s; Kafka Streams EOS %,.0f/s; monitor %,.0f/s;"
                         + " monitor/plain %.2f, monitor/streams %.2f%n", r + 1, plain[r], streams[r], monitor[r], vsPlain[r], vsStreams[r]);
-                System.out.println("  monitor's aggregator: " + cpuNote);
+                System.out.printf(Locale.ROOT, "  monitor's aggregator: %s; machine load average %.1f (this benchmark alone keeps it near 2; well above, other work shared the cores)%n",
+                        cpuNote, ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
             }
             System.out.println("over " + runs + " runs, median (min-max):");
             System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
