@@ -19,6 +19,7 @@ import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 
 import java.io.IOException;
+import java.lang.management.ManagementFactory;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
@@ -31,23 +32,26 @@ import java.util.concurrent.TimeUnit;
 /**
  * Throughput of the aggregation stage against its two reference points, all reading the same
  * topic (EVENTS compact JSON events from {@link BenchEvents}, 3 partitions) of one broker in
- * this JVM, in one run, one after the other, RUNS times after one round that warms the JIT and is not counted:
+ * this JVM, in one run, one after the other: one round that warms the JIT and is not counted,
+ * then RUNS rounds of
  *
  * <ol>
  *   <li><b>plain</b>: a consumer (default settings) that polls every record and runs Jackson's
  *       streaming parser over all its tokens, nothing else;</li>
- *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics (cumulative and hourly windows) as a Kafka Streams
- *       exactly-once v2 {@code groupByKey().aggregate()} into a RocksDB store, same commit interval;</li>
+ *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics (cumulative and hourly
+ *       windows) as a Kafka Streams exactly-once v2 {@code groupByKey().aggregate()} into a
+ *       RocksDB store, same commit interval;</li>
  *   <li><b>monitor</b>: Bracket's {@link Monitor} (aggregator with Kafka transactions, bound
  *       updater and alert evaluator running) with its default settings, in a fresh consumer group.</li>
  * </ol>
  *
  * Events per second = EVENTS / (time from owning the partitions (2, 3) or the first poll (1)
  * until the last event was folded in). The closing transaction of (2) and (3) follows within one
- * commit interval and is waited for but not timed; then the results are checked (the store's or
- * the committed offsets' totals equal EVENTS). The targets are monitor/plain at least 0.8 and
- * monitor/streams at least 2.5, both ratios taken within one run. Prints figures; asserts
- * nothing; not part of the test suite ({@code bench/run} runs it).
+ * commit interval and is waited for but not timed; then the results are checked (the store's
+ * counts or the committed offsets add up to EVENTS, else the harness stops with an error). The
+ * targets are monitor/plain at least 0.8 and monitor/streams at least 2.5, both ratios taken
+ * within one round; the summary gives their median and range over the rounds. Prints figures,
+ * judges nothing; not part of the test suite ({@code bench/run} runs it).
  *
  * <pre>
  * AggregationBenchmark [EVENTS] [RUNS] [all|plain|streams|monitor]
@@ -107,7 +111,8 @@ public final class AggregationBenchmark {
                 vsStreams[r] = monitor[r] / streams[r];
                 System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f events/s; Kafka Streams EOS %,.0f/s; monitor %,.0f/s;"
                         + " monitor/plain %.2f, monitor/streams %.2f%n", r + 1, plain[r], streams[r], monitor[r], vsPlain[r], vsStreams[r]);
-                System.out.println("  monitor's aggregator: " + cpuNote);
+                System.out.printf(Locale.ROOT, "  monitor's aggregator: %s; machine load average %.1f (this benchmark alone keeps it near 2; well above, other work shared the cores)%n",
+                        cpuNote, ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
             }
             System.out.println("over " + runs + " runs, median (min-max):");
             System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
