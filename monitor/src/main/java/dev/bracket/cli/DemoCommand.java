@@ -8,6 +8,7 @@ import dev.bracket.demo.DemoProducerCommand;
 import dev.bracket.demo.DurationText;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
+import dev.bracket.demo.ScenarioOptions;
 import dev.bracket.demo.ScenarioSettings;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
@@ -66,20 +67,12 @@ public final class DemoCommand implements Callable<Integer> {
             description = "Simulated events per second (default: ${DEFAULT-VALUE}).")
     double rate;
 
-    @Option(names = "--seed", paramLabel = "N", defaultValue = "1", description = "Fixes the simulated hosts and outcomes (default: ${DEFAULT-VALUE}).")
-    long seed;
+    @CommandLine.Mixin
+    ScenarioOptions scenarioOptions;
 
     @Option(names = "--port", paramLabel = "PORT", defaultValue = "8080",
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
     int port;
-
-    @Option(names = "--selection", paramLabel = "S", defaultValue = "" + ScenarioSettings.DEFAULT_SELECTION,
-            description = "How strongly engineers pick healthy hosts, -1 to 1; 0 is as if at random (default: ${DEFAULT-VALUE}).")
-    double selection;
-
-    @Option(names = "--effect", paramLabel = "E", defaultValue = "" + ScenarioSettings.DEFAULT_EFFECT,
-            description = "True average effect of the setting, in [-0.5, 0.5] (default: ${DEFAULT-VALUE}).")
-    double effect;
 
     @Override
     public Integer call() throws Exception {
@@ -165,13 +158,8 @@ public final class DemoCommand implements Callable<Integer> {
     }
 
     private ScenarioSettings settings() {
-        try {
-            return new ScenarioSettings(ScenarioSettings.DEFAULT_HOSTS, ScenarioSettings.DEFAULT_ROLLOUT_SHARE,
-                    selection, effect, false, seed);
-        } catch (IllegalArgumentException e) {
-            throw new InputError(e.getMessage().startsWith("selection") ? "--selection: " + e.getMessage()
-                    : e.getMessage().startsWith("effect") ? "--effect: " + e.getMessage() : e.getMessage());
-        }
+        return scenarioOptions.settings(ScenarioSettings.DEFAULT_HOSTS, ScenarioSettings.DEFAULT_ROLLOUT_SHARE, false,
+                spec.commandLine());
     }
 
     /** The demo study: outcomes are shares in [0, 1], higher is better; every single assumption and one joint set. */

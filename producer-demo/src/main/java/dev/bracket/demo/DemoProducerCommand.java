@@ -56,13 +56,8 @@ public final class DemoProducerCommand implements Callable<Integer> {
     @Option(names = "--count", paramLabel = "N", description = "Stop after N events (default: no limit).")
     long count;
 
-    @Option(names = "--selection", paramLabel = "S", defaultValue = "" + ScenarioSettings.DEFAULT_SELECTION,
-            description = "How strongly the engineers pick healthy hosts, from -1 (troubled first) through 0 (as if at random) to 1 (default: ${DEFAULT-VALUE}).")
-    double selection;
-
-    @Option(names = "--effect", paramLabel = "E", defaultValue = "" + ScenarioSettings.DEFAULT_EFFECT,
-            description = "Average effect of the setting on the share of requests meeting the objective, in [-0.5, 0.5] (default: ${DEFAULT-VALUE}).")
-    double effect;
+    @CommandLine.Mixin
+    ScenarioOptions scenarioOptions;
 
     @Option(names = "--hosts", paramLabel = "N", defaultValue = "" + ScenarioSettings.DEFAULT_HOSTS,
             description = "Hosts in the simulated service (default: ${DEFAULT-VALUE}).")
@@ -74,9 +69,6 @@ public final class DemoProducerCommand implements Callable<Integer> {
 
     @Option(names = "--strata", description = "Put each host's region in the events' stratum field.")
     boolean strata;
-
-    @Option(names = "--seed", paramLabel = "N", defaultValue = "1", description = "Fixes hosts, picks and outcomes; the same seed gives the same events (default: ${DEFAULT-VALUE}).")
-    long seed;
 
     @Option(names = "--from-file", paramLabel = "FILE", description = "Send this file's JSON lines instead of simulating ('-' reads standard input).")
     String fromFile;
@@ -113,11 +105,7 @@ public final class DemoProducerCommand implements Callable<Integer> {
     }
 
     private ScenarioSettings scenario() {
-        try {
-            return new ScenarioSettings(hosts, rolloutShare, selection, effect, strata, seed);
-        } catch (IllegalArgumentException e) {
-            throw new CommandLine.ParameterException(spec.commandLine(), e.getMessage());
-        }
+        return scenarioOptions.settings(hosts, rolloutShare, strata, spec.commandLine());
     }
 
     private BufferedReader openFile() throws IOException {
