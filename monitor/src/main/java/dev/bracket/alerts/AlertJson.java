@@ -22,7 +22,7 @@ import java.util.List;
 public final class AlertJson {
 
     /** Identifies the document layout; bump the number on incompatible changes. */
-    public static final String SCHEMA = "bracket.alert/1";
+    public static final String SCHEMA = "bracket.alert/2";
 
     private static final ObjectMapper MAPPER = ReportJson.mapper();
 
@@ -66,7 +66,7 @@ public final class AlertJson {
     }
 
     /** Identifies the layout of {@link #listing}. */
-    public static final String LISTING_SCHEMA = "bracket.alerts/1";
+    public static final String LISTING_SCHEMA = "bracket.alerts/2";
 
     /**
      * The body of {@code GET /api/alerts}: the alerts firing now and the newest transitions

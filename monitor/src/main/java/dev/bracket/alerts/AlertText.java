@@ -19,7 +19,7 @@ final class AlertText {
     /** E.g. {@code anytime 95% band [0.1234, 0.5678]}, or {@code anytime 95% band (refuted)}. */
     static String band(ConfidenceBand b) {
         String name = b.method().id() + " " + num(100 * b.level()).replaceAll("\\.?0+$", "") + "% band";
-        return b.isIdentified()
+        return b.isBounded()
                 ? String.format(Locale.ROOT, "%s [%s, %s]", name, num(b.lower()), num(b.upper()))
                 : name + " (" + b.status().id() + ")";
     }

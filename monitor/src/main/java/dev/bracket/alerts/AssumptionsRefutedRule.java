@@ -34,7 +34,7 @@ public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
         String seen = AlertText.band(band);
         if (band.isRefuted()) {
             return Verdict.met("", seen + ": no treated share and arm means in the confidence region satisfy the assumptions"
-                    + (interval.isIdentified() ? "" : ", and the estimate is refuted too"));
+                    + (interval.isBounded() ? "" : ", and the estimate is refuted too"));
         }
         if (clearMargin > 0 && band.width() >= clearMargin) {
             return Verdict.clear(seen + " exists, with width at least the clear margin " + AlertText.num(clearMargin));

@@ -36,7 +36,7 @@ public record PracticalEquivalenceRule(double low, double high, double clearMarg
     public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String range = "[" + AlertText.num(low) + ", " + AlertText.num(high) + "]";
         String seen = AlertText.band(band);
-        if (band.isRefuted() || !interval.isIdentified()) {
+        if (band.isRefuted() || !interval.isBounded()) {
             return Verdict.unmet(seen + ": the assumptions contradict the data");
         }
         boolean inside = band.lower() >= low && band.upper() <= high && interval.lower() >= low && interval.upper() <= high;

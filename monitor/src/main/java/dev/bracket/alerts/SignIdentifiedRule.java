@@ -32,7 +32,7 @@ public record SignIdentifiedRule(double clearMargin) implements CellRule {
     @Override
     public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
         String seen = AlertText.band(band);
-        if (band.isRefuted() || !interval.isIdentified()) {
+        if (band.isRefuted() || !interval.isBounded()) {
             return Verdict.unmet(seen + ": the assumptions contradict the data, no sign is identified");
         }
         if (band.lower() > 0 && interval.lower() > 0) {

@@ -89,7 +89,7 @@ final class BoxProjection {
         for (double[] m : box.meanVertices()) {
             for (double p : new double[] {box.pLow(), box.pHigh()}) {
                 IdentifiedInterval iv = BoundCalculator.interval(p, m[0], m[1], range, assumptions);
-                if (iv.isIdentified()) {
+                if (iv.isBounded()) {
                     lower = Math.min(lower, iv.lower());
                     upper = Math.max(upper, iv.upper());
                 }

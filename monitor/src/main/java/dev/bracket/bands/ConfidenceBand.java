@@ -10,7 +10,7 @@ import dev.bracket.bounds.BoundStatus;
  *
  * <p>The status says what the band is:
  * <ul>
- *   <li>{@link BoundStatus#IDENTIFIED}: {@code [lower, upper]} is the band;</li>
+ *   <li>{@link BoundStatus#BOUNDED}: {@code [lower, upper]} is the band;</li>
  *   <li>{@link BoundStatus#REFUTED}: no value of the observable quantities (treated share and
  *       arm means) inside their confidence region is compatible with the assumptions, so the data
  *       contradict the assumptions at this level. For a cell under {@code mtr-positive,mts-positive}
@@ -38,13 +38,13 @@ public record ConfidenceBand(BandMethod method, double level, BoundStatus status
         if (!(level > 0 && level < 1)) {
             throw new IllegalArgumentException("level must lie strictly between 0 and 1, was " + level);
         }
-        if (status == BoundStatus.IDENTIFIED && !(Double.isFinite(lower) && Double.isFinite(upper) && lower <= upper)) {
+        if (status == BoundStatus.BOUNDED && !(Double.isFinite(lower) && Double.isFinite(upper) && lower <= upper)) {
             throw new IllegalArgumentException("a band needs finite ends with lower <= upper (" + lower + ", " + upper + ")");
         }
     }
 
     public static ConfidenceBand of(BandMethod method, double level, double lower, double upper, String basis) {
-        return new ConfidenceBand(method, level, BoundStatus.IDENTIFIED, lower, upper, basis);
+        return new ConfidenceBand(method, level, BoundStatus.BOUNDED, lower, upper, basis);
     }
 
     public static ConfidenceBand refuted(BandMethod method, double level, String basis) {
@@ -55,8 +55,8 @@ public record ConfidenceBand(BandMethod method, double level, BoundStatus status
         return new ConfidenceBand(method, level, BoundStatus.INSUFFICIENT_DATA, Double.NaN, Double.NaN, basis);
     }
 
-    public boolean isIdentified() {
-        return status == BoundStatus.IDENTIFIED;
+    public boolean isBounded() {
+        return status == BoundStatus.BOUNDED;
     }
 
     /** True when the data contradict the assumptions at this confidence level. */
@@ -76,7 +76,7 @@ public record ConfidenceBand(BandMethod method, double level, BoundStatus status
 
     /** +1 when the band lies above zero, -1 below, 0 when it contains zero or is not identified. */
     public int sign() {
-        if (!isIdentified()) {
+        if (!isBounded()) {
             return 0;
         }
         return lower > 0 ? 1 : upper < 0 ? -1 : 0;
@@ -84,6 +84,6 @@ public record ConfidenceBand(BandMethod method, double level, BoundStatus status
 
     /** True when {@code value} lies in the band. */
     public boolean contains(double value) {
-        return isIdentified() && value >= lower && value <= upper;
+        return isBounded() && value >= lower && value <= upper;
     }
 }

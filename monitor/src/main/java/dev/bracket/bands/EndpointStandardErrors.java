@@ -52,7 +52,7 @@ public record EndpointStandardErrors(double lower, double upper) {
         double mu1 = arms.treated().mean();
         double mu0 = arms.control().mean();
         IdentifiedInterval at = BoundCalculator.interval(p, mu1, mu0, range, assumptions);
-        if (!at.isIdentified()) {
+        if (!at.isBounded()) {
             return Optional.empty();
         }
         IdentifiedInterval allTreated = BoundCalculator.interval(1, mu1, mu0, range, assumptions);
@@ -92,7 +92,7 @@ public record EndpointStandardErrors(double lower, double upper) {
             IdentifiedInterval there = treated
                     ? BoundCalculator.interval(p, moved, mu0, range, assumptions)
                     : BoundCalculator.interval(p, mu1, moved, range, assumptions);
-            if (!there.isIdentified()) {
+            if (!there.isBounded()) {
                 continue;
             }
             double[] d = {(there.lower() - at.lower()) / step, (there.upper() - at.upper()) / step};

@@ -55,7 +55,7 @@ public final class FixedHorizonBand {
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
-        if (estimate.isIdentified() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
+        if (estimate.isBounded() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
             Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
             if (band.isPresent()) {
                 return band.get();
@@ -71,7 +71,7 @@ public final class FixedHorizonBand {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
         IdentifiedInterval estimate = BoundCalculator.interval(arms, range, assumptions);
-        Optional<EndpointStandardErrors> se = estimate.isIdentified()
+        Optional<EndpointStandardErrors> se = estimate.isBounded()
                 ? EndpointStandardErrors.of(arms, range, assumptions, variance) : Optional.empty();
         if (se.isPresent()) {
             return imbensManski(estimate.lower(), estimate.upper(), se.get().lower(), se.get().upper(), arms.total(),
@@ -95,7 +95,7 @@ public final class FixedHorizonBand {
             }
             IdentifiedInterval iv = BoundCalculator.interval(arms, range, assumptions);
             Optional<EndpointStandardErrors> se = EndpointStandardErrors.of(arms, range, assumptions, variance);
-            if (!iv.isIdentified() || se.isEmpty()) {
+            if (!iv.isBounded() || se.isEmpty()) {
                 return Optional.empty();
             }
             double w = (double) arms.total() / total;

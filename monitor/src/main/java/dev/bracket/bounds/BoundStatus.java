@@ -3,7 +3,7 @@ package dev.bracket.bounds;
 /** Whether an interval could be computed, and if not, why. */
 public enum BoundStatus {
     /** The assumptions are compatible with the data and the interval is their identified set. */
-    IDENTIFIED("identified"),
+    BOUNDED("bounded"),
     /** The assumptions contradict the data: no joint law satisfies them all. */
     REFUTED("refuted"),
     /** An arm (or a stratum or instrument level needed) has no units yet. */

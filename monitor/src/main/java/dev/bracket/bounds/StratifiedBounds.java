@@ -50,7 +50,7 @@ public final class StratifiedBounds {
             switch (interval.status()) {
                 case REFUTED -> refuted = true;
                 case INSUFFICIENT_DATA -> insufficient = true;
-                case IDENTIFIED -> {
+                case BOUNDED -> {
                     double w = (double) study.pooled(e.getKey()).total() / total;
                     lower += w * interval.lower();
                     upper += w * interval.upper();

@@ -157,7 +157,7 @@ public final class CalcCommand implements Callable<Integer> {
         }
         EnumSet<BandMethod> methods = switch (band.trim().toLowerCase(Locale.ROOT)) {
             case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed", "fixed-horizon" -> EnumSet.of(BandMethod.FIXED_HORIZON);
+            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
             case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
             default -> throw new InputError("--band must be fixed, anytime or both, was '" + band + "'");
         };

@@ -82,7 +82,7 @@ final class DemoScreen {
         for (BoundRow row : rows) {
             IdentifiedInterval iv = row.interval();
             String band = anytimeBand(row).map(DemoScreen::bandText).orElse("");
-            if (iv.isIdentified()) {
+            if (iv.isBounded()) {
                 boolean covers = iv.lower() <= s.truth().ate() && s.truth().ate() <= iv.upper();
                 out.append(String.format(Locale.ROOT, format, row.assumptions(), signed(iv.lower()), signed(iv.upper()),
                         String.format(Locale.ROOT, "%.4f", iv.width()), signText(row), band,
@@ -115,7 +115,7 @@ final class DemoScreen {
     }
 
     private static String bandText(ConfidenceBand b) {
-        return b.isIdentified() ? "[" + signed(b.lower()) + ", " + signed(b.upper()) + "]" : b.status().id();
+        return b.isBounded() ? "[" + signed(b.lower()) + ", " + signed(b.upper()) + "]" : b.status().id();
     }
 
     private static String signed(double v) {

@@ -112,7 +112,7 @@ public final class MonitorCommand implements Callable<Integer> {
         line.append(LocalTime.now().truncatedTo(ChronoUnit.SECONDS)).append(String.format(Locale.ROOT,
                 " events used %d, rejected %d, late %d; partitions %d; commits %d",
                 m.total("bracket.events", "result", "accepted"), m.total("bracket.events", "result", "rejected"),
-                m.total("bracket.events.late"), monitor.assignedPartitions(), m.total("bracket.commits", "result", "committed")));
+                m.total("bracket.events.late"), monitor.assignedPartitions(), m.total("bracket.transactions", "result", "committed")));
         for (String study : latest.studies()) {
             PublishedReport r = latest.get(study, "cumulative").orElse(null);
             if (r == null || r.report().rows().isEmpty()) {
@@ -120,7 +120,7 @@ public final class MonitorCommand implements Callable<Integer> {
             }
             BoundRow row = r.report().rows().get(0);
             line.append(String.format(Locale.ROOT, " | %s n=%d %s: %s", study, r.report().pooled().total(), row.assumptions(),
-                    row.interval().isIdentified()
+                    row.interval().isBounded()
                             ? String.format(Locale.ROOT, "[%.4f, %.4f]", row.interval().lower(), row.interval().upper())
                             : row.interval().status().id()));
         }

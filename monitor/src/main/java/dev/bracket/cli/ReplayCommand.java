@@ -94,7 +94,7 @@ public final class ReplayCommand implements Callable<Integer> {
 
     private static ObjectNode toJson(Replay.Result result) {
         ObjectNode root = ReportJson.mapper().createObjectNode();
-        root.put("schema", "bracket.replay/1");
+        root.put("schema", "bracket.replay/2");
         root.put("accepted", result.accepted());
         ObjectNode rejected = root.putObject("rejected");
         rejected.put("total", result.rejectedTotal());

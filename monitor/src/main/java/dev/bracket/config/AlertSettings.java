@@ -30,7 +30,7 @@ import java.util.stream.Collectors;
  *
  * <pre>
  * studies[i].alerts:
- *   band: anytime | fixed-horizon      (default anytime)
+ *   band: anytime | fixed      (default anytime)
  *   min-per-arm: 30                    units per arm before any per-cell rule may fire
  *   clear-after: 3                     consecutive looks without the condition that resolve an alert
  *   rules:                             (absent: sign-identified and assumptions-refuted; {} for none)

@@ -18,7 +18,7 @@ import java.util.TreeMap;
 public final class ReportJson {
 
     /** Identifies the document layout; bump the number on incompatible changes. */
-    public static final String SCHEMA = "bracket.bounds/1";
+    public static final String SCHEMA = "bracket.bounds/2";
 
     private static final ObjectMapper MAPPER = new ObjectMapper();
 

@@ -50,7 +50,7 @@ public final class ReportTable {
     }
 
     private static void appendBand(StringBuilder out, String format, ConfidenceBand b) {
-        boolean ok = b.isIdentified();
+        boolean ok = b.isBounded();
         String signText = !ok ? "" : signText(BoundRow.signWord(b.sign()));
         out.append(String.format(Locale.ROOT, format, bandLabel(b), b.status().id(),
                 ok ? num(b.lower()) : "-", ok ? num(b.upper()) : "-", ok ? num(b.width()) : "-", signText));
@@ -91,7 +91,7 @@ public final class ReportTable {
     }
 
     private static void appendInterval(StringBuilder out, String format, String label, IdentifiedInterval iv, String sign) {
-        boolean ok = iv.isIdentified();
+        boolean ok = iv.isBounded();
         String signText = !ok ? "" : signText(sign);
         out.append(String.format(Locale.ROOT, format, label, iv.status().id(),
                 ok ? num(iv.lower()) : "-", ok ? num(iv.upper()) : "-", ok ? num(iv.width()) : "-", signText));

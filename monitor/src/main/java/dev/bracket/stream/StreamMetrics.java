@@ -16,8 +16,8 @@ import java.util.concurrent.atomic.AtomicInteger;
  *   <li>{@code bracket_events_total{topic, result="accepted"|"rejected"}}</li>
  *   <li>{@code bracket_events_rejected_total{topic, reason}} — reasons as in {@link RejectReason}</li>
  *   <li>{@code bracket_events_late_total{study, window}} — left out of a closed window pane</li>
- *   <li>{@code bracket_commits_total{result="committed"|"aborted"}} and {@code bracket_commit_seconds}</li>
- *   <li>{@code bracket_partition_restores_total} and gauge {@code bracket_partitions_assigned}</li>
+ *   <li>{@code bracket_transactions_total{result="committed"|"aborted"}} and {@code bracket_transaction_duration_seconds}</li>
+ *   <li>{@code bracket_partitions_restored_total} and gauge {@code bracket_partitions_assigned}</li>
  *   <li>{@code bracket_reports_published_total{study}}</li>
  * </ul>
  *
@@ -40,13 +40,13 @@ public final class StreamMetrics {
 
     public StreamMetrics(MeterRegistry registry) {
         this.registry = registry;
-        committed = Counter.builder("bracket.commits").tag("result", "committed")
+        committed = Counter.builder("bracket.transactions").tag("result", "committed")
                 .description("Transactions that committed partial statistics and input offsets").register(registry);
-        aborted = Counter.builder("bracket.commits").tag("result", "aborted")
+        aborted = Counter.builder("bracket.transactions").tag("result", "aborted")
                 .description("Transactions aborted after an error; their input is processed again").register(registry);
-        restores = Counter.builder("bracket.partition.restores")
+        restores = Counter.builder("bracket.partitions.restored")
                 .description("Input partitions whose statistics were restored from the partials topic").register(registry);
-        commitTime = Timer.builder("bracket.commit").description("Time to write partials and commit one transaction").register(registry);
+        commitTime = Timer.builder("bracket.transaction.duration").description("Time to write partials and commit one transaction").register(registry);
         registry.gauge("bracket.partitions.assigned", assigned);
     }
 

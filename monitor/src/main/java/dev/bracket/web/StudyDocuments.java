@@ -21,9 +21,9 @@ import java.util.Optional;
  */
 public final class StudyDocuments {
 
-    public static final String LIST_SCHEMA = "bracket.studies/1";
-    public static final String STUDY_SCHEMA = "bracket.study/1";
-    public static final String HISTORY_SCHEMA = "bracket.history/1";
+    public static final String LIST_SCHEMA = "bracket.studies/2";
+    public static final String STUDY_SCHEMA = "bracket.study/2";
+    public static final String HISTORY_SCHEMA = "bracket.history/2";
 
     private StudyDocuments() {
     }

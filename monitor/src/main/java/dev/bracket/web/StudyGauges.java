@@ -23,11 +23,11 @@ import java.util.function.ToDoubleFunction;
  * they always show the latest computed values; this class only registers a gauge the first
  * time its study, window and assumption set appear. Names (Prometheus form):
  * <ul>
- *   <li>{@code bracket_interval_lower}, {@code bracket_interval_upper}: ends of the identified
+ *   <li>{@code bracket_ate_lower}, {@code bracket_ate_upper}: ends of the identified
  *       interval (NaN when it is refuted or there are not enough data)</li>
- *   <li>{@code bracket_interval_sign}: +1 / -1 when the interval excludes zero, else 0</li>
- *   <li>{@code bracket_interval_refuted}: 1 when the assumptions contradict the data</li>
- *   <li>{@code bracket_band_lower}, {@code bracket_band_upper}: ends of each confidence band, with
+ *   <li>{@code bracket_ate_sign}: +1 / -1 when the interval excludes zero, else 0</li>
+ *   <li>{@code bracket_assumptions_refuted}: 1 when the assumptions contradict the data</li>
+ *   <li>{@code bracket_ate_band_lower}, {@code bracket_ate_band_upper}: ends of each confidence band, with
  *       labels {@code method} ({@code anytime}, {@code fixed-horizon}) and {@code level} (NaN
  *       when the band is refuted or there are not enough data)</li>
  *   <li>{@code bracket_arm_units}: units in the arm ({@code arm="treated"|"control"})</li>
@@ -63,13 +63,13 @@ public final class StudyGauges {
             AssumptionSet set = row.assumptions();
             if (registered.add(new ReportHistory.SeriesKey(study, window, set))) {
                 Tags tags = Tags.of("study", study, "window", window, "assumptions", set.toString());
-                intervalGauge("bracket.interval.lower", "Lower end of the identified interval of the ATE", tags,
+                intervalGauge("bracket.ate.lower", "Lower end of the identified interval of the ATE", tags,
                         IdentifiedInterval::lower, study, window, set);
-                intervalGauge("bracket.interval.upper", "Upper end of the identified interval of the ATE", tags,
+                intervalGauge("bracket.ate.upper", "Upper end of the identified interval of the ATE", tags,
                         IdentifiedInterval::upper, study, window, set);
-                intervalGauge("bracket.interval.sign", "+1 or -1 when the interval excludes zero, else 0", tags,
+                intervalGauge("bracket.ate.sign", "+1 or -1 when the interval excludes zero, else 0", tags,
                         IdentifiedInterval::identifiedSign, study, window, set);
-                intervalGauge("bracket.interval.refuted", "1 when the assumptions contradict the data", tags,
+                intervalGauge("bracket.assumptions.refuted", "1 when the assumptions contradict the data", tags,
                         iv -> iv.status() == BoundStatus.REFUTED ? 1 : 0, study, window, set);
             }
             for (ConfidenceBand band : row.bands()) {
@@ -78,9 +78,9 @@ public final class StudyGauges {
                 if (registered.add(List.of(study, window, set, method, level))) {
                     Tags tags = Tags.of("study", study, "window", window, "assumptions", set.toString(),
                             "method", method.id(), "level", Double.toString(level));
-                    gauge("bracket.band.lower", "Lower end of the confidence band around the interval", tags, null,
+                    gauge("bracket.ate.band.lower", "Lower end of the confidence band around the interval", tags, null,
                             r -> band(r, set, method, level).map(ConfidenceBand::lower).orElse(Double.NaN), study, window);
-                    gauge("bracket.band.upper", "Upper end of the confidence band around the interval", tags, null,
+                    gauge("bracket.ate.band.upper", "Upper end of the confidence band around the interval", tags, null,
                             r -> band(r, set, method, level).map(ConfidenceBand::upper).orElse(Double.NaN), study, window);
                 }
             }

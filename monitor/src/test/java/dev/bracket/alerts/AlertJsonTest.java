@@ -15,7 +15,7 @@ import java.util.Map;
 import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
-@DisplayName("Alert documents (schema bracket.alert/1)")
+@DisplayName("Alert documents (schema bracket.alert/2)")
 class AlertJsonTest {
 
     @Test
@@ -25,7 +25,7 @@ class AlertJsonTest {
         AlertTransition t = Transitions.alternating(key, 1).get(0);
         JsonNode doc = AlertJson.toJson(t);
 
-        assertThat(doc.path("schema").asText()).isEqualTo("bracket.alert/1");
+        assertThat(doc.path("schema").asText()).isEqualTo("bracket.alert/2");
         assertThat(doc.path("transitionId").asText()).isEqualTo(t.transitionId());
         assertThat(doc.path("key").asText()).isEqualTo("rollout/mtr-positive,mts-negative/cumulative/sign-identified");
         assertThat(doc.path("study").asText()).isEqualTo("rollout");
@@ -42,9 +42,9 @@ class AlertJsonTest {
         assertThat(ev.path("arms").path("treated").path("n").asLong()).isEqualTo(100);
         assertThat(ev.path("arms").path("control").path("mean").asDouble()).isEqualTo(0.4);
         assertThat(ev.path("interval").path("lower").asDouble()).isEqualTo(0.2);
-        assertThat(ev.path("interval").path("status").asText()).isEqualTo("identified");
+        assertThat(ev.path("interval").path("status").asText()).isEqualTo("bounded");
         assertThat(ev.path("band").path("method").asText()).isEqualTo("anytime");
-        assertThat(ev.path("band").path("status").asText()).isEqualTo("identified");
+        assertThat(ev.path("band").path("status").asText()).isEqualTo("bounded");
         assertThat(ev.path("band").path("basis").asText()).isEqualTo("constructed for the test");
         assertThat(ev.path("band").path("level").asDouble()).isEqualTo(0.95);
         assertThat(ev.path("band").path("lower").asDouble()).isEqualTo(0.05);
@@ -106,9 +106,9 @@ class AlertJsonTest {
         List<AlertTransition> ts = Transitions.alternating(Transitions.key("rollout", "mts-negative"), 2);
         assertThat(AlertJson.restoreState(AlertJson.toText(ts.get(0)))).isEqualTo(AlertState.after(ts.get(0)));
         assertThat(AlertJson.restoreState(AlertJson.toText(ts.get(1)))).isEqualTo(AlertState.after(ts.get(1)));
-        assertThatThrownBy(() -> AlertJson.restoreState("{\"schema\":\"bracket.bounds/1\"}"))
-                .hasMessageContaining("not a bracket.alert/1 document");
-        assertThatThrownBy(() -> AlertJson.restoreState("{\"schema\":\"bracket.alert/1\",\"state\":\"firing\"}"))
+        assertThatThrownBy(() -> AlertJson.restoreState("{\"schema\":\"bracket.bounds/2\"}"))
+                .hasMessageContaining("not a bracket.alert/2 document");
+        assertThatThrownBy(() -> AlertJson.restoreState("{\"schema\":\"bracket.alert/2\",\"state\":\"firing\"}"))
                 .hasMessageContaining("lacks text field 'key'");
     }
 

@@ -86,11 +86,11 @@ class AlertServiceTest {
                     .as("a failing sink is counted and does not stop the others").isEqualTo(1);
 
             JsonNode view = service.apiView();
-            assertThat(view.path("schema").asText()).isEqualTo("bracket.alerts/1");
+            assertThat(view.path("schema").asText()).isEqualTo("bracket.alerts/2");
             assertThat(view.path("firing")).hasSize(1);
             assertThat(view.path("firing").get(0).path("key").asText()).isEqualTo("rollout/mts-negative/cumulative/sign-identified");
             assertThat(view.path("recent")).hasSize(1);
-            assertThat(view.path("recent").get(0).path("schema").asText()).isEqualTo("bracket.alert/1");
+            assertThat(view.path("recent").get(0).path("schema").asText()).isEqualTo("bracket.alert/2");
             assertThat(view.path("cautions")).hasSize(Cautions.ALL.size());
         }
     }

@@ -42,7 +42,7 @@ class ConfidenceBandTest {
     void nonIdentifiedBands() {
         for (ConfidenceBand band : List.of(ConfidenceBand.refuted(BandMethod.ANYTIME, 0.9, "test"),
                 ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, 0.9, "test"))) {
-            assertFalse(band.isIdentified());
+            assertFalse(band.isBounded());
             assertFalse(band.excludesZero());
             assertEquals(0, band.sign());
             assertFalse(band.contains(0));
@@ -74,7 +74,7 @@ class ConfidenceBandTest {
                 StudyCells cells = StudyCells.single(new ObservedArms(treated, control));
                 for (Assumption a : Assumption.values()) {
                     for (ConfidenceBand band : settings.bands(cells, UNIT, AssumptionSet.of(a, Assumption.MTS_POSITIVE))) {
-                        if (band.isIdentified()) {
+                        if (band.isBounded()) {
                             assertTrue(Double.isFinite(band.lower()) && Double.isFinite(band.upper()), band.toString());
                         }
                         boolean emptyArm = treated.isEmpty() || control.isEmpty();
@@ -99,7 +99,7 @@ class ConfidenceBandTest {
         List<ConfidenceBand> expected = settings.bands(one, UNIT, set);
         List<ConfidenceBand> actual = settings.bands(withEmpty, UNIT, set);
         for (int i = 0; i < expected.size(); i++) {
-            assertTrue(expected.get(i).isIdentified());
+            assertTrue(expected.get(i).isBounded());
             assertEquals(expected.get(i).lower(), actual.get(i).lower(), 1e-15);
             assertEquals(expected.get(i).upper(), actual.get(i).upper(), 1e-15);
         }
@@ -115,7 +115,7 @@ class ConfidenceBandTest {
         assertEquals(BoundStatus.REFUTED, anytime.ofCell(many, UNIT, set).status());
         ObservedArms few = new ObservedArms(ArmStatistics.ofSummary(20, 0.3, 0.47), ArmStatistics.ofSummary(20, 0.5, 0.51));
         ConfidenceBand band = anytime.ofCell(few, UNIT, set);
-        assertTrue(band.isIdentified(), band.toString());
+        assertTrue(band.isBounded(), band.toString());
         // Lower end 0 under these assumptions; the upper end mu1 - mu0 reaches its largest value at the box corner.
         assertEquals(0, band.lower(), 0);
         assertTrue(band.upper() > 0);

@@ -88,7 +88,7 @@ class DirectionMirrorProperties {
 
         String where = set + " " + better + " " + c;
         assertEquals(original.status(), mirrored.status(), where);
-        if (original.isIdentified()) {
+        if (original.isBounded()) {
             double tolerance = 1e-12 * (Math.abs(c.a()) + Math.abs(c.b()));
             assertEquals(original.lower(), -mirrored.upper(), tolerance, where);
             assertEquals(original.upper(), -mirrored.lower(), tolerance, where);

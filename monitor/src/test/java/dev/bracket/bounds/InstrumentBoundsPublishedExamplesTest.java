@@ -45,7 +45,7 @@ class InstrumentBoundsPublishedExamplesTest {
         IdentifiedInterval ace = InstrumentBounds.interval(levels, UNIT, AssumptionSet.parse("worst-case"));
 
         // Published bounds [0.39, 0.78] (Pearl 2009, section 8.2; recalled from memory), to 2 decimals.
-        assertTrue(ace.isIdentified());
+        assertTrue(ace.isBounded());
         assertEquals(0.39, ace.lower(), 0.005);
         assertEquals(0.78, ace.upper(), 0.005);
         // By hand from the table: E[Y1] in [0.473, 0.473 + 0.388] (level z1), E[Y0] = 0.081 (level z0,
@@ -69,7 +69,7 @@ class InstrumentBoundsPublishedExamplesTest {
         IdentifiedInterval ace = result.overall();
 
         // Published as [-0.1946, 0.0054] to 4 decimals (value recalled from memory).
-        assertTrue(ace.isIdentified());
+        assertTrue(ace.isBounded());
         assertEquals(-0.1946, ace.lower(), 5e-5);
         assertEquals(0.0054, ace.upper(), 5e-5);
         // The same by hand: E[Y0] = 11514/11588 (level Z=0); E[Y1] in [9663/12094, (9663+2419)/12094] (level Z=1).

@@ -62,7 +62,7 @@ class StratifiedBoundsTest {
 
         StratifiedBounds.Result r = StratifiedBounds.interval(study, RANGE, AssumptionSet.parse("worst-case"));
 
-        assertEquals(BoundStatus.IDENTIFIED, r.overall().status());
+        assertEquals(BoundStatus.BOUNDED, r.overall().status());
         assertEquals(north[0], r.overall().lower(), 1e-12);
         assertEquals(north[1], r.overall().upper(), 1e-12);
     }
@@ -119,6 +119,6 @@ class StratifiedBoundsTest {
                 .with("new", StudyCells.NONE, arms(5, 3.0, 0, 0));
         StratifiedBounds.Result r = StratifiedBounds.interval(missingArm, RANGE, AssumptionSet.parse("worst-case"));
         assertEquals(BoundStatus.INSUFFICIENT_DATA, r.overall().status());
-        assertEquals(BoundStatus.IDENTIFIED, r.perStratum().get("ok").status());
+        assertEquals(BoundStatus.BOUNDED, r.perStratum().get("ok").status());
     }
 }

@@ -43,7 +43,7 @@ class CalcBandsTest {
         JsonNode bands = bands("--treated-sd", "0.48", "--control-sd", "0.5", "--assume", "worst-case", "--json");
         assertEquals(2, bands.size());
         JsonNode fixed = bands.get(0);
-        assertEquals("fixed-horizon", fixed.get("method").asText());
+        assertEquals("fixed", fixed.get("method").asText());
         assertEquals(0.95, fixed.get("level").asDouble(), 0);
         assertTrue(fixed.get("basis").asText().contains("sample standard deviations"), fixed.toString());
         // Worst case (Manski 1990): lower = p(mu1 - b) + q(a - mu0), upper = p(mu1 - a) + q(b - mu0) = [-0.44, 0.56].
@@ -84,7 +84,7 @@ class CalcBandsTest {
         assertTrue(wider.get(0).get("width").asDouble() > anytime.get(0).get("width").asDouble());
         JsonNode fixed = bands("--band", "fixed", "--assume", "worst-case", "--json");
         assertEquals(1, fixed.size());
-        assertEquals("fixed-horizon", fixed.get(0).get("method").asText());
+        assertEquals("fixed", fixed.get(0).get("method").asText());
     }
 
     @Test
@@ -94,7 +94,7 @@ class CalcBandsTest {
         assertEquals(0, r.exitCode(), r.err());
         List<String> lines = r.out().lines().toList();
         int row = lines.indexOf(lines.stream().filter(l -> l.startsWith("worst-case ")).findFirst().orElseThrow());
-        assertTrue(lines.get(row + 1).trim().startsWith("fixed-horizon 95% band"), r.out());
+        assertTrue(lines.get(row + 1).trim().startsWith("fixed 95% band"), r.out());
         assertTrue(lines.get(row + 2).trim().startsWith("anytime 95% band"), r.out());
         assertTrue(r.out().contains("(b-a)^2/4") && r.out().contains("no standard deviation needed"), r.out());
         assertTrue(r.out().contains("alert on the anytime band"), r.out());

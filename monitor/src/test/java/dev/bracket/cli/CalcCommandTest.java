@@ -79,7 +79,7 @@ class CalcCommandTest {
         assertEquals(0, r.exitCode(), r.err());
         assertEquals("", r.err());
         String worst = r.out().lines().filter(l -> l.startsWith("worst-case ")).findFirst().orElseThrow();
-        assertTrue(worst.contains("identified") && worst.contains("-0.440000") && worst.contains("0.560000")
+        assertTrue(worst.contains("bounded") && worst.contains("-0.440000") && worst.contains("0.560000")
                 && worst.contains("1.000000"), worst);
         String both = r.out().lines().filter(l -> l.startsWith("mtr-positive,mts-positive ")).findFirst().orElseThrow();
         assertTrue(both.contains("0.000000") && both.contains("0.140000"), both);
@@ -93,19 +93,19 @@ class CalcCommandTest {
         Run r = run(with(EXAMPLE, "--json"));
         assertEquals(0, r.exitCode(), r.err());
         JsonNode doc = JSON.readTree(r.out());
-        assertEquals("bracket.bounds/1", doc.get("schema").asText());
+        assertEquals("bracket.bounds/2", doc.get("schema").asText());
         JsonNode bounds = doc.get("bounds");
         assertEquals(2, bounds.size());
 
         JsonNode worst = bounds.get(0);
         assertEquals(List.of("worst-case"), texts(worst.get("assumptions")));
-        assertEquals("identified", worst.get("status").asText());
+        assertEquals("bounded", worst.get("status").asText());
         assertEquals(-0.44, worst.get("lower").asDouble(), 1e-12);
         assertEquals(0.56, worst.get("upper").asDouble(), 1e-12);
 
         JsonNode both = bounds.get(1);
         assertEquals(List.of("mtr-positive", "mts-positive"), texts(both.get("assumptions")));
-        assertEquals("identified", both.get("status").asText());
+        assertEquals("bounded", both.get("status").asText());
         assertEquals(0.0, both.get("lower").asDouble(), 1e-12);
         assertEquals(0.14, both.get("upper").asDouble(), 1e-12);
     }
@@ -233,7 +233,7 @@ class CalcCommandTest {
         Run r = run("calc", "--min", "0", "--max", "1", "--cells", csv.toString(), "--assume", "worst-case", "--json");
         assertEquals(0, r.exitCode(), r.err());
         JsonNode row = JSON.readTree(r.out()).get("bounds").get(0);
-        assertEquals("identified", row.get("status").asText());
+        assertEquals("bounded", row.get("status").asText());
         assertEquals(-0.1946, row.get("lower").asDouble(), 5e-5);
         assertEquals(0.0054, row.get("upper").asDouble(), 5e-5);
     }

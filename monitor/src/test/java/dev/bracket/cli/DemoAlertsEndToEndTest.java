@@ -85,7 +85,7 @@ class DemoAlertsEndToEndTest {
                     ConfidenceBand band = row.bands().stream().filter(b -> b.method() == BandMethod.ANYTIME).findFirst().orElseThrow();
                     int sign = band.sign() != 0 && band.sign() == row.interval().identifiedSign() ? band.sign() : 0;
                     System.out.printf(Locale.ROOT, "%-30s interval %-40s anytime band %s%n", row.assumptions(),
-                            row.interval(), band.isIdentified() ? "[" + band.lower() + ", " + band.upper() + "]" : band.status().id());
+                            row.interval(), band.isBounded() ? "[" + band.lower() + ", " + band.upper() + "]" : band.status().id());
                     if (sign != 0) {
                         identified++;
                         assertThat(firingSign).as("firing for %s", row.assumptions())

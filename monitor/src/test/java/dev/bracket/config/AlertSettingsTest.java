@@ -40,7 +40,7 @@ class AlertSettingsTest {
     void fullExample() {
         BracketConfig c = BracketConfig.parse("a.yaml", STUDY + """
                     alerts:
-                      band: fixed-horizon
+                      band: fixed
                       min-per-arm: 50
                       clear-after: 4
                       rules:
@@ -106,7 +106,7 @@ class AlertSettingsTest {
         assertThatThrownBy(() -> alerts("rules: {stream-stalled: {after: soon}}"))
                 .hasMessageContaining("studies[0].alerts.rules.stream-stalled.after must be a duration like 500ms, 30s");
         assertThatThrownBy(() -> alerts("band: bayesian"))
-                .hasMessage("a.yaml:5:13: studies[0].alerts.band must be one of fixed-horizon, anytime, was 'bayesian'");
+                .hasMessage("a.yaml:5:13: studies[0].alerts.band must be one of fixed, anytime, was 'bayesian'");
         assertThatThrownBy(() -> alerts("webhooks: [{url: 'ftp://x/y'}]"))
                 .hasMessageContaining("studies[0].alerts.webhooks[0] is not usable: webhook url must be an http or https URL");
         assertThatThrownBy(() -> alerts("webhooks: [{url: 'http://x/y', token-env: 'my token'}]"))

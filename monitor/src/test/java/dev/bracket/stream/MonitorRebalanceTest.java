@@ -106,7 +106,7 @@ class MonitorRebalanceTest {
             PublishedReport last = reportsB.get("checkout", "cumulative").orElseThrow();
             long treated = events.stream().filter(e -> e.study().equals("checkout") && e.treated()).count();
             assertThat(last.report().pooled().treated().count()).isEqualTo(treated);
-            assertThat(b.metrics().total("bracket.partition.restores")).as("partitions restored on b").isGreaterThanOrEqualTo(4);
+            assertThat(b.metrics().total("bracket.partitions.restored")).as("partitions restored on b").isGreaterThanOrEqualTo(4);
         } finally {
             a.close();
             if (b != null) {

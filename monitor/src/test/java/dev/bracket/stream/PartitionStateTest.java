@@ -158,7 +158,7 @@ class PartitionStateTest {
         assertThat(three.report().pooled().control().count()).isEqualTo(2);
         WindowReport minute = WindowReport.current(STUDY, MINUTE, merged, BandSettings.none());
         assertThat(minute.report().pooled().total()).isEqualTo(1);
-        assertThat(minute.report().rows().get(0).interval().isIdentified()).isFalse();
+        assertThat(minute.report().rows().get(0).interval().isBounded()).isFalse();
         assertThat(WindowReport.current(STUDY, WindowSpec.CUMULATIVE, merged, BandSettings.none()).report().pooled().total()).isEqualTo(4);
     }
 

@@ -68,10 +68,10 @@ class AlertsEndpointTest {
             assertThat(after.statusCode()).isEqualTo(200);
             assertThat(after.headers().firstValue("Content-Type")).hasValueSatisfying(v -> assertThat(v).startsWith("application/json"));
             JsonNode body = ReportJson.mapper().readTree(after.body());
-            assertThat(body.path("schema").asText()).isEqualTo("bracket.alerts/1");
+            assertThat(body.path("schema").asText()).isEqualTo("bracket.alerts/2");
             assertThat(body.path("firing")).extracting(f -> f.path("key").asText())
                     .containsExactly("rollout/mts-negative/cumulative/sign-identified");
-            assertThat(body.path("recent").get(0).path("schema").asText()).isEqualTo("bracket.alert/1");
+            assertThat(body.path("recent").get(0).path("schema").asText()).isEqualTo("bracket.alert/2");
             assertThat(body.path("recent").get(0).path("variant").asText()).isEqualTo("positive");
             assertThat(body.path("cautions").toString()).contains("only as credible as its assumptions");
             alerts.close();

@@ -76,7 +76,7 @@ class WebServerTest {
         HttpResponse<String> r = get("/api/studies");
         assertThat(r.statusCode()).isEqualTo(200);
         JsonNode doc = json(r);
-        assertThat(doc.get("schema").asText()).isEqualTo("bracket.studies/1");
+        assertThat(doc.get("schema").asText()).isEqualTo("bracket.studies/2");
         JsonNode study = doc.get("studies").get(0);
         assertThat(study.get("study").asText()).isEqualTo("rollout-a");
         assertThat(Instant.parse(study.get("updatedAt").asText())).isEqualTo(T0);
@@ -93,7 +93,7 @@ class WebServerTest {
         HttpResponse<String> r = get("/api/studies/rollout-a");
         assertThat(r.statusCode()).isEqualTo(200);
         JsonNode doc = json(r);
-        assertThat(doc.get("schema").asText()).isEqualTo("bracket.study/1");
+        assertThat(doc.get("schema").asText()).isEqualTo("bracket.study/2");
         JsonNode window = doc.get("windows").get(0);
         JsonNode report = window.get("report");
         String calcJson = ReportJson.mapper().writeValueAsString(
@@ -134,19 +134,19 @@ class WebServerTest {
         assertThat(r.headers().firstValue("Content-Type")).hasValueSatisfying(v -> assertThat(v).startsWith("text/plain"));
         String text = r.body();
         assertThat(text)
-                .contains("bracket_interval_lower{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} -0.44")
-                .contains("bracket_interval_upper{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.56")
-                .contains("bracket_interval_upper{assumptions=\"mtr-positive,mts-positive\",study=\"rollout-a\",window=\"cumulative\"} 0.14")
-                .contains("bracket_interval_sign{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
-                .contains("bracket_interval_refuted{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
+                .contains("bracket_ate_lower{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} -0.44")
+                .contains("bracket_ate_upper{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.56")
+                .contains("bracket_ate_upper{assumptions=\"mtr-positive,mts-positive\",study=\"rollout-a\",window=\"cumulative\"} 0.14")
+                .contains("bracket_ate_sign{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
+                .contains("bracket_assumptions_refuted{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
                 .contains("bracket_arm_units{arm=\"treated\",study=\"rollout-a\",window=\"cumulative\"} 400.0")
                 .contains("bracket_report_timestamp_seconds{study=\"rollout-a\",window=\"cumulative\"} " + (double) T0.getEpochSecond())
                 .contains("bracket_events_accepted_total{topic=\"outcomes\"} 7.0");
         for (ConfidenceBand band : LATEST.get("rollout-a", "cumulative").orElseThrow().report().rows().get(0).bands()) {
             String labels = "{assumptions=\"worst-case\",level=\"0.95\",method=\"" + band.method().id()
                     + "\",study=\"rollout-a\",window=\"cumulative\"}";
-            assertThat(text).contains("bracket_band_lower" + labels + " " + band.lower())
-                    .contains("bracket_band_upper" + labels + " " + band.upper());
+            assertThat(text).contains("bracket_ate_band_lower" + labels + " " + band.lower())
+                    .contains("bracket_ate_band_upper" + labels + " " + band.upper());
         }
     }
 
@@ -160,16 +160,16 @@ class WebServerTest {
         server.refresh();   // no new report: no new point
 
         JsonNode doc = json(get("/api/studies/rollout-b/history"));
-        assertThat(doc.get("schema").asText()).isEqualTo("bracket.history/1");
+        assertThat(doc.get("schema").asText()).isEqualTo("bracket.history/2");
         JsonNode worst = doc.get("series").get(0);
         assertThat(worst.get("assumptions").get(0).asText()).isEqualTo("worst-case");
         assertThat(worst.get("time")).extracting(JsonNode::asDouble)
                 .containsExactly((double) T0.getEpochSecond(), (double) T0.getEpochSecond() + 1);
         // second report: p = 0.5, so lower = 0.5*0.62 - 0.5*0.48 - 0.5 = -0.43 (Manski 1990)
         assertThat(worst.get("lower").get(1).asDouble()).isCloseTo(-0.43, within(1e-12));
-        assertThat(worst.get("status").get(1).asText()).isEqualTo("identified");
+        assertThat(worst.get("status").get(1).asText()).isEqualTo("bounded");
         JsonNode bands = worst.get("bands");
-        assertThat(bands).extracting(b -> b.get("method").asText()).containsExactlyInAnyOrder("fixed-horizon", "anytime");
+        assertThat(bands).extracting(b -> b.get("method").asText()).containsExactlyInAnyOrder("fixed", "anytime");
         ConfidenceBand anytime = LATEST.get("rollout-b", "cumulative").orElseThrow().report().rows().get(0).bands().stream()
                 .filter(b -> b.method() == BandMethod.ANYTIME).findFirst().orElseThrow();
         JsonNode anytimeColumns = bands.get(0).get("method").asText().equals("anytime") ? bands.get(0) : bands.get(1);

@@ -25,7 +25,7 @@ function section(container, id) {
 }
 
 function bandText(b) {
-  return b.status !== "identified" ? b.status : "[" + fmt(b.lower) + ", " + fmt(b.upper) + "]";
+  return b.status !== "bounded" ? b.status : "[" + fmt(b.lower) + ", " + fmt(b.upper) + "]";
 }
 
 function table(report) {
@@ -43,7 +43,7 @@ function table(report) {
     tr.appendChild(el("td", {}, fmt(row.lower)));
     tr.appendChild(el("td", {}, fmt(row.upper)));
     tr.appendChild(el("td", {}, row.width === null ? "–" : row.width.toFixed(4)));
-    const sign = row.status !== "identified" ? "" : row.sign === "undetermined" ? "not identified (contains 0)" : row.sign;
+    const sign = row.status !== "bounded" ? "" : row.sign === "undetermined" ? "not identified (contains 0)" : row.sign;
     tr.appendChild(el("td", {class: "sign-" + row.sign}, sign));
     (row.bands || []).forEach(b => tr.appendChild(el("td", {class: "sign-" + b.sign}, bandText(b))));
     t.appendChild(tr);
@@ -60,7 +60,7 @@ function withZero(u, min, max) {
 
 const BAND_STYLE = {
   "anytime": {stroke: "#b35c00", dash: [6, 3]},
-  "fixed-horizon": {stroke: "#3d7f3d", dash: [2, 3]},
+  "fixed": {stroke: "#3d7f3d", dash: [2, 3]},
 };
 
 function chartOptions(width, bands) {
@@ -90,7 +90,7 @@ function bandsNote(history) {
   history.series.forEach(s => (s.bands || []).forEach(b => kinds.set(b.method, b.level)));
   const parts = ["Solid lines and shading: the identified interval; grey dashes: zero."];
   kinds.forEach((level, method) => parts.push(
-      (method === "anytime" ? "Orange dashes" : method === "fixed-horizon" ? "Green dots" : method) +
+      (method === "anytime" ? "Orange dashes" : method === "fixed" ? "Green dots" : method) +
       ": " + Math.round(level * 100) + "% " + method + " confidence band."));
   return parts.join(" ");
 }
