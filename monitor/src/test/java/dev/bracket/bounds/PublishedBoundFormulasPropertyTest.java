@@ -144,6 +144,8 @@ class PublishedBoundFormulasPropertyTest {
         // Manski & Pepper (2000), Econometrica 68(4), MTS (recalled from memory): E[Y1] in
         // [p mu1 + (1-p) a, mu1] and E[Y0] in [mu0, (1-p) mu0 + p b], so the ATE lies in
         // [worst-case lower, mu1 - mu0]; MTS alone leaves the lower end where no assumption puts it.
+        // The same ATE interval is stated, citing Manski & Pepper (2000), in an applied text found at
+        // lawinsider.com/clause/monotone-treatment-selection; the paper itself not seen.
         IdentifiedInterval mts = c.interval(engine, "mts-positive");
         double y1Low = c.p() * c.mu1() + (1 - c.p()) * c.a();
         double y0High = (1 - c.p()) * c.mu0() + c.p() * c.b();
