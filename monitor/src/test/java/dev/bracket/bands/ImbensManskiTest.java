@@ -57,13 +57,19 @@ class ImbensManskiTest {
     }
 
     @Test
-    @DisplayName("a long interval uses the Imbens-Manski value for its estimated width")
+    @DisplayName("a long interval uses the Imbens-Manski value for its estimated width, found by the root finder")
     void longIntervalUsesEstimatedWidth() {
-        // Width 0.2, se 0.02: width / se = 10 > sqrt(ln 1000); C from the equation at x = 10.
-        double[] band = ImbensManski.interval(-0.1, 0.1, 0.02, 0.01, 0.95, 1000);
-        double c = ImbensManski.criticalValue(0.95, 10);
-        assertEquals(-0.1 - c * 0.02, band[0], 1e-12);
-        assertEquals(0.1 + c * 0.01, band[1], 1e-12);
-        assertEquals(N01.inverseCumulativeProbability(0.95), c, 1e-9);
+        // Width 0.04, standard errors 0.02 and 0.01 at N = 20: width / max se = 2 > sqrt(ln 20) = 1.73,
+        // so the estimated width is used, and x = 2 is short of the far tail where C is z(0.95)
+        // without solving: the value must come from the root finder. C = 1.646146 is the x = 2 row
+        // of the table above (SciPy brentq), which lies strictly between z(0.95) and z(0.975).
+        double[] band = ImbensManski.interval(-0.02, 0.02, 0.02, 0.01, 0.95, 20);
+        double expected = 1.646146;
+        assertEquals(-0.02 - expected * 0.02, band[0], 1e-6 * 0.02);
+        assertEquals(0.02 + expected * 0.01, band[1], 1e-6 * 0.01);
+        double c = (-0.02 - band[0]) / 0.02;
+        assertEquals(0, N01.cumulativeProbability(c + 2) - N01.cumulativeProbability(-c) - 0.95, 1e-12);
+        assertTrue(c > N01.inverseCumulativeProbability(0.95) + 1e-3 && c < N01.inverseCumulativeProbability(0.975) - 1e-3,
+                "C = " + c + " must lie strictly between the one- and two-sided normal quantiles");
     }
 }

@@ -41,8 +41,10 @@ class ArmStatisticsTest {
     @Test
     @DisplayName("the textbook example 2,4,4,4,5,5,7,9 has mean 5 and population standard deviation 2")
     void textbookExample() {
-        // Worked example of Wikipedia's "Standard deviation" article (recalled from memory):
-        // mean 5, population SD 2, so M2 = 8 * 2^2 = 32 and sample variance 32/7.
+        // Worked example of Wikipedia's "Standard deviation" article (that it is Wikipedia's is recalled
+        // from memory): mean 5, population SD 2, so M2 = 8 * 2^2 = 32 and sample variance 32/7. The same
+        // data with mean 5, population SD 2 and sample variance 32/7 (about 4.571) were found, by search,
+        // in the worked example of calculatey.pages.dev/standard-deviation-calculator.
         ArmStatistics s = ArmStatistics.of(2, 4, 4, 4, 5, 5, 7, 9);
         assertEquals(8, s.count());
         assertEquals(5.0, s.mean(), 1e-15);
@@ -55,7 +57,10 @@ class ArmStatisticsTest {
     @Test
     @DisplayName("NIST StRD NumAcc1: mean 10000002 and sample SD 1")
     void nistNumAcc1() {
-        // NIST Statistical Reference Datasets, univariate, NumAcc1 (certified values recalled from memory).
+        // NIST Statistical Reference Datasets, univariate, NumAcc1: data 10000001, 10000003, 10000002,
+        // certified mean 10000002 and SD 1, both exact. Confirmed against NIST's description as reproduced,
+        // with its source itl.nist.gov/div898/strd/univ/NumAcc1.html, in the R package
+        // github.com/ab9sq/Rqualification, file R/univariateData.R (NIST's own page not seen).
         ArmStatistics s = ArmStatistics.of(10000001, 10000003, 10000002);
         assertEquals(10000002.0, s.mean(), 1e-8);
         assertEquals(1.0, s.sd(), 1e-12);
@@ -64,7 +69,9 @@ class ArmStatisticsTest {
     @Test
     @DisplayName("NIST StRD NumAcc2-4: sample SD 0.1 around centres 1.2, 1000000.2 and 10000000.2")
     void nistNumAcc2to4() {
-        // NIST StRD NumAcc2, NumAcc3, NumAcc4 (data layout and certified mean/SD recalled from memory).
+        // NIST StRD NumAcc2, NumAcc3, NumAcc4: 1001 values, the centre then 500 pairs centre -/+ 0.1,
+        // certified mean = centre and SD 0.1, both exact. Confirmed in the same reproduction of NIST's
+        // descriptions (github.com/ab9sq/Rqualification, R/univariateData.R; NIST's own pages not seen).
         // The tolerance on the SD is set by how well the decimal data can be stored in binary at
         // each centre (one ulp of 1e7 is about 2e-9, against a spread of 0.1).
         double[][] cases = {{1.2, 1e-13}, {1000000.2, 1e-8}, {10000000.2, 1e-7}};

@@ -224,8 +224,10 @@ class CalcCommandTest {
     @Test
     @DisplayName("--cells with an instrument column reproduces the vitamin A bounds [-0.1946, 0.0054]")
     void cellsWithInstrument(@TempDir Path dir) throws IOException {
-        // Sommer et al. (1986) counts as in Imbens & Rubin (1997), Table 1 (recalled from memory);
-        // Y = 1 survived; published mean-independence bounds [-0.1946, 0.0054].
+        // Sommer et al. (1986) counts as in Imbens & Rubin (1997), Table 1 (that table not seen); counts
+        // and the published bounds [-0.1946, 0.0054] confirmed in the bpbounds R package vignette
+        // (github.com/remlapmot/bpbounds, vignettes/bpbounds.Rmd, after Balke & Pearl 1997, Table 1).
+        // Y = 1 survived.
         Path csv = write(dir, "vitamin-a.csv", "instrument,arm,n,mean\n"
                 + "0,control,11588," + (11514.0 / 11588) + "\n"
                 + "1,control,2419," + (2385.0 / 2419) + "\n"

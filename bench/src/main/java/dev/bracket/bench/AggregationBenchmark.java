@@ -1,10 +1,13 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.report.LatestReports;
+import dev.bracket.stream.KafkaClients;
+import dev.bracket.stream.Monitor;
+import dev.bracket.stream.TopicSetup;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
@@ -172,7 +175,9 @@ public final class AggregationBenchmark {
             long start = System.nanoTime();
             long seen = 0;
             long tokens = 0;
+            Deadline deadline = Deadline.in(processingLimit(events), "the plain consumer to read " + events + " events");
             while (seen < events) {
+                deadline.check();
                 for (ConsumerRecord<byte[], byte[]> r : c.poll(Duration.ofMillis(100))) {
                     try (JsonParser p = JSON.createParser(r.value())) {
                         while (p.nextToken() != null) {
@@ -200,9 +205,8 @@ public final class AggregationBenchmark {
             peer.awaitRunning(60);
             CpuUse cpu = CpuUse.start(n -> n.startsWith(applicationId + "-") && n.endsWith("-StreamThread-1"));
             long start = System.nanoTime();
-            while (peer.folded() < folds) {
-                TimeUnit.MILLISECONDS.sleep(5);
-            }
+            Deadline.await(processingLimit(events), "Kafka Streams to fold " + folds + " (event, window) pairs",
+                    () -> peer.folded() >= folds);
             double rate = events / ((System.nanoTime() - start) / 1e9);
             cpuNote = cpu.since();
             TimeUnit.MILLISECONDS.sleep(config.commitInterval().toMillis() * 2);
@@ -219,25 +223,22 @@ public final class AggregationBenchmark {
         BracketConfig config = config(broker, group);
         try (Admin admin = new KafkaClients(config).admin();
              Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports())) {
-            while (monitor.assignedPartitions() < 3) {
-                TimeUnit.MILLISECONDS.sleep(5);
-            }
+            Deadline.await(Duration.ofSeconds(60), "the monitor's partition assignment", () -> monitor.assignedPartitions() >= 3);
             CpuUse cpu = CpuUse.start("bracket-aggregator-0"::equals);
             long start = System.nanoTime();
-            while (monitor.metrics().total("bracket.events", "result", "accepted") < events) {
-                TimeUnit.MILLISECONDS.sleep(5);
-            }
+            Deadline.await(processingLimit(events), "the monitor to accept " + events + " events",
+                    () -> monitor.metrics().total("bracket.events", "result", "accepted") >= events);
             double rate = events / ((System.nanoTime() - start) / 1e9);
             cpuNote = cpu.since() + "; " + cpu.busiest(3);
-            long deadline = System.nanoTime() + TimeUnit.SECONDS.toNanos(30);
-            while (committed(admin, group) < events) {
-                if (System.nanoTime() > deadline) {
-                    throw new IllegalStateException("the monitor did not commit all " + events + " offsets");
-                }
-                TimeUnit.MILLISECONDS.sleep(20);
-            }
+            Deadline.await(Duration.ofSeconds(30), "the monitor to commit all " + events + " offsets",
+                    () -> committed(admin, group) >= events);
             return rate;
         }
+    }
+
+    /** Time allowed for one contender to process the events: a minute plus 0.1 ms per event (10,000 events/s). */
+    private static Duration processingLimit(int events) {
+        return Duration.ofSeconds(60).plusNanos(100_000L * events);
     }
 
     private static long committed(Admin admin, String group) throws Exception {

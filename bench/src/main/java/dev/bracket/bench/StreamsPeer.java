@@ -1,7 +1,9 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.stream.EventParser;
+import dev.bracket.stream.ParsedEvent;
 import org.apache.kafka.common.serialization.Serdes;
 import org.apache.kafka.common.utils.Bytes;
 import org.apache.kafka.streams.KafkaStreams;

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import java.io.IOException;
 import java.nio.file.Files;

@@ -1,10 +1,13 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.ReportJson;
+import dev.bracket.stream.KafkaClients;
+import dev.bracket.stream.Monitor;
+import dev.bracket.stream.TopicSetup;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.HdrHistogram.Histogram;
 import org.apache.kafka.clients.admin.Admin;
@@ -80,9 +83,8 @@ public final class BoundLatencyBenchmark {
             Histogram latency = new Histogram(TimeUnit.MINUTES.toMicros(5), 3);
             try (Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports());
                  KafkaConsumer<byte[], byte[]> bounds = boundsReader(broker, config)) {
-                while (monitor.assignedPartitions() < STUDIES) {
-                    TimeUnit.MILLISECONDS.sleep(5);
-                }
+                Deadline.await(Duration.ofSeconds(60), "the monitor's partition assignment",
+                        () -> monitor.assignedPartitions() >= STUDIES);
                 long[] sent = new long[STUDIES];
                 Thread producer = new Thread(() -> produce(broker, rate, seconds, sentNanos, sent), "latency-producer");
                 long start = System.nanoTime();

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import java.lang.management.ManagementFactory;
 import java.lang.management.ThreadInfo;

@@ -1,8 +1,12 @@
-package dev.bracket.stream;
+package dev.bracket.bench;
 
 import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.config.BracketConfig;
+import dev.bracket.stream.EventParser;
+import dev.bracket.stream.ParsedEvent;
+import dev.bracket.stream.PartitionState;
+import dev.bracket.stream.SourcePartition;
 
 import java.io.IOException;
 import java.util.Locale;

@@ -3,6 +3,7 @@ package dev.bracket.stream;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.bench.BenchEvents;
 
 import java.lang.management.ManagementFactory;
 import java.lang.ref.Reference;
@@ -20,7 +21,8 @@ import java.util.Locale;
  * levels, window) are made before the baseline, as they are shared by many cells in practice;
  * each cell has its own key object and statistics. Run with a fixed heap and a stop-the-world
  * collector for stable numbers, e.g. {@code -Xms2g -Xmx2g -XX:+UseSerialGC}. Prints figures;
- * asserts nothing; not part of the test suite.
+ * asserts nothing; not part of the test suite. In the monitor's package because it fills the
+ * parser's reusable {@link ParsedEvent} directly, as the parser does.
  */
 public final class CellHeapBenchmark {
 
