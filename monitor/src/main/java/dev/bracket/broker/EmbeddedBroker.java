@@ -9,7 +9,6 @@ import java.io.ByteArrayOutputStream;
 import java.io.IOException;
 import java.io.OutputStream;
 import java.io.PrintStream;
-import java.io.UncheckedIOException;
 import java.net.InetAddress;
 import java.net.ServerSocket;
 import java.nio.charset.StandardCharsets;
@@ -42,30 +41,64 @@ public final class EmbeddedBroker implements AutoCloseable {
 
     /**
      * Starts a broker on {@code port} (0: any free port) storing its logs under {@code dataDir}.
+     * Whatever goes wrong (a busy port, a directory that cannot be written, a class missing from
+     * the jar) stops what had started and ends in one {@link BrokerStartException}, so the caller
+     * can exit at once instead of living on beside a half-started broker.
      *
-     * @throws IllegalStateException when the directory cannot be formatted or the broker fails to start
-     *                               (for example another broker already uses the directory)
+     * @throws BrokerStartException when the broker cannot start, with the reason and what to change
      */
     public static EmbeddedBroker start(Path dataDir, int port) {
+        prepareDirectory(dataDir);
+        int brokerPort = port == 0 ? freePort() : requireFree(port);
+        Properties props = properties(dataDir, brokerPort, freePort());
+        KafkaRaftServer server = null;
         try {
-            Files.createDirectories(dataDir);
-            int brokerPort = port == 0 ? freePort() : port;
-            int controllerPort = freePort();
-            Properties props = properties(dataDir, brokerPort, controllerPort);
             if (!Files.exists(dataDir.resolve("meta.properties"))) {
                 format(dataDir, props);
             }
-            KafkaRaftServer server = new KafkaRaftServer(KafkaConfig.fromProps(props, false), Time.SYSTEM);
-            try {
-                server.startup();
-            } catch (RuntimeException e) {
-                server.shutdown();
-                throw new IllegalStateException("the embedded Kafka broker did not start on " + dataDir + ": " + e.getMessage(), e);
-            }
+            server = new KafkaRaftServer(KafkaConfig.fromProps(props, false), Time.SYSTEM);
+            server.startup();
             return new EmbeddedBroker(server, "localhost:" + brokerPort, dataDir);
-        } catch (IOException e) {
-            throw new UncheckedIOException("cannot prepare the broker directory " + dataDir, e);
+        } catch (Exception | LinkageError e) {
+            // LinkageError too: a class missing from the jar must end the start, not the calling thread.
+            if (server != null) {
+                try {
+                    server.shutdown();
+                } catch (Exception | LinkageError alsoFailed) {
+                    e.addSuppressed(alsoFailed);
+                }
+            }
+            throw new BrokerStartException(" in " + dataDir + ": " + rootCause(e), e);
         }
+    }
+
+    private static void prepareDirectory(Path dataDir) {
+        try {
+            Files.createDirectories(dataDir);
+            Files.deleteIfExists(Files.createTempFile(dataDir, ".bracket-write-check", ""));
+        } catch (IOException | SecurityException e) {
+            throw new BrokerStartException(": its data directory " + dataDir + " cannot be created or written (" + rootCause(e)
+                    + "); set broker.data-dir to a writable directory", e);
+        }
+    }
+
+    private static int requireFree(int port) {
+        try (ServerSocket s = new ServerSocket(port, 1, InetAddress.getLoopbackAddress())) {
+            s.setReuseAddress(true);
+            return port;
+        } catch (IOException e) {
+            throw new BrokerStartException(": port " + port + " on localhost is in use (" + rootCause(e)
+                    + "); set broker.port to a free port, or kafka.bootstrap.servers to use a running Kafka", e);
+        }
+    }
+
+    private static String rootCause(Throwable e) {
+        Throwable root = e;
+        while (root.getCause() != null && root.getCause() != root) {
+            root = root.getCause();
+        }
+        String message = root.getMessage();
+        return root.getClass().getSimpleName() + (message == null ? "" : ": " + message);
     }
 
     static Properties properties(Path dataDir, int brokerPort, int controllerPort) {
@@ -114,10 +147,12 @@ public final class EmbeddedBroker implements AutoCloseable {
         }
     }
 
-    private static int freePort() throws IOException {
+    private static int freePort() {
         try (ServerSocket s = new ServerSocket(0, 1, InetAddress.getLoopbackAddress())) {
             s.setReuseAddress(true);
             return s.getLocalPort();
+        } catch (IOException e) {
+            throw new BrokerStartException(": no free port on localhost (" + rootCause(e) + ")", e);
         }
     }
 

@@ -1,6 +1,7 @@
 package dev.bracket.cli;
 
 import dev.bracket.report.Cautions;
+import dev.bracket.broker.BrokerStartException;
 import dev.bracket.demo.DemoProducerCommand;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
@@ -26,8 +27,20 @@ public final class BracketCommand implements Runnable {
         spec.commandLine().usage(spec.commandLine().getOut());
     }
 
+    /**
+     * Runs a command and exits with its code. An error that escapes a command (a class missing
+     * from the jar, say) ends the process with one line and code 1 instead of leaving it running
+     * on whatever threads were already started.
+     */
     public static void main(String[] args) {
-        System.exit(newCommandLine().execute(args));
+        int code;
+        try {
+            code = newCommandLine().execute(args);
+        } catch (Throwable e) {
+            System.err.println("bracket: failed: " + e);
+            code = CommandLine.ExitCode.SOFTWARE;
+        }
+        System.exit(code);
     }
 
     /** The configured command line, shared by {@link #main} and tests. */
@@ -52,6 +65,10 @@ public final class BracketCommand implements Runnable {
         if (e instanceof InputError) {
             err.println(cl.getCommandName() + ": " + e.getMessage());
             return CommandLine.ExitCode.USAGE;
+        }
+        if (e instanceof BrokerStartException) {
+            err.println(cl.getCommandName() + ": " + e.getMessage());
+            return CommandLine.ExitCode.SOFTWARE;
         }
         err.println(cl.getCommandName() + ": failed: " + e);
         return CommandLine.ExitCode.SOFTWARE;

@@ -71,6 +71,8 @@ public record BracketConfig(
 
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
+    /** Most partitions of a topic the monitor creates; beyond any need of one monitor. */
+    private static final int MAX_PARTITIONS = 10_000;
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
             "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker",
@@ -105,13 +107,18 @@ public record BracketConfig(
         ConfigNode topicsNode = root.get("topics").onlyKeys(Set.of("rejected", "partials", "bounds", "partitions", "replication"));
         TopicNames d = TopicNames.DEFAULT;
         long partitions = topicsNode.get("partitions").positiveLong(d.partitions());
-        long replication = topicsNode.get("replication").positiveLong(Short.MAX_VALUE + 1L);
+        if (partitions > MAX_PARTITIONS) {
+            throw topicsNode.get("partitions").fail("must be from 1 to " + MAX_PARTITIONS + ", was " + partitions);
+        }
+        long replication = topicsNode.get("replication").positiveLong(d.replicationFactor());
+        if (replication > Short.MAX_VALUE) {
+            throw topicsNode.get("replication").fail("must be from 1 to " + Short.MAX_VALUE + " (Kafka's limit), was " + replication);
+        }
         TopicNames topics = new TopicNames(
                 topicName(topicsNode.get("rejected"), d.rejected()),
                 topicName(topicsNode.get("partials"), d.partials()),
                 topicName(topicsNode.get("bounds"), d.bounds()),
-                (int) Math.min(partitions, 10_000),
-                replication > Short.MAX_VALUE ? (short) -1 : (short) replication);
+                (int) partitions, (short) replication);
         double bandLevel = root.get("band-level").isMissing() ? 0.95 : root.get("band-level").number();
         if (!(bandLevel > 0 && bandLevel < 1)) {
             throw root.get("band-level").fail("must lie strictly between 0 and 1, e.g. 0.95");

@@ -3,6 +3,7 @@ package dev.bracket.config;
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
 
+import java.math.BigDecimal;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Iterator;
@@ -17,6 +18,9 @@ import java.util.regex.Pattern;
  * a value and throw {@link ConfigError} naming file, line, column and the dotted path.
  */
 final class ConfigNode {
+
+    /** The longest duration a configuration may give. */
+    static final Duration MAX_DURATION = Duration.ofDays(36_500);
 
     private static final Pattern DURATION = Pattern.compile("(\\d+(?:\\.\\d+)?)\\s*(ms|s|m|h|d)");
 
@@ -36,6 +40,11 @@ final class ConfigNode {
 
     /** The dotted path for messages, e.g. {@code studies[0].outcome.min}. */
     String path() {
+        return pathOf(pointer);
+    }
+
+    /** The dotted path of {@code pointer}, e.g. {@code studies[0].outcome.min}. */
+    static String pathOf(JsonPointer pointer) {
         StringBuilder out = new StringBuilder();
         for (JsonPointer p = pointer; p.getMatchingProperty() != null; p = p.tail()) {
             if (p.getMatchingIndex() >= 0 && !out.isEmpty()) {
@@ -152,28 +161,49 @@ final class ConfigNode {
         return node.asLong();
     }
 
-    /** A duration such as {@code 500ms}, {@code 30s}, {@code 5m}, {@code 1h}, {@code 7d} or ISO-8601 {@code PT1H}. */
+    /**
+     * A duration such as {@code 500ms}, {@code 30s}, {@code 5m}, {@code 1h}, {@code 7d} or ISO-8601
+     * {@code PT1H}, in whole milliseconds (the unit of Kafka timestamps and of window panes) and at
+     * most {@link #MAX_DURATION}: longer spans mean nothing for a stream and would overflow the time
+     * arithmetic done with them (a Duration's nanoseconds overflow after about 292 years).
+     */
     Duration duration(Duration fallback) {
         if (isMissing()) {
             return fallback;
         }
         String s = text().trim().toLowerCase(Locale.ROOT);
         Matcher m = DURATION.matcher(s);
+        BigDecimal millis;
         try {
-            if (m.matches()) {
-                double v = Double.parseDouble(m.group(1));
-                long millis = Math.round(v * switch (m.group(2)) {
-                    case "ms" -> 1L;
-                    case "s" -> 1_000L;
-                    case "m" -> 60_000L;
-                    case "h" -> 3_600_000L;
-                    default -> 86_400_000L;
-                });
-                return Duration.ofMillis(millis);
-            }
-            return Duration.parse(s.toUpperCase(Locale.ROOT));
+            millis = m.matches()
+                    ? new BigDecimal(m.group(1)).multiply(BigDecimal.valueOf(switch (m.group(2)) {
+                        case "ms" -> 1L;
+                        case "s" -> 1_000L;
+                        case "m" -> 60_000L;
+                        case "h" -> 3_600_000L;
+                        default -> 86_400_000L;
+                    }))
+                    : isoMillis(Duration.parse(s.toUpperCase(Locale.ROOT)));
         } catch (RuntimeException e) {
+            if (e.getCause() instanceof ArithmeticException) {
+                throw tooLong();
+            }
             throw fail("must be a duration like 500ms, 30s, 5m, 1h, 7d or PT1H, was '" + node.asText() + "'");
         }
+        if (millis.abs().compareTo(BigDecimal.valueOf(MAX_DURATION.toMillis())) > 0) {
+            throw tooLong();
+        }
+        if (millis.stripTrailingZeros().scale() > 0) {
+            throw fail("must be a whole number of milliseconds, was '" + node.asText() + "'");
+        }
+        return Duration.ofMillis(millis.longValueExact());
+    }
+
+    private static BigDecimal isoMillis(Duration d) {
+        return BigDecimal.valueOf(d.getSeconds()).movePointRight(3).add(BigDecimal.valueOf(d.getNano()).movePointLeft(6));
+    }
+
+    private ConfigError tooLong() {
+        return fail("is too long: at most " + MAX_DURATION.toDays() + "d (100 years), was '" + node.asText() + "'");
     }
 }

@@ -9,8 +9,13 @@ import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.MissingNode;
 import com.fasterxml.jackson.dataformat.yaml.YAMLFactory;
+import com.fasterxml.jackson.dataformat.yaml.YAMLParser;
 
 import java.io.IOException;
+import java.util.ArrayDeque;
+import java.util.Deque;
+import java.util.HashMap;
+import java.util.Map;
 
 /**
  * A parsed YAML file that can say where any of its nodes came from. Jackson's tree drops
@@ -20,7 +25,9 @@ import java.io.IOException;
 final class YamlDocument {
 
     private static final YAMLFactory FACTORY = new YAMLFactory();
-    private static final ObjectMapper MAPPER = new ObjectMapper(FACTORY);
+    /** Strict about repeated keys, so the tree can never silently keep only the last one. */
+    private static final ObjectMapper MAPPER = new ObjectMapper(new YAMLFactory())
+            .configure(JsonParser.Feature.STRICT_DUPLICATE_DETECTION, true);
 
     private final String source;
     private final String text;
@@ -32,15 +39,55 @@ final class YamlDocument {
         this.root = root;
     }
 
-    /** Parses {@code text}; syntax errors become a {@link ConfigError} with the parser's position. */
+    /**
+     * Parses {@code text}; syntax errors, a key given twice in one mapping and YAML aliases become a
+     * {@link ConfigError} with the position.
+     */
     static YamlDocument parse(String source, String text) {
         try {
+            checkKeysAndAliases(source, text);
             JsonNode root = MAPPER.readTree(text);
             return new YamlDocument(source, text, root == null ? MissingNode.getInstance() : root);
         } catch (JsonProcessingException e) {
             JsonLocation at = e.getLocation();
             String where = at == null ? source : source + ":" + at.getLineNr() + ":" + at.getColumnNr();
             throw new ConfigError(where + ": not valid YAML (" + e.getOriginalMessage().lines().findFirst().orElse("") + ")", e);
+        } catch (IOException e) {
+            throw new ConfigError(source + ": cannot be read (" + e.getMessage() + ")", e);
+        }
+    }
+
+    /**
+     * Refuses what is valid YAML but would not mean what it seems: a key given twice in one mapping
+     * (one of the values would be dropped), and aliases ({@code *name}) and merge keys ({@code <<}),
+     * which the tree reader does not expand: it reads an alias as the plain text {@code name}.
+     */
+    private static void checkKeysAndAliases(String source, String text) throws IOException {
+        try (YAMLParser p = FACTORY.createParser(text)) {
+            Deque<Map<String, String>> mappings = new ArrayDeque<>();
+            for (JsonToken t = p.nextToken(); t != null; t = p.nextToken()) {
+                JsonLocation at = p.currentTokenLocation();
+                String where = source + ":" + at.getLineNr() + ":" + at.getColumnNr() + ": "
+                        + ConfigNode.pathOf(p.getParsingContext().pathAsPointer());
+                if (p.isCurrentAlias()) {
+                    throw new ConfigError(where + " is the YAML alias *" + p.getText() + "; Bracket does not expand anchors (&)"
+                            + " and aliases (*) in its configuration: write the value out here");
+                }
+                if (t == JsonToken.START_OBJECT) {
+                    mappings.push(new HashMap<>());
+                } else if (t == JsonToken.END_OBJECT) {
+                    mappings.pop();
+                } else if (t == JsonToken.FIELD_NAME) {
+                    if (p.currentName().equals("<<")) {
+                        throw new ConfigError(where + " is a YAML merge key, which Bracket does not expand: write the keys out here");
+                    }
+                    String first = mappings.peek().putIfAbsent(p.currentName(),
+                            "line " + at.getLineNr() + ", column " + at.getColumnNr());
+                    if (first != null) {
+                        throw new ConfigError(where + " is given twice in one mapping (first at " + first + "); keep one");
+                    }
+                }
+            }
         }
     }
 

@@ -4,12 +4,11 @@ import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.lines.JsonLines;
 
-import java.io.ByteArrayOutputStream;
 import java.io.IOException;
 import java.io.InputStream;
 import java.util.ArrayList;
-import java.util.Arrays;
 import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
@@ -18,7 +17,8 @@ import java.util.Map;
  * The monitor's computation over files instead of topics: the same {@link EventParser},
  * {@link PartitionState} and {@link MergedPartials} as the live path, with each input (file or
  * standard input) standing for one source partition read in order. Events without a time field
- * get the time the replay started. Blank lines are not events and are skipped.
+ * get the time the replay started. Lines are split by {@link JsonLines}, as {@code demo-producer
+ * --from-file} splits them; blank lines are not events.
  */
 public final class Replay {
 
@@ -54,41 +54,19 @@ public final class Replay {
         this.startTime = startTime;
     }
 
-    /** Reads one input of JSON lines to its end as one more source partition. */
+    /** Reads one input of JSON lines to its end as one more source partition; lines split as {@link JsonLines} does. */
     public void read(String name, InputStream in) throws IOException {
         PartitionState state = new PartitionState(new SourcePartition(name, sources.size()), config.windows(),
                 config.grace().toMillis(), (s, w) -> { });
         sources.add(state);
-        byte[] buf = new byte[1 << 16];
-        ByteArrayOutputStream line = new ByteArrayOutputStream();
-        long lineNo = 0;
-        int n;
-        while ((n = in.read(buf)) > 0) {
-            int from = 0;
-            for (int i = 0; i < n; i++) {
-                if (buf[i] == '\n') {
-                    line.write(buf, from, i - from);
-                    accept(state, name, ++lineNo, line.toByteArray());
-                    line.reset();
-                    from = i + 1;
-                }
-            }
-            line.write(buf, from, n - from);
-        }
-        if (line.size() > 0) {
-            accept(state, name, ++lineNo, line.toByteArray());
+        JsonLines lines = new JsonLines(in);
+        for (JsonLines.Line line = lines.next(); line != null; line = lines.next()) {
+            accept(state, name, line.number(), line.bytes());
         }
     }
 
     private void accept(PartitionState state, String name, long lineNo, byte[] bytes) {
-        int len = bytes.length;
-        if (len > 0 && bytes[len - 1] == '\r') {
-            len--;
-        }
-        if (isBlank(bytes, len)) {
-            return;
-        }
-        ParsedEvent e = parser.parse(len == bytes.length ? bytes : Arrays.copyOf(bytes, len), startTime);
+        ParsedEvent e = parser.parse(bytes, startTime);
         if (e.isUsable()) {
             state.add(e);
             accepted++;
@@ -98,15 +76,6 @@ public final class Replay {
                 rejected.add(new Rejected(name, lineNo, e.rejection(), e.detail()));
             }
         }
-    }
-
-    private static boolean isBlank(byte[] b, int len) {
-        for (int i = 0; i < len; i++) {
-            if (b[i] != ' ' && b[i] != '\t') {
-                return false;
-            }
-        }
-        return true;
     }
 
     /** The reports of every study and window over all inputs read so far. */

@@ -15,6 +15,8 @@ import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
 class BracketConfigTest {
 
+    private static final String ONE_STUDY = "studies:\n  - id: s\n    outcome: {min: 0, max: 1}\n";
+
     private static final String FULL = """
             studies:
               - id: checkout-retry-policy
@@ -115,7 +117,7 @@ class BracketConfigTest {
     @Test
     @DisplayName("broken rules are reported with file, line, column and the rule")
     void reportsLocationAndRule() {
-        String base = "studies:\n  - id: s\n    outcome: {min: 0, max: 1}\n";
+        String base = ONE_STUDY;
         assertError(base.replace("max: 1", "max: 0"), "c.yaml:3:28: studies[0].outcome.max must be greater than min");
         assertError(base.replace("min: 0", "min: zero"), "c.yaml:3:20: studies[0].outcome.min must be a number, was 'zero'");
         assertError(base + "    assume: [[mtr-positive, mts-sideways]]\n", "c.yaml:4:14: studies[0].assume[0] unknown assumption 'mts-sideways'");
@@ -130,6 +132,67 @@ class BracketConfigTest {
         assertError("group: g\n", "c.yaml:1:1: the top level needs the key 'studies'");
         assertError("studies: [\n", "c.yaml:1:11: not valid YAML");
         assertError("", "c.yaml: empty configuration");
+    }
+
+    @Test
+    @DisplayName("durations too long for time arithmetic, or finer than a millisecond, are refused with their place")
+    void durationLimits() {
+        // 200000 days is past Long.MAX_VALUE nanoseconds (about 292 years), where Duration.toNanos throws ArithmeticException (its JDK javadoc).
+        assertError(ONE_STUDY + "grace: 200000d\n", "c.yaml:4:8: grace is too long: at most 36500d (100 years), was '200000d'");
+        assertError(ONE_STUDY + "grace: 99999999999999999999d\n", "c.yaml:4:8: grace is too long");
+        assertError(ONE_STUDY + "commit-interval: PT9999999999999999H\n", "c.yaml:4:18: commit-interval is too long");
+        assertError(ONE_STUDY + "windows:\n  - {name: w, kind: tumbling, size: 200000d}\n", "c.yaml:5:37: windows[0].size is too long");
+        assertError(ONE_STUDY + "alerts: {tick: 36501d}\n", "c.yaml:4:16: alerts.tick is too long");
+        assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: 36500d\n").grace()).isEqualTo(Duration.ofDays(36_500));
+        assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: 1.5s\n").grace()).isEqualTo(Duration.ofMillis(1_500));
+        assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: PT0.25S\n").grace()).isEqualTo(Duration.ofMillis(250));
+    }
+
+    @Test
+    @DisplayName("a sliding step below a millisecond (a zero pane length) is refused, in short and ISO-8601 form")
+    void stepsBelowOneMillisecond() {
+        String base = ONE_STUDY + "windows:\n";
+        assertError(base + "  - {name: w, kind: sliding, size: 1s, step: 0.1ms}\n",
+                "c.yaml:5:46: windows[0].step must be a whole number of milliseconds, was '0.1ms'");
+        assertError(base + "  - {name: w, kind: sliding, size: 1s, step: PT0.0001S}\n",
+                "c.yaml:5:46: windows[0].step must be a whole number of milliseconds, was 'PT0.0001S'");
+        assertError(base + "  - {name: w, kind: tumbling, size: 0.4ms}\n", "c.yaml:5:37: windows[0].size must be a whole number of milliseconds");
+        WindowSpec finest = BracketConfig.parse("c.yaml", base + "  - {name: w, kind: sliding, size: 1s, step: 1ms}\n").windows().get(1);
+        assertThat(finest.paneMillis()).isEqualTo(1);
+        assertThat(finest.panesPerWindow()).isEqualTo(1_000);
+    }
+
+    @Test
+    @DisplayName("partitions and replication outside their ranges are refused with the range, not capped")
+    void topicCountsOutOfRange() {
+        assertError(ONE_STUDY + "topics: {partitions: 1000000000000}\n", "c.yaml:4:22: topics.partitions must be from 1 to 10000, was 1000000000000");
+        assertError(ONE_STUDY + "topics: {partitions: 10001}\n", "c.yaml:4:22: topics.partitions must be from 1 to 10000");
+        // A topic's replication factor is a 16-bit signed number in Kafka's CreateTopics request (Kafka protocol guide).
+        assertError(ONE_STUDY + "topics: {replication: 40000}\n", "c.yaml:4:23: topics.replication must be from 1 to 32767");
+        assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "topics: {partitions: 10000, replication: 3}\n").topics())
+                .extracting(TopicNames::partitions, TopicNames::replicationFactor).containsExactly(10_000, (short) 3);
+    }
+
+    @Test
+    @DisplayName("a key given twice in one mapping is refused at its second place, naming the first")
+    void repeatedKeys() {
+        assertError(ONE_STUDY + "grace: 1s\ngrace: 2s\n", "c.yaml:5:1: grace is given twice in one mapping (first at line 4, column 1); keep one");
+        assertError("studies:\n  - id: s\n    id: t\n    outcome: {min: 0, max: 1}\n",
+                "c.yaml:3:5: studies[0].id is given twice in one mapping (first at line 2, column 5)");
+        assertError(ONE_STUDY.replace("max: 1}", "max: 1, min: 0.5}"), "c.yaml:3:31: studies[0].outcome.min is given twice in one mapping (first at line 3, column 15)");
+        // The same key in two different mappings is fine.
+        assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "  - id: t\n    outcome: {min: 0, max: 1}\n").studies()).hasSize(2);
+    }
+
+    @Test
+    @DisplayName("valid YAML aliases and merge keys are named as such, at the alias")
+    void aliasesAreNamed() {
+        String anchored = "studies:\n  - id: s\n    outcome: &range {min: 0, max: 1}\n  - id: t\n    outcome: *range\n";
+        assertError(anchored, "c.yaml:5:14: studies[1].outcome is the YAML alias *range; Bracket does not expand anchors (&) and aliases (*)");
+        assertError("studies:\n  - id: s\n    outcome: {min: 0, max: 1, <<: {better: lower}}\n",
+                "c.yaml:3:31: studies[0].outcome.<< is a YAML merge key");
+        // An anchor nobody refers to changes nothing.
+        assertThat(BracketConfig.parse("c.yaml", "studies:\n  - id: s\n    outcome: &range {min: 0, max: 1}\n").studies()).hasSize(1);
     }
 
     private static void assertError(String yaml, String expectedStart) {

@@ -4,12 +4,14 @@ import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.Producer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
+import org.apache.kafka.common.errors.TimeoutException;
 import org.apache.kafka.common.serialization.StringSerializer;
 
 import java.time.Clock;
 import java.time.Duration;
 import java.util.Properties;
 import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.concurrent.atomic.AtomicLong;
 import java.util.concurrent.atomic.AtomicReference;
 import java.util.concurrent.locks.LockSupport;
@@ -31,6 +33,9 @@ public final class DemoProducer {
         public static final Limits NONE = new Limits(0, null);
     }
 
+    /** Longest wait for the brokers before a record counts as failed: a send, a delivery attempt. */
+    public static final Duration ANSWER_TIMEOUT = Duration.ofSeconds(10);
+
     private final Producer<String, String> producer;
     private final String topic;
     private final double rate;
@@ -39,6 +44,7 @@ public final class DemoProducer {
     private final AtomicLong acknowledged = new AtomicLong();
     private final AtomicLong failed = new AtomicLong();
     private final AtomicReference<Exception> firstFailure = new AtomicReference<>();
+    private final AtomicBoolean unanswered = new AtomicBoolean();
 
     /**
      * @param rate records per second; 0 sends as fast as the producer accepts them
@@ -53,7 +59,11 @@ public final class DemoProducer {
         this.clock = clock;
     }
 
-    /** Producer settings for the outcomes topic: strings, acknowledged by all replicas, small batches. */
+    /**
+     * Producer settings for the outcomes topic: strings, acknowledged by all replicas, small
+     * batches; brokers that do not answer fail a record within {@link #ANSWER_TIMEOUT} (waiting
+     * for metadata or for a request) and within three times that in all.
+     */
     public static Properties kafkaProperties(String bootstrapServers) {
         Properties p = new Properties();
         p.put(ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers);
@@ -61,6 +71,10 @@ public final class DemoProducer {
         p.put(ProducerConfig.ACKS_CONFIG, "all");
         p.put(ProducerConfig.LINGER_MS_CONFIG, 20);
         p.put(ProducerConfig.BATCH_SIZE_CONFIG, 256 * 1024);
+        int answerMillis = (int) ANSWER_TIMEOUT.toMillis();
+        p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, answerMillis);
+        p.put(ProducerConfig.REQUEST_TIMEOUT_MS_CONFIG, answerMillis);
+        p.put(ProducerConfig.DELIVERY_TIMEOUT_MS_CONFIG, 3 * answerMillis);
         p.put(ProducerConfig.KEY_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         p.put(ProducerConfig.VALUE_SERIALIZER_CLASS_CONFIG, StringSerializer.class.getName());
         return p;
@@ -72,13 +86,14 @@ public final class DemoProducer {
 
     /**
      * Sends until a limit or the end of the feed, then flushes. Records are paced on a fixed
-     * schedule (record i at start + i / rate), so a slow moment is caught up afterwards.
+     * schedule (record i at start + i / rate), so a slow moment is caught up afterwards. Stops
+     * early when the brokers stop answering (see {@link #unanswered()}).
      */
     public void run(EventFeed feed, Limits limits, BooleanSupplier stopRequested) {
         long startNanos = System.nanoTime();
         long deadline = limits.duration() == null ? Long.MAX_VALUE : startNanos + limits.duration().toNanos();
         long i = 0;
-        while (!stopRequested.getAsBoolean() && (limits.count() == 0 || i < limits.count())) {
+        while (!stopRequested.getAsBoolean() && !unanswered.get() && (limits.count() == 0 || i < limits.count())) {
             long now = System.nanoTime();
             if (now >= deadline) {
                 break;
@@ -100,6 +115,9 @@ public final class DemoProducer {
                 } else {
                     failed.incrementAndGet();
                     firstFailure.compareAndSet(null, e);
+                    if (e instanceof TimeoutException) {
+                        unanswered.set(true);
+                    }
                 }
             });
             sent.incrementAndGet();
@@ -121,6 +139,11 @@ public final class DemoProducer {
     /** Records the broker did not take. */
     public long failed() {
         return failed.get();
+    }
+
+    /** Whether a record failed because the brokers did not answer in time; sending then stops. */
+    public boolean unanswered() {
+        return unanswered.get();
     }
 
     /** The first send failure, if any. */

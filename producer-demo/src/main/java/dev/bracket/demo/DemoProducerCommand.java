@@ -5,15 +5,15 @@ import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
 
-import java.io.BufferedReader;
 import java.io.IOException;
+import java.io.InputStream;
 import java.io.PrintWriter;
-import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.time.Clock;
 import java.time.Duration;
+import java.util.Optional;
 import java.util.concurrent.Callable;
 import java.util.concurrent.CountDownLatch;
 import java.util.concurrent.atomic.AtomicBoolean;
@@ -108,19 +108,29 @@ public final class DemoProducerCommand implements Callable<Integer> {
         return scenarioOptions.settings(hosts, rolloutShare, strata, spec.commandLine());
     }
 
-    private BufferedReader openFile() throws IOException {
+    private InputStream openFile() throws IOException {
         if (fromFile.equals("-")) {
-            return new BufferedReader(new java.io.InputStreamReader(System.in, StandardCharsets.UTF_8));
+            return System.in;
         }
         try {
-            return Files.newBufferedReader(Path.of(fromFile), StandardCharsets.UTF_8);
+            return Files.newInputStream(Path.of(fromFile));
         } catch (NoSuchFileException e) {
             throw new CommandLine.ParameterException(spec.commandLine(), "--from-file: no such file '" + fromFile + "'");
         }
     }
 
-    /** Sends until done or Ctrl-C; a Ctrl-C still flushes what was handed to the producer. */
+    /**
+     * Sends until done or Ctrl-C; a Ctrl-C still flushes what was handed to the producer. Brokers
+     * that cannot be reached end it at once, brokers that stop answering within about
+     * {@link DemoProducer#ANSWER_TIMEOUT}: one line, exit code 1.
+     */
     private int send(EventFeed feed, DemoProducer.Limits limits) {
+        PrintWriter err = spec.commandLine().getErr();
+        Optional<String> down = BootstrapCheck.unreachable(bootstrapServers, DemoProducer.ANSWER_TIMEOUT);
+        if (down.isPresent()) {
+            err.println("demo-producer: cannot reach Kafka: " + down.get() + "; start the broker or correct --bootstrap-servers");
+            return 1;
+        }
         AtomicBoolean stop = new AtomicBoolean();
         CountDownLatch finished = new CountDownLatch(1);
         Thread hook = new Thread(() -> {
@@ -147,8 +157,13 @@ public final class DemoProducerCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         out.printf("Sent %d events; the broker acknowledged %d, refused %d.%n", sender.sent(), sender.acknowledged(), sender.failed());
         out.flush();
+        if (sender.unanswered()) {
+            err.printf("demo-producer: Kafka at %s stopped answering (no reply within %d s: %s); sending stopped%n",
+                    bootstrapServers, DemoProducer.ANSWER_TIMEOUT.toSeconds(), sender.firstFailure().getMessage());
+            return 1;
+        }
         if (sender.failed() > 0) {
-            spec.commandLine().getErr().println("first failure: " + sender.firstFailure());
+            err.println("first failure: " + sender.firstFailure());
             return 1;
         }
         return 0;

@@ -3,49 +3,50 @@ package dev.bracket.demo;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 
-import java.io.BufferedReader;
+import dev.bracket.lines.JsonLines;
+
 import java.io.Closeable;
 import java.io.IOException;
+import java.io.InputStream;
 import java.io.UncheckedIOException;
+import java.nio.charset.StandardCharsets;
 import java.time.Instant;
 
 /**
  * Sends a file of JSON lines as it is. The monitor, not the producer, validates events: a line
  * that is not a JSON object still goes out (the monitor puts it on its rejected topic with the
- * reason) and is counted here so the user hears about it. Blank lines are not records and are
- * skipped. Records are keyed by their {@code unit} field when it is there.
+ * reason) and is counted here so the user hears about it. Lines are split by {@link JsonLines},
+ * exactly as {@code bracket replay} splits them; blank lines are not records. Records are keyed by
+ * their {@code unit} field when it is there.
  */
 public final class JsonlFileFeed implements EventFeed, Closeable {
 
     private static final ObjectMapper MAPPER = new ObjectMapper();
 
-    private final BufferedReader reader;
-    private long lineNumber;
+    private final JsonLines lines;
     private long malformed;
     private long firstMalformedLine;
 
-    public JsonlFileFeed(BufferedReader reader) {
-        this.reader = reader;
+    public JsonlFileFeed(InputStream in) {
+        this.lines = new JsonLines(in);
     }
 
     @Override
     public KeyedLine next(Instant now) {
+        JsonLines.Line line;
         try {
-            String line;
-            do {
-                line = reader.readLine();
-                if (line == null) {
-                    return null;
-                }
-                lineNumber++;
-            } while (line.isBlank());
-            return new KeyedLine(unitOf(line), line);
+            line = lines.next();
         } catch (IOException e) {
-            throw new UncheckedIOException("reading line " + (lineNumber + 1) + ": " + e.getMessage(), e);
+            throw new UncheckedIOException("reading the file: " + e.getMessage(), e);
         }
+        if (line == null) {
+            return null;
+        }
+        String value = new String(line.bytes(), StandardCharsets.UTF_8);
+        return new KeyedLine(unitOf(value, line.number()), value);
     }
 
-    private String unitOf(String line) {
+    private String unitOf(String line, long lineNumber) {
         try {
             JsonNode node = MAPPER.readTree(line);
             if (node != null && node.isObject()) {
@@ -73,6 +74,6 @@ public final class JsonlFileFeed implements EventFeed, Closeable {
 
     @Override
     public void close() throws IOException {
-        reader.close();
+        lines.close();
     }
 }

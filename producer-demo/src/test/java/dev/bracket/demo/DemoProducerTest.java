@@ -8,8 +8,8 @@ import org.apache.kafka.common.serialization.StringSerializer;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
 
-import java.io.BufferedReader;
-import java.io.StringReader;
+import java.io.ByteArrayInputStream;
+import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.Duration;
 import java.time.Instant;
@@ -96,7 +96,7 @@ class DemoProducerTest {
                 {"study":"s","unit":"u2","treated":false,"outcome":0.7,"time":"2026-01-01T00:00:01Z"}
                 """;
         MockProducer<String, String> kafka = mock();
-        JsonlFileFeed feed = new JsonlFileFeed(new BufferedReader(new StringReader(file)));
+        JsonlFileFeed feed = new JsonlFileFeed(new ByteArrayInputStream(file.getBytes(StandardCharsets.UTF_8)));
         new DemoProducer(kafka, "t", 0, FIXED).run(feed, DemoProducer.Limits.NONE, () -> false);
 
         assertThat(kafka.history()).extracting(ProducerRecord::value).containsExactly(
