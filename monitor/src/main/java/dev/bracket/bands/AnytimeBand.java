@@ -3,6 +3,7 @@ package dev.bracket.bands;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;

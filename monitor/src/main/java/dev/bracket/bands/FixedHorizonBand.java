@@ -5,6 +5,7 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
