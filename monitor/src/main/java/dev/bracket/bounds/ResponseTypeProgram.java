@@ -1,5 +1,6 @@
 package dev.bracket.bounds;
 
+import org.apache.commons.math3.exception.TooManyIterationsException;
 import org.apache.commons.math3.optim.MaxIter;
 import org.apache.commons.math3.optim.linear.LinearConstraint;
 import org.apache.commons.math3.optim.linear.LinearConstraintSet;
@@ -67,6 +68,9 @@ final class ResponseTypeProgram {
     /** Solver tolerance on the unit scale: far above the rounding of probabilities from counts, far below any sampling error. */
     static final double EPSILON = 1e-9;
 
+    /** Pivots allowed per solve; a solve takes a few dozen at 2 to 4 levels. */
+    private static final int MAX_ITERATIONS = 10_000;
+
     private final ResponseTypes types;
     private final int[] allowed;
     private final List<LinearConstraint> constraints = new ArrayList<>();
@@ -100,10 +104,23 @@ final class ResponseTypeProgram {
         }
     }
 
+    /**
+     * Dantzig's rule first; Commons Math breaks its ties by Bland's rule. On these highly
+     * degenerate programs (many empty cells, pairs of constraints that pin a mean) Bland's rule
+     * alone was seen to cycle, while Dantzig's was not; should Dantzig's ever run out of
+     * iterations, Bland's is tried before giving up.
+     */
     private double solve(LinearObjectiveFunction objective, GoalType goal) {
-        // Bland's rule: these programs are highly degenerate (many empty cells), where the default rule may cycle.
-        return new SimplexSolver(EPSILON).optimize(new MaxIter(10_000), objective, new LinearConstraintSet(constraints), goal,
-                new NonNegativeConstraint(true), PivotSelectionRule.BLAND).getValue();
+        try {
+            return solve(objective, goal, PivotSelectionRule.DANTZIG);
+        } catch (TooManyIterationsException e) {
+            return solve(objective, goal, PivotSelectionRule.BLAND);
+        }
+    }
+
+    private double solve(LinearObjectiveFunction objective, GoalType goal, PivotSelectionRule rule) {
+        return new SimplexSolver(EPSILON).optimize(new MaxIter(MAX_ITERATIONS), objective, new LinearConstraintSet(constraints), goal,
+                new NonNegativeConstraint(true), rule).getValue();
     }
 
     /** Pointwise assumptions: whether a type may have mass at all. */
