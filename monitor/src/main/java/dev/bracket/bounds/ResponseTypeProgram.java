@@ -68,7 +68,7 @@ final class ResponseTypeProgram {
     /** Solver tolerance on the unit scale: far above the rounding of probabilities from counts, far below any sampling error. */
     static final double EPSILON = 1e-9;
 
-    /** Pivots allowed per solve; a solve takes a few dozen at 2 to 4 levels. */
+    /** Pivots allowed per solve: far more than programs of this size need, a guard against cycling only. */
     private static final int MAX_ITERATIONS = 10_000;
 
     private final ResponseTypes types;

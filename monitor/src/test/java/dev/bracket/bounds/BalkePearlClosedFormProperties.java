@@ -1,11 +1,12 @@
 package dev.bracket.bounds;
 
-import net.jqwik.api.Arbitraries;
 import net.jqwik.api.Arbitrary;
 import net.jqwik.api.ForAll;
 import net.jqwik.api.Property;
 import net.jqwik.api.Provide;
 import net.jqwik.api.statistics.Statistics;
+
+import java.util.stream.DoubleStream;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
@@ -34,38 +35,18 @@ class BalkePearlClosedFormProperties {
 
     @Provide
     Arbitrary<InstrumentLevelCounts> twoLevels() {
-        return counts(2);
+        return InstrumentLevelCounts.arbitrary(2, 2, 6);
     }
 
     @Provide
     Arbitrary<InstrumentLevelCounts> threeLevels() {
-        return counts(3);
-    }
-
-    private static Arbitrary<InstrumentLevelCounts> counts(int levels) {
-        Arbitrary<int[]> cell = Arbitraries.integers().between(0, 6).array(int[].class).ofSize(2);
-        return cell.array(int[][].class).ofSize(2).array(int[][][].class).ofSize(levels).map(InstrumentLevelCounts::new)
-                .filter(d -> {
-                    long treated = 0;
-                    long control = 0;
-                    for (int z = 0; z < d.levels(); z++) {
-                        if (d.total(z) == 0) {
-                            return false;
-                        }
-                        treated += d.counts()[z][1][0] + d.counts()[z][1][1];
-                        control += d.counts()[z][0][0] + d.counts()[z][0][1];
-                    }
-                    return treated > 0 && control > 0;
-                });
+        return InstrumentLevelCounts.arbitrary(3, 3, 6);
     }
 
     @Property(tries = 400)
     void twoLevelsMatchTheClosedFormsAndRefuteExactlyWhenTheInequalityFails(@ForAll("twoLevels") InstrumentLevelCounts data) {
-        IdentifiedInterval engine = IndependentInstrumentBounds.interval(data.arms(BINARY), BINARY, INDEPENDENT);
-        boolean holds = data.instrumentalInequalityHolds();
-        Statistics.label("instrumental inequality").collect(holds ? "holds" : "fails");
-        if (!holds) {
-            assertEquals(BoundStatus.REFUTED, engine.status(), "inequality fails but engine says " + engine.status().id() + ": " + data);
+        IdentifiedInterval engine = refutedWhenTheInequalityFails(data);
+        if (!data.instrumentalInequalityHolds()) {
             return;
         }
         assertTrue(engine.isIdentified(), "inequality holds but engine says " + engine.status().id() + ": " + data);
@@ -78,12 +59,18 @@ class BalkePearlClosedFormProperties {
 
     @Property(tries = 150)
     void threeLevelsAreRefutedWheneverTheInequalityFails(@ForAll("threeLevels") InstrumentLevelCounts data) {
+        refutedWhenTheInequalityFails(data);
+    }
+
+    /** The engine's interval, checked to be refuted if the instrumental inequality fails. */
+    private static IdentifiedInterval refutedWhenTheInequalityFails(InstrumentLevelCounts data) {
         IdentifiedInterval engine = IndependentInstrumentBounds.interval(data.arms(BINARY), BINARY, INDEPENDENT);
         boolean holds = data.instrumentalInequalityHolds();
         Statistics.label("instrumental inequality").collect(holds ? "holds" : "fails");
         if (!holds) {
             assertEquals(BoundStatus.REFUTED, engine.status(), "inequality fails but engine says " + engine.status().id() + ": " + data);
         }
+        return engine;
     }
 
     /**
@@ -96,7 +83,7 @@ class BalkePearlClosedFormProperties {
         double p010 = p[0][1][0], p011 = p[1][1][0];
         double p100 = p[0][0][1], p101 = p[1][0][1];
         double p110 = p[0][1][1], p111 = p[1][1][1];
-        double lower = max(
+        double lower = DoubleStream.of(
                 p111 + p000 - 1,
                 p110 + p001 - 1,
                 p110 - p111 - p101 - p010 - p100,
@@ -104,8 +91,8 @@ class BalkePearlClosedFormProperties {
                 -p011 - p101,
                 -p010 - p100,
                 p001 - p011 - p101 - p010 - p000,
-                p000 - p010 - p100 - p011 - p001);
-        double upper = min(
+                p000 - p010 - p100 - p011 - p001).max().getAsDouble();
+        double upper = DoubleStream.of(
                 1 - p011 - p100,
                 1 - p010 - p101,
                 -p010 + p011 + p001 + p110 + p000,
@@ -113,23 +100,7 @@ class BalkePearlClosedFormProperties {
                 p111 + p001,
                 p110 + p000,
                 -p101 + p111 + p001 + p110 + p100,
-                -p100 + p110 + p000 + p111 + p101);
+                -p100 + p110 + p000 + p111 + p101).min().getAsDouble();
         return new double[] {lower, upper};
-    }
-
-    private static double max(double... v) {
-        double m = Double.NEGATIVE_INFINITY;
-        for (double x : v) {
-            m = Math.max(m, x);
-        }
-        return m;
-    }
-
-    private static double min(double... v) {
-        double m = Double.POSITIVE_INFINITY;
-        for (double x : v) {
-            m = Math.min(m, x);
-        }
-        return m;
     }
 }

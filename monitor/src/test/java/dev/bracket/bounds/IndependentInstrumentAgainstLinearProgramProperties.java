@@ -8,7 +8,6 @@ import net.jqwik.api.Provide;
 import net.jqwik.api.statistics.Statistics;
 
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.List;
 import java.util.Optional;
 import java.util.Set;
@@ -28,44 +27,16 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
  */
 class IndependentInstrumentAgainstLinearProgramProperties {
 
-    private static final List<Set<Assumption>> SETS = singlesAndPairs();
-
-    private static List<Set<Assumption>> singlesAndPairs() {
-        List<Set<Assumption>> sets = new ArrayList<>();
-        Assumption[] all = Assumption.values();
-        for (int i = 0; i < all.length; i++) {
-            sets.add(EnumSet.of(all[i]));
-            for (int j = i + 1; j < all.length; j++) {
-                sets.add(EnumSet.of(all[i], all[j]));
-            }
-        }
-        return sets;
-    }
+    private static final List<Set<Assumption>> SETS = SharpnessAgainstLinearProgramProperties.singlesAndPairs();
 
     @Provide
     Arbitrary<InstrumentLevelCounts> data() {
-        Arbitrary<int[]> cell = Arbitraries.integers().between(0, 5).array(int[].class).ofSize(2);
-        return Arbitraries.integers().between(2, 3).flatMap(k ->
-                        cell.array(int[][].class).ofSize(2).array(int[][][].class).ofSize(k))
-                .map(InstrumentLevelCounts::new)
-                .filter(d -> {
-                    long treated = 0;
-                    long control = 0;
-                    for (int z = 0; z < d.levels(); z++) {
-                        if (d.total(z) == 0) {
-                            return false;
-                        }
-                        treated += d.counts()[z][1][0] + d.counts()[z][1][1];
-                        control += d.counts()[z][0][0] + d.counts()[z][0][1];
-                    }
-                    return treated > 0 && control > 0;
-                });
+        return InstrumentLevelCounts.arbitrary(2, 3, 5);
     }
 
     @Provide
     Arbitrary<Set<Assumption>> largerSet() {
-        return Arbitraries.of(Assumption.class).set().ofMinSize(3).ofMaxSize(Assumption.values().length)
-                .map(s -> EnumSet.copyOf(s));
+        return SharpnessAgainstLinearProgramProperties.largerSets();
     }
 
     @Provide

@@ -21,19 +21,9 @@ class IndependentInstrumentPublishedExamplesTest {
 
     /** A level's arms from counts of (T, Y): treated with Y=0, treated with Y=1, untreated with Y=0, untreated with Y=1. */
     static ObservedArms level(int treatedZero, int treatedOne, int untreatedZero, int untreatedOne) {
-        return new ObservedArms(binary(treatedZero, treatedOne), binary(untreatedZero, untreatedOne));
-    }
-
-    /** An arm of binary outcomes, one Welford update per unit as a stream would build it. */
-    static ArmStatistics binary(int zeros, int ones) {
-        ArmStatistics s = ArmStatistics.empty();
-        for (int i = 0; i < zeros; i++) {
-            s = s.add(0);
-        }
-        for (int i = 0; i < ones; i++) {
-            s = s.add(1);
-        }
-        return s;
+        // One Welford update per unit, as a stream would build the arms.
+        return new ObservedArms(InstrumentBoundsPublishedExamplesTest.binary(treatedZero, treatedOne),
+                InstrumentBoundsPublishedExamplesTest.binary(untreatedZero, untreatedOne));
     }
 
     @Test

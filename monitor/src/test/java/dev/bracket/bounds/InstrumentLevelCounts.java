@@ -1,5 +1,8 @@
 package dev.bracket.bounds;
 
+import net.jqwik.api.Arbitraries;
+import net.jqwik.api.Arbitrary;
+
 import java.util.Arrays;
 import java.util.LinkedHashMap;
 import java.util.Map;
@@ -9,6 +12,31 @@ import java.util.Map;
  * {@code counts[z][t][y]}, with the outcome y = 0 meaning the range's min and y = 1 its max.
  */
 record InstrumentLevelCounts(int[][][] counts) {
+
+    /**
+     * Random counts from 0 to {@code maxCount} per cell, for {@code minLevels} to {@code maxLevels}
+     * levels, every level with units and both arms with units somewhere.
+     */
+    static Arbitrary<InstrumentLevelCounts> arbitrary(int minLevels, int maxLevels, int maxCount) {
+        Arbitrary<int[]> cell = Arbitraries.integers().between(0, maxCount).array(int[].class).ofSize(2);
+        return Arbitraries.integers().between(minLevels, maxLevels)
+                .flatMap(k -> cell.array(int[][].class).ofSize(2).array(int[][][].class).ofSize(k))
+                .map(InstrumentLevelCounts::new)
+                .filter(InstrumentLevelCounts::usable);
+    }
+
+    private boolean usable() {
+        long treated = 0;
+        long control = 0;
+        for (int z = 0; z < levels(); z++) {
+            if (total(z) == 0) {
+                return false;
+            }
+            treated += counts[z][1][0] + counts[z][1][1];
+            control += counts[z][0][0] + counts[z][0][1];
+        }
+        return treated > 0 && control > 0;
+    }
 
     int levels() {
         return counts.length;

@@ -38,7 +38,8 @@ class SharpnessAgainstLinearProgramProperties {
     /** Every single assumption and every pair of distinct assumptions. */
     private static final List<Set<Assumption>> SETS = singlesAndPairs();
 
-    private static List<Set<Assumption>> singlesAndPairs() {
+    /** Every single assumption and every pair of distinct assumptions (shared with the instrument properties). */
+    static List<Set<Assumption>> singlesAndPairs() {
         List<Set<Assumption>> sets = new ArrayList<>();
         Assumption[] all = Assumption.values();
         for (int i = 0; i < all.length; i++) {
@@ -125,6 +126,11 @@ class SharpnessAgainstLinearProgramProperties {
     /** Three or more assumptions held together, beyond the pairs. */
     @Provide
     Arbitrary<Set<Assumption>> largerSet() {
+        return largerSets();
+    }
+
+    /** Three or more assumptions held together (shared with the instrument properties). */
+    static Arbitrary<Set<Assumption>> largerSets() {
         return Arbitraries.of(Assumption.class).set().ofMinSize(3).ofMaxSize(Assumption.values().length)
                 .map(s -> EnumSet.copyOf(s));
     }
