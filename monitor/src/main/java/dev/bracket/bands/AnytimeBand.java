@@ -3,6 +3,8 @@ package dev.bracket.bands;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
@@ -76,9 +78,14 @@ public final class AnytimeBand {
 
     /** The band of a whole study (strata and instrument levels by Bonferroni over cells). */
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions) {
+        return of(cells, range, assumptions, StratifiedBounds.interval(cells, range, assumptions).overall());
+    }
+
+    /** The same, given the study's estimated interval (to spare computing it again). */
+    public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
         int k = Math.max(1, BoxProjection.cellCount(cells));
         String basis = k == 1 ? singleCellBasis : basis(k);
-        if (StratifiedBounds.interval(cells, range, assumptions).overall().status() == BoundStatus.INSUFFICIENT_DATA) {
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         NormalMixtureBoundary boundary = k == 1 ? singleCellBoundary : boundary(k);

@@ -1,7 +1,9 @@
 package dev.bracket.bands;
 
 import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 
 import java.util.ArrayList;
@@ -52,11 +54,19 @@ public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis 
 
     /** The requested bands for one assumption set over a study's cells. */
     public List<ConfidenceBand> bands(StudyCells cells, OutcomeRange range, AssumptionSet assumptions) {
+        return methods.isEmpty() ? List.of() : bands(cells, range, assumptions, StratifiedBounds.interval(cells, range, assumptions).overall());
+    }
+
+    /**
+     * The same, given the study's estimated interval for these assumptions (computing it can take
+     * linear programs, see {@link dev.bracket.bounds.IndependentInstrumentBounds}).
+     */
+    public List<ConfidenceBand> bands(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
         List<ConfidenceBand> out = new ArrayList<>(methods.size());
         for (BandMethod m : methods) {
             out.add(switch (m) {
-                case FIXED_HORIZON -> FixedHorizonBand.of(cells, range, assumptions, level, variance);
-                case ANYTIME -> new AnytimeBand(level, plannedCount).of(cells, range, assumptions);
+                case FIXED_HORIZON -> FixedHorizonBand.of(cells, range, assumptions, level, variance, estimate);
+                case ANYTIME -> new AnytimeBand(level, plannedCount).of(cells, range, assumptions, estimate);
             });
         }
         return List.copyOf(out);

@@ -3,11 +3,16 @@ package dev.bracket.bands;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.IndependentInstrumentBounds;
+import dev.bracket.bounds.InstrumentAssumption;
 import dev.bracket.bounds.InstrumentBounds;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.function.Function;
@@ -30,6 +35,12 @@ import java.util.function.Function;
  * {@code [max_z min L1_z - min_z max U0_z, min_z max U1_z - max_z min L0_z]}, and the data refute
  * the assumptions when {@code max_z min L1_z > min_z max U1_z} (or the same for Y0): valid because
  * the true L1_z is at least min L1_z for every z and the true U1_w at most max U1_w.
+ *
+ * <p>Independent instrument (binary outcome, see {@link IndependentInstrumentBounds}): the linear
+ * programs over response types are solved once with every level's box as interval constraints,
+ * which gives the lowest lower and highest upper sharp bound over all points of the boxes at
+ * once (and refuted when no point is compatible); beyond
+ * {@link IndependentInstrumentBounds#MAX_LEVELS} levels the mean-independence projection above.
  *
  * <p>Strata: the band is the stratum bands weighted by the observed stratum shares, the same
  * weights {@link dev.bracket.bounds.StratifiedBounds} uses; it covers the ATE of the population
@@ -100,6 +111,14 @@ final class BoxProjection {
 
     private static Optional<Ends> instrument(Map<String, ObservedArms> levels, OutcomeRange range, AssumptionSet assumptions,
                                              Function<ObservedArms, ObservablesBox> boxOf) {
+        if (assumptions.instrument() == InstrumentAssumption.INDEPENDENT) {
+            List<ObservablesBox> boxes = new ArrayList<>();
+            levels.values().stream().filter(arms -> arms.total() > 0).forEach(arms -> boxes.add(boxOf.apply(arms)));
+            if (boxes.size() <= IndependentInstrumentBounds.MAX_LEVELS) {
+                IdentifiedInterval band = IndependentInstrumentBounds.overBoxes(boxes, range, assumptions);
+                return band.isBounded() ? Optional.of(new Ends(band.lower(), band.upper())) : Optional.empty();
+            }
+        }
         double l1 = Double.NEGATIVE_INFINITY;
         double u1 = Double.POSITIVE_INFINITY;
         double l0 = Double.NEGATIVE_INFINITY;

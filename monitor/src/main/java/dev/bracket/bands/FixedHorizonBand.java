@@ -5,6 +5,7 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
@@ -51,7 +52,12 @@ public final class FixedHorizonBand {
     /** The band of a whole study. */
     public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                     VarianceBasis variance) {
-        IdentifiedInterval estimate = StratifiedBounds.interval(cells, range, assumptions).overall();
+        return of(cells, range, assumptions, level, variance, StratifiedBounds.interval(cells, range, assumptions).overall());
+    }
+
+    /** The same, given the study's estimated interval (to spare computing it again). */
+    public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
+                                    VarianceBasis variance, IdentifiedInterval estimate) {
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }

@@ -10,14 +10,22 @@ import java.util.stream.Collectors;
 /**
  * A set of assumptions held jointly: their constraints are intersected. Written as
  * comma-separated identifiers, e.g. {@code mtr-positive,mts-positive}; the canonical order is
- * the declaration order of {@link Assumption}.
+ * the declaration order of {@link Assumption}. The set also says what is assumed about an
+ * instrument when the data carry instrument levels ({@link InstrumentAssumption}, by default
+ * mean independence); it is chosen per study, not written in the identifiers.
  */
 public final class AssumptionSet {
 
     private final Set<Assumption> members;
+    private final InstrumentAssumption instrument;
+
+    private AssumptionSet(Set<Assumption> members, InstrumentAssumption instrument) {
+        this.members = Collections.unmodifiableSet(members);
+        this.instrument = instrument;
+    }
 
     private AssumptionSet(Set<Assumption> members) {
-        this.members = Collections.unmodifiableSet(members);
+        this(members, InstrumentAssumption.MEAN_INDEPENDENT);
     }
 
     public static AssumptionSet of(Assumption first, Assumption... rest) {
@@ -59,6 +67,19 @@ public final class AssumptionSet {
         return members.contains(a);
     }
 
+    /** What is assumed about an instrument, when the data have instrument levels. */
+    public InstrumentAssumption instrument() {
+        return instrument;
+    }
+
+    /** The same assumptions with the given instrument assumption. */
+    public AssumptionSet withInstrument(InstrumentAssumption assumption) {
+        if (assumption == null) {
+            throw new IllegalArgumentException("instrument assumption is required");
+        }
+        return new AssumptionSet(EnumSet.copyOf(members), assumption);
+    }
+
     /** The identifiers in canonical order. */
     public List<String> ids() {
         return members.stream().map(Assumption::id).collect(Collectors.toList());
@@ -80,15 +101,15 @@ public final class AssumptionSet {
 
     @Override
     public boolean equals(Object o) {
-        return o instanceof AssumptionSet other && members.equals(other.members);
+        return o instanceof AssumptionSet other && members.equals(other.members) && instrument == other.instrument;
     }
 
     @Override
     public int hashCode() {
-        return members.hashCode();
+        return 31 * members.hashCode() + instrument.hashCode();
     }
 
-    /** Canonical comma-separated identifiers. */
+    /** Canonical comma-separated identifiers (the instrument assumption is not part of them). */
     @Override
     public String toString() {
         return String.join(",", ids());

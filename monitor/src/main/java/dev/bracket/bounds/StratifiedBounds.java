@@ -6,8 +6,9 @@ import java.util.Map;
 
 /**
  * Bounds for a study whose units fall into strata (sites, regions, risk groups). Within a
- * stratum the cell's bounds come from {@link BoundCalculator}, or from {@link InstrumentBounds}
- * when the stratum has instrument levels. The population ATE is the share-weighted sum of the
+ * stratum the cell's bounds come from {@link BoundCalculator}, or, when the stratum has instrument
+ * levels, from the bounds of the set's {@link InstrumentAssumption} ({@link InstrumentBounds} or
+ * {@link IndependentInstrumentBounds}). The population ATE is the share-weighted sum of the
  * stratum ATEs, so its identified set is the share-weighted sum of the stratum intervals:
  *
  * <pre>
@@ -45,7 +46,7 @@ public final class StratifiedBounds {
             }
             IdentifiedInterval interval = levels.size() == 1
                     ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
-                    : InstrumentBounds.interval(levels, range, assumptions);
+                    : assumptions.instrument().interval(levels, range, assumptions);
             perStratum.put(e.getKey(), interval);
             switch (interval.status()) {
                 case REFUTED -> refuted = true;

@@ -7,7 +7,9 @@ import dev.bracket.bands.BandSettings;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.InstrumentAssumption;
 import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 import dev.bracket.report.ReportJson;
@@ -43,6 +45,12 @@ import java.util.concurrent.Callable;
                 "Assumptions: worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,",
                 "optimizing-selection, sorting-on-gains. Join several with commas to assume them together.",
                 "",
+                "Instrument levels (the instrument column of --cells): --instrument mean-independent",
+                "intersects each level's bounds (any outcome); --instrument independent gives the",
+                "sharp bounds when the instrument is independent of how units would take treatment",
+                "and of their potential outcomes (a randomised assignment or lottery), by linear",
+                "programming; it needs --outcome-kind binary. Refuted means the data contradict it.",
+                "",
                 "Standard deviations (--treated-sd, --control-sd or the sd column) stand in",
                 "for the spread of each arm's outcomes in the fixed-horizon band's standard",
                 "errors. Without an SD for every arm, that band assumes the largest spread",
@@ -68,6 +76,14 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--better", paramLabel = "higher|lower", defaultValue = "higher",
             description = "Which outcomes are better; matters for optimizing-selection and sorting-on-gains (default: ${DEFAULT-VALUE}).")
     String better;
+
+    @Option(names = "--outcome-kind", paramLabel = "bounded|binary", defaultValue = "bounded",
+            description = "bounded: outcomes anywhere in [A, B]; binary: every outcome equals A or B (default: ${DEFAULT-VALUE}).")
+    String outcomeKind;
+
+    @Option(names = "--instrument", paramLabel = "mean-independent|independent", defaultValue = "mean-independent",
+            description = "What is assumed about the instrument levels of --cells (default: ${DEFAULT-VALUE}); independent needs --outcome-kind binary.")
+    String instrument;
 
     @Option(names = "--treated-n", paramLabel = "N1", description = "Units that received treatment.")
     Long treatedN;
@@ -109,7 +125,8 @@ public final class CalcCommand implements Callable<Integer> {
     @Override
     public Integer call() throws IOException {
         OutcomeRange range = range();
-        List<AssumptionSet> sets = sets();
+        InstrumentAssumption instrumentAssumption = instrument(range);
+        List<AssumptionSet> sets = sets().stream().map(set -> set.withInstrument(instrumentAssumption)).toList();
         BandSettings bands = bands();
         CalcInput.Cells input = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
         StudyReport report = StudyReport.of(input.cells(), range, sets,
@@ -129,11 +146,31 @@ public final class CalcCommand implements Callable<Integer> {
             throw new InputError("--min and --max must be finite numbers with --min < --max, were "
                     + CalcInput.fmt(min) + " and " + CalcInput.fmt(max));
         }
+        Direction direction;
         try {
-            return new OutcomeRange(min, max, Direction.parse(better));
+            direction = Direction.parse(better);
         } catch (IllegalArgumentException e) {
             throw new InputError("--better " + e.getMessage());
         }
+        try {
+            return new OutcomeRange(min, max, direction, OutcomeKind.parse(outcomeKind));
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--outcome-kind " + e.getMessage());
+        }
+    }
+
+    private InstrumentAssumption instrument(OutcomeRange range) {
+        InstrumentAssumption assumption;
+        try {
+            assumption = InstrumentAssumption.parse(instrument);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--instrument " + e.getMessage());
+        }
+        if (!assumption.supports(range.kind())) {
+            throw new InputError("--instrument independent needs --outcome-kind binary (every outcome equal to --min or --max); "
+                    + "for outcomes anywhere in the range use --instrument mean-independent");
+        }
+        return assumption;
     }
 
     private List<AssumptionSet> sets() {
@@ -169,10 +206,12 @@ public final class CalcCommand implements Callable<Integer> {
         requireFlag(treatedMean, "--treated-mean");
         requireFlag(controlN, "--control-n");
         requireFlag(controlMean, "--control-mean");
+        Double sd1 = CalcInput.knownSd(treatedSd, treatedN, treatedMean, range);
+        Double sd0 = CalcInput.knownSd(controlSd, controlN, controlMean, range);
         ObservedArms arms = new ObservedArms(
-                CalcInput.arm(treatedN, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
-                CalcInput.arm(controlN, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
-        boolean everySdGiven = (treatedSd != null || treatedN < 2) && (controlSd != null || controlN < 2);
+                CalcInput.arm(treatedN, treatedMean, sd1 == null ? 0.0 : sd1, range, "--treated-"),
+                CalcInput.arm(controlN, controlMean, sd0 == null ? 0.0 : sd0, range, "--control-"));
+        boolean everySdGiven = (sd1 != null || treatedN < 2) && (sd0 != null || controlN < 2);
         return new CalcInput.Cells(StudyCells.single(arms), everySdGiven);
     }
 

@@ -7,6 +7,8 @@ import dev.bracket.bands.BandSettings;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.InstrumentAssumption;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 
 import java.io.IOException;
@@ -31,7 +33,8 @@ import java.util.regex.Pattern;
  * one is reported with file, line and column; see {@link #parse}. Key names:
  *
  * <pre>
- * studies:            list of {id, outcome: {min, max, better}, assume: [[ids...], "id,id", ...]}
+ * studies:            list of {id, outcome: {min, max, better, kind: bounded|binary},
+ *                     instrument: mean-independent|independent, assume: [[ids...], "id,id", ...]}
  * inputs:             list of {topic, fields: {study, unit, treated, outcome, time, stratum, instrument, id}}
  * topics:             {rejected, partials, bounds, partitions, replication}
  * windows:            list of {name, kind: tumbling|sliding, size, step}; "cumulative" is always kept
@@ -201,13 +204,13 @@ public record BracketConfig(
         List<StudyConfig> out = new ArrayList<>();
         Set<String> seen = new HashSet<>();
         for (ConfigNode s : items) {
-            s.onlyKeys(Set.of("id", "outcome", "assume", "alerts"));
+            s.onlyKeys(Set.of("id", "outcome", "instrument", "assume", "alerts"));
             ConfigNode idNode = s.require("id");
             String id = idNode.text();
             if (!seen.add(id)) {
                 throw idNode.fail("repeats the study id '" + id + "'; ids must be unique");
             }
-            ConfigNode outcome = s.require("outcome").onlyKeys(Set.of("min", "max", "better"));
+            ConfigNode outcome = s.require("outcome").onlyKeys(Set.of("min", "max", "better", "kind"));
             double min = outcome.require("min").number();
             double max = outcome.require("max").number();
             if (!(min < max)) {
@@ -219,10 +222,31 @@ public record BracketConfig(
             } catch (IllegalArgumentException e) {
                 throw outcome.get("better").fail(e.getMessage());
             }
-            out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume")),
-                    AlertSettings.study(s.get("alerts"))));
+            OutcomeKind kind;
+            try {
+                kind = OutcomeKind.parse(outcome.get("kind").text("bounded"));
+            } catch (IllegalArgumentException e) {
+                throw outcome.get("kind").fail(e.getMessage());
+            }
+            InstrumentAssumption instrument = instrument(s.get("instrument"), kind);
+            List<AssumptionSet> sets = assumptions(s.get("assume")).stream().map(set -> set.withInstrument(instrument)).toList();
+            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertSettings.study(s.get("alerts"))));
         }
         return out;
+    }
+
+    private static InstrumentAssumption instrument(ConfigNode node, OutcomeKind kind) {
+        InstrumentAssumption instrument;
+        try {
+            instrument = InstrumentAssumption.parse(node.text(InstrumentAssumption.MEAN_INDEPENDENT.id()));
+        } catch (IllegalArgumentException e) {
+            throw node.fail(e.getMessage());
+        }
+        if (!instrument.supports(kind)) {
+            throw node.fail("independent needs a binary outcome: add kind: binary to the study's outcome (every outcome equal to min or max), "
+                    + "or use mean-independent");
+        }
+        return instrument;
     }
 
     private static List<AssumptionSet> assumptions(ConfigNode node) {

@@ -31,7 +31,7 @@ public record StudyReport(OutcomeRange range, ObservedArms pooled, StudyCells ce
             StratifiedBounds.Result r = StratifiedBounds.interval(cells, range, set);
             Map<String, ?> strata = r.perStratum();
             boolean stratified = strata.size() > 1 || !strata.containsKey(StudyCells.NONE);
-            return new BoundRow(set, r.overall(), stratified ? r.perStratum() : Map.of(), bands.bands(cells, range, set));
+            return new BoundRow(set, r.overall(), stratified ? r.perStratum() : Map.of(), bands.bands(cells, range, set, r.overall()));
         }).toList();
         return new StudyReport(range, cells.pooled(), cells, rows);
     }

@@ -18,7 +18,8 @@ import java.util.Map;
 /**
  * Reads one JSON event and checks it:
  * the fields named by the {@link FieldMapping} must be present with the right types, the study
- * must be configured and the outcome must lie in that study's declared range. Fields the
+ * must be configured and the outcome must lie in that study's declared range (and be one of its
+ * two ends when the study declares a binary outcome). Fields the
  * mapping does not name are skipped. Never throws on bad input: the returned event carries a
  * {@link RejectReason} and a one-line detail instead.
  *
@@ -188,6 +189,10 @@ public final class EventParser {
         if (!range.contains(e.outcome)) {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "
                     + range.max() + "] declared for study '" + study.id() + "'");
+        }
+        if (!range.admits(e.outcome)) {
+            return e.reject(RejectReason.NOT_BINARY, "outcome " + e.outcome + " is neither " + range.min() + " nor " + range.max()
+                    + ", the two values of the binary outcome declared for study '" + study.id() + "'");
         }
         if (e.time == Long.MIN_VALUE) {
             e.time = recordTime;

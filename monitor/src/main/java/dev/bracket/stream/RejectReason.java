@@ -11,7 +11,9 @@ public enum RejectReason {
     MISSING_FIELD("missing-field"),
     WRONG_TYPE("wrong-type"),
     UNKNOWN_STUDY("unknown-study"),
-    OUT_OF_RANGE("out-of-range");
+    OUT_OF_RANGE("out-of-range"),
+    /** Inside the range of a study declaring a binary outcome, but neither of its two ends. */
+    NOT_BINARY("not-binary");
 
     private final String id;
 
