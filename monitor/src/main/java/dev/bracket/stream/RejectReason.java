@@ -11,7 +11,13 @@ public enum RejectReason {
     MISSING_FIELD("missing-field"),
     WRONG_TYPE("wrong-type"),
     UNKNOWN_STUDY("unknown-study"),
-    OUT_OF_RANGE("out-of-range");
+    OUT_OF_RANGE("out-of-range"),
+    /** A time outside years 1 to 9999, or a number too large for epoch milliseconds. */
+    TIME_UNREPRESENTABLE("time-unrepresentable"),
+    /** A time later than {@code max-clock-skew} ahead of the record timestamp or the clock. */
+    TIME_TOO_FAR_AHEAD("time-too-far-ahead"),
+    /** Reading the event failed in a way no other reason describes; the detail names the failure. */
+    UNREADABLE("unreadable");
 
     private final String id;
 

@@ -11,6 +11,7 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 
 import java.nio.charset.StandardCharsets;
+import java.time.Duration;
 import java.util.List;
 
 import static org.assertj.core.api.Assertions.assertThat;
@@ -21,7 +22,7 @@ class EventParserTest {
             new StudyConfig("checkout", new OutcomeRange(0, 1, Direction.LOWER), AssumptionSet.eachSingle()));
     private static final long RECORD_TIME = 1_700_000_000_000L;
 
-    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 512);
+    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 512, Duration.ofHours(1));
 
     private ParsedEvent parse(String json) {
         return parser.parse(json.getBytes(StandardCharsets.UTF_8), RECORD_TIME);
@@ -67,7 +68,7 @@ class EventParserTest {
     @DisplayName("field names follow the topic's mapping")
     void followsFieldMapping() {
         FieldMapping m = new FieldMapping("experiment", "host", "canary", "error_rate", "ts", "region", "wave", "event_id");
-        EventParser mapped = new EventParser(STUDIES, m, 512);
+        EventParser mapped = new EventParser(STUDIES, m, 512, Duration.ofHours(1));
         ParsedEvent e = mapped.parse("{\"experiment\":\"checkout\",\"host\":\"h\",\"canary\":true,\"error_rate\":0.5,\"region\":\"us\"}"
                 .getBytes(StandardCharsets.UTF_8), RECORD_TIME);
         assertThat(e.isUsable()).isTrue();

@@ -29,7 +29,7 @@ class PartitionStateTest {
     private static final WindowSpec THREE_MINUTES = new WindowSpec("three", WindowSpec.Kind.SLIDING, Duration.ofMinutes(3), Duration.ofMinutes(1));
     private static final long GRACE = 10_000;
 
-    private final EventParser parser = new EventParser(List.of(STUDY), FieldMapping.DEFAULT, 4096);
+    private final EventParser parser = new EventParser(List.of(STUDY), FieldMapping.DEFAULT, 4096, Duration.ofHours(1));
     private final List<String> late = new ArrayList<>();
 
     private PartitionState state(int partition) {
