@@ -30,9 +30,9 @@ import java.util.stream.Collectors;
  *
  * <p>A supervisor thread watches the others once a second. A member or the updater that stops
  * for any reason other than {@link #close} is a failure: the numbers would silently go stale,
- * so it is reported once to the {@link #onFailure} handler (the commands exit non-zero). While a
- * member has no partitions from its group it logs every ten seconds whether Kafka is unreachable
- * or the group is still forming, and for how long.
+ * so it is reported once to the {@link #onFailure} handler (the commands exit non-zero). Every ten
+ * seconds it asks whether Kafka answers and logs one line while it does not, or while a member
+ * has waited for its partitions from the group, saying for how long.
  */
 public final class Monitor implements AutoCloseable {
 
@@ -52,7 +52,8 @@ public final class Monitor implements AutoCloseable {
     private final AtomicBoolean closed = new AtomicBoolean();
     private final AtomicBoolean failed = new AtomicBoolean();
     private volatile Consumer<String> onFailure = why -> LOG.error("{}", why);
-    private long lastWaitLogMillis;
+    private long lastWaitCheckMillis = System.currentTimeMillis();
+    private long unreachableSinceMillis;
 
     private Monitor(BracketConfig config, List<StreamAggregator> aggregators, BoundUpdater updater, StreamMetrics metrics,
                     AlertService alerts, BrokerProbe probe) {
@@ -163,9 +164,27 @@ public final class Monitor implements AutoCloseable {
         }
     }
 
-    /** One line every ten seconds while a member has no assignment: Kafka unreachable, or the group still forming. */
+    /**
+     * Every ten seconds: asks whether Kafka answers, and logs one line while it does not, or while
+     * a member has waited ten seconds or more for its partitions (the group is forming).
+     */
     private void logWaiting() {
         long now = System.currentTimeMillis();
+        if (now - lastWaitCheckMillis < WAIT_LOG_MILLIS) {
+            return;
+        }
+        lastWaitCheckMillis = now;
+        if (!probe.reachable()) {
+            unreachableSinceMillis = unreachableSinceMillis == 0 ? now : unreachableSinceMillis;
+            LOG.warn("bracket: Kafka at {} unreachable for {} s; still retrying", config.kafka().get(BracketConfig.BOOTSTRAP_SERVERS),
+                    (now - unreachableSinceMillis) / 1000);
+            return;
+        }
+        if (unreachableSinceMillis != 0) {
+            LOG.info("bracket: Kafka at {} reachable again after {} s", config.kafka().get(BracketConfig.BOOTSTRAP_SERVERS),
+                    (now - unreachableSinceMillis) / 1000);
+            unreachableSinceMillis = 0;
+        }
         long since = Long.MAX_VALUE;
         for (StreamAggregator a : aggregators) {
             StreamAggregator.Status s = a.status();
@@ -173,16 +192,9 @@ public final class Monitor implements AutoCloseable {
                 since = Math.min(since, s.unassignedSince());
             }
         }
-        if (since == Long.MAX_VALUE || now - since < WAIT_LOG_MILLIS || now - lastWaitLogMillis < WAIT_LOG_MILLIS) {
-            return;
-        }
-        lastWaitLogMillis = now;
-        long seconds = (now - since) / 1000;
-        if (probe.reachable()) {
-            LOG.warn("bracket: waiting for consumer group '{}' to assign input partitions for {} s (Kafka is reachable; a rebalance is in progress)",
-                    config.group(), seconds);
-        } else {
-            LOG.warn("bracket: Kafka at {} unreachable for {} s; still retrying", config.kafka().get(BracketConfig.BOOTSTRAP_SERVERS), seconds);
+        if (since != Long.MAX_VALUE && now - since >= WAIT_LOG_MILLIS) {
+            LOG.warn("bracket: waiting {} s for consumer group '{}' to assign input partitions (Kafka is reachable; the group is forming)",
+                    (now - since) / 1000, config.group());
         }
     }
 
