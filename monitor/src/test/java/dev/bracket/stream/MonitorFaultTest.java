@@ -53,7 +53,7 @@ import static org.awaitility.Awaitility.await;
  *
  * <p>Checked: every good event is counted exactly once; accepted plus rejected equals produced,
  * with no record on the rejected topic twice; each hostile record has its expected outcome;
- * the monitor never stops by itself (exit codes are only the kills' 137 and 0 at the end);
+ * the monitor never stops by itself (exit codes are only the kills' 137, and 143 for the final SIGTERM);
  * {@code /health/live} answers ok throughout, {@code /health/ready} reports the broker as failing
  * while it is down and is ready again after every restart.
  */
@@ -127,8 +127,10 @@ class MonitorFaultTest {
         out.add(h("content after the object", "{\"study\":\"hz\"," + ok + "} {}", "bad-json"));
         out.add(h("single quotes", "{'study':'hz','unit':1,'treated':true,'outcome':0.5}", "bad-json"));
         out.add(h("control character in a string", "{\"study\":\"h\u0001z\"," + ok + "}", "bad-json"));
-        out.add(new Hostile("no time, record timestamp two hours ahead", utf8("{\"study\":\"hz\"," + ok + "}"),
-                System.currentTimeMillis() + 7_200_000L, "time-too-far-ahead"));
+        // (A record timestamp far ahead never arrives: brokers refuse it, log.message.timestamp.after.max.ms.)
+        long now = System.currentTimeMillis();
+        out.add(new Hostile("time two days after its record timestamp", utf8("{\"study\":\"hz\"," + ok + ",\"time\":" + now + "}"),
+                now - 2 * 86_400_000L, "time-too-far-ahead"));
         // Hostile in form, usable in content: these count in study hz.
         out.add(h("negative zero outcome", "{\"study\":\"hz\",\"unit\":1,\"treated\":true,\"outcome\":-0.0}", ACCEPTED));
         out.add(h("unicode escapes in the study", "{\"study\":\"h\\u007a\"," + ok + "}", ACCEPTED));
@@ -155,7 +157,8 @@ class MonitorFaultTest {
                     default -> Arrays.copyOf(b, at);
                 };
             }
-            if (!new String(b, StandardCharsets.ISO_8859_1).contains("s1")) { // only the good events belong to s1
+            String text = new String(b, StandardCharsets.ISO_8859_1);
+            if (!text.contains("s1") && !text.contains("hz")) { // s1 holds only the good events, hz only the hostile ones
                 out.add(b);
             }
         }
@@ -280,9 +283,9 @@ class MonitorFaultTest {
             }
             long hostileAccepted = hostile.stream().filter(x -> x.expected().equals(ACCEPTED)).count();
             assertThat(units(docs.get("hz/cumulative"))).isEqualTo(hostileAccepted);
-            System.out.printf("fault test: produced %d (good %d, hostile %d, fuzzed %d); accepted %d; rejected %d (%d distinct reasons)%n",
-                    produced, GOOD, hostile.size(), fuzzed.size(), GOOD + acceptedOther, rejected.size(),
-                    new HashSet<>(reasonById.values()).size());
+            System.out.printf("fault test: produced %d (good %d, hostile %d, fuzzed %d); accepted %d; rejected %d (%d distinct reasons);"
+                    + " %d health samples%n", produced, GOOD, hostile.size(), fuzzed.size(), GOOD + acceptedOther, rejected.size(),
+                    new HashSet<>(reasonById.values()).size(), samples.size());
 
             // Readiness throughout: live always; not ready while the broker was down; ready now.
             phase.set("end");
@@ -296,9 +299,10 @@ class MonitorFaultTest {
             for (int i = 0; i < monitors.size(); i++) {
                 assertThat(Files.readString(dir.resolve("monitor-" + i + ".log"))).doesNotContain("of the monitor stopped");
             }
-            monitor.destroy(); // SIGTERM: the last one stops by itself
+            monitor.destroy(); // SIGTERM: the last one stops after a final commit
             assertThat(monitor.waitFor(60, TimeUnit.SECONDS)).isTrue();
-            assertThat(monitor.exitValue()).isZero();
+            assertThat(monitor.exitValue()).isEqualTo(143); // 128 + SIGTERM, after the shutdown hook ran
+            assertThat(Files.readString(dir.resolve("monitor-" + (monitors.size() - 1) + ".log"))).contains("stopped after a final commit");
         } finally {
             producing.interrupt();
             watcher.interrupt();
@@ -367,7 +371,7 @@ class MonitorFaultTest {
                     }
                 });
                 if (n % 500 == 0) {
-                    long due = start + n * 500_000L; // 2,000 records per second: the stream spans the kills and the bounce
+                    long due = start + n * 300_000L; // 3,333 records per second: the stream spans the kills and the bounce
                     long wait = due - System.nanoTime();
                     if (wait > 0) {
                         TimeUnit.NANOSECONDS.sleep(wait);
