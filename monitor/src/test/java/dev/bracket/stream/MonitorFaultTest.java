@@ -3,16 +3,12 @@ package dev.bracket.stream;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.config.BracketConfig;
-import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
-import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
-import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.header.Header;
 import org.apache.kafka.common.header.internals.RecordHeaders;
-import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
@@ -258,7 +254,7 @@ class MonitorFaultTest {
             });
             Map<String, JsonNode> docs = latestDocuments(bootstrap);
             long acceptedOther = units(docs.get("hz/cumulative")) + units(docs.get("fz/cumulative"));
-            List<ConsumerRecord<byte[], byte[]>> rejected = readAll(bootstrap, "fault-rejected");
+            List<ConsumerRecord<byte[], byte[]>> rejected = KafkaTestSupport.readAll(bootstrap, "fault-rejected");
             Map<String, String> reasonById = new TreeMap<>();
             Set<String> copies = new HashSet<>();
             int truncated = 0;
@@ -317,7 +313,7 @@ class MonitorFaultTest {
     /** The newest bound document per key. */
     private static Map<String, JsonNode> latestDocuments(String bootstrap) throws IOException {
         Map<String, JsonNode> out = new TreeMap<>();
-        for (ConsumerRecord<byte[], byte[]> r : readAll(bootstrap, "fault-bounds")) {
+        for (ConsumerRecord<byte[], byte[]> r : KafkaTestSupport.readAll(bootstrap, "fault-bounds")) {
             out.put(new String(r.key(), StandardCharsets.UTF_8), JSON.readTree(r.value()));
         }
         return out;
@@ -474,26 +470,5 @@ class MonitorFaultTest {
     private static String header(ConsumerRecord<byte[], byte[]> r, String name) {
         Header h = r.headers().lastHeader(name);
         return h == null ? null : new String(h.value(), StandardCharsets.UTF_8);
-    }
-
-    /** Every committed record of a topic. */
-    private static List<ConsumerRecord<byte[], byte[]>> readAll(String bootstrap, String topic) {
-        try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of(
-                ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrap,
-                ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed",
-                ConsumerConfig.MAX_PARTITION_FETCH_BYTES_CONFIG, 4 << 20,
-                ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false),
-                new ByteArrayDeserializer(), new ByteArrayDeserializer())) {
-            List<TopicPartition> tps = c.partitionsFor(topic).stream().map(p -> new TopicPartition(topic, p.partition())).toList();
-            c.assign(tps);
-            c.seekToBeginning(tps);
-            Map<TopicPartition, Long> end = c.endOffsets(tps);
-            List<ConsumerRecord<byte[], byte[]>> out = new ArrayList<>();
-            long deadline = System.nanoTime() + Duration.ofSeconds(60).toNanos();
-            while (tps.stream().anyMatch(tp -> c.position(tp) < end.get(tp)) && System.nanoTime() < deadline) {
-                c.poll(Duration.ofMillis(200)).forEach(out::add);
-            }
-            return out;
-        }
     }
 }
