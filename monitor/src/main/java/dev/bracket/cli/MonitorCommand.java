@@ -95,7 +95,7 @@ public final class MonitorCommand implements Callable<Integer> {
             if (ownBroker != null) {
                 ownBroker.close();
             }
-            out.println("stopped after a final commit");
+            out.println(monitor.failed() ? "stopped after a failure; nothing was committed after it" : "stopped after a final commit");
             out.flush();
             stopped.countDown();
         }, "bracket-shutdown"));

@@ -122,6 +122,11 @@ public final class Monitor implements AutoCloseable {
         this.onFailure = handler;
     }
 
+    /** Whether a thread of this monitor stopped on its own (the failure was reported). */
+    public boolean failed() {
+        return failed.get();
+    }
+
     public StreamMetrics metrics() {
         return metrics;
     }
