@@ -47,7 +47,7 @@ public final class HotPathBenchmark {
         for (int i = 0; i < events; i++) {
             values[i] = gen.next(i, key);
         }
-        EventParser parser = new EventParser(config.studies(), config.inputs().get(0).fields(), config.maxEventBytes());
+        EventParser parser = EventParser.forInput(config, config.inputs().get(0).fields());
         for (int r = 1; r <= rounds; r++) {
             long t0 = System.nanoTime();
             long tokens = 0;

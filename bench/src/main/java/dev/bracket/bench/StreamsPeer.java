@@ -66,7 +66,7 @@ final class StreamsPeer implements AutoCloseable {
         p.put(StreamsConfig.consumerPrefix("auto.offset.reset"), "earliest");
 
         ThreadLocal<EventParser> parsers = ThreadLocal.withInitial(() ->
-                new EventParser(config.studies(), config.inputs().get(0).fields(), config.maxEventBytes()));
+                EventParser.forInput(config, config.inputs().get(0).fields()));
         StreamsBuilder builder = new StreamsBuilder();
         builder.stream(inputTopic, Consumed.with(Serdes.ByteArray(), Serdes.ByteArray()))
                 .flatMap((key, value) -> {

@@ -122,7 +122,9 @@ public final class DemoCommand implements Callable<Integer> {
         BracketConfig config = BracketConfig.parse("bracket demo", configYaml()).withBootstrapServers(broker.bootstrapServers());
         try (Monitor monitor = Monitor.start(config, web.registry(), latest);
              Producer<String, String> kafka = DemoProducer.kafkaProducer(broker.bootstrapServers())) {
+            MonitorCommand.exitWhenFailed(monitor, spec.commandLine().getErr());
             web.showAlerts(monitor.alerts()::apiView);
+            web.showHealth(monitor::liveness, monitor::readiness);
             DemoProducer sender = new DemoProducer(kafka, TOPIC, rate, Clock.systemUTC());
             Thread producerThread = new Thread(() -> sender.run(new ScenarioFeed(scenario, STUDY),
                     new DemoProducer.Limits(0, duration), stop::get), "bracket-demo-producer");

@@ -72,8 +72,10 @@ public final class MonitorCommand implements Callable<Integer> {
             out.println("Kafka broker listening at " + broker.bootstrapServers() + " (use it as bootstrap.servers)");
         }
         Monitor monitor = Monitor.start(config, registry, latest);
+        exitWhenFailed(monitor, spec.commandLine().getErr());
         if (web != null) {
             web.showAlerts(monitor.alerts()::apiView);
+            web.showHealth(monitor::liveness, monitor::readiness);
         }
         out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
                 config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
@@ -93,7 +95,7 @@ public final class MonitorCommand implements Callable<Integer> {
             if (ownBroker != null) {
                 ownBroker.close();
             }
-            out.println("stopped after a final commit");
+            out.println(monitor.failed() ? "stopped after a failure; nothing was committed after it" : "stopped after a final commit");
             out.flush();
             stopped.countDown();
         }, "bracket-shutdown"));
@@ -104,6 +106,18 @@ public final class MonitorCommand implements Callable<Integer> {
         }
         stopped.await(60, TimeUnit.SECONDS);
         return 0;
+    }
+
+    /**
+     * A monitor whose aggregation or updater thread stopped would serve stale numbers as if
+     * healthy: print why and exit with code 1 (the shutdown hooks still close what they can).
+     */
+    static void exitWhenFailed(Monitor monitor, PrintWriter err) {
+        monitor.onFailure(why -> {
+            err.println("bracket: " + why + "; exiting with code 1");
+            err.flush();
+            System.exit(1);
+        });
     }
 
     static String progressLine(Monitor monitor, LatestReports latest) {

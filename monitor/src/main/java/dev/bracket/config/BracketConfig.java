@@ -45,6 +45,7 @@ import java.util.regex.Pattern;
  * publish-interval:   least time between two published reports of one study
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
+ * max-clock-skew:     event times further ahead of the record timestamp or the clock are rejected
  * threads:            aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
@@ -64,6 +65,7 @@ public record BracketConfig(
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
+        Duration maxClockSkew,
         int threads,
         String group,
         String instance,
@@ -78,7 +80,7 @@ public record BracketConfig(
     private static final int MAX_PARTITIONS = 10_000;
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew", "threads", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -138,6 +140,7 @@ public record BracketConfig(
         if (maxBytes > 16 * 1024 * 1024) {
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
         }
+        Duration skew = positive(root.get("max-clock-skew"), Duration.ofHours(1));
         Duration commit = positive(root.get("commit-interval"), Duration.ofSeconds(1));
         Duration publish = positive(root.get("publish-interval"), Duration.ofMillis(500));
         Duration progress = positive(root.get("progress-interval"), Duration.ofSeconds(10));
@@ -155,7 +158,7 @@ public record BracketConfig(
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes, (int) threads,
+                bands, commit, publish, progress, (int) maxBytes, skew, (int) threads,
                 name(root.get("group"), "bracket"),
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
@@ -173,7 +176,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, maxClockSkew, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */

@@ -56,6 +56,8 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final Consumer<PublishedReport> listener;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
+    /** Wall-clock time of the last published report; 0 before the first. */
+    private volatile long lastReportMillis;
 
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock) {
         this(clients, metrics, latest, partialsPartitions, clock, report -> { });
@@ -95,7 +97,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                     for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(100))) {
                         try {
                             PartialsCodec.decode(r.key(), r.value(), merged);
-                        } catch (IllegalArgumentException e) {
+                        } catch (RuntimeException e) { // a damaged record must not stop the reports
                             LOG.warn("skipping record {}-{}@{} of the partials topic: {}", r.topic(), r.partition(), r.offset(), e.getMessage());
                         }
                     }
@@ -161,6 +163,12 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             }
         }
         metrics.published(study.id());
+        lastReportMillis = System.currentTimeMillis();
+    }
+
+    /** When a report was last published (epoch millis), 0 before the first; safe from any thread. */
+    public long lastReportMillis() {
+        return lastReportMillis;
     }
 
     /** Stops the loop and waits for it. */

@@ -5,12 +5,15 @@ import com.fasterxml.jackson.core.JsonParser;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.core.JsonToken;
 import com.fasterxml.jackson.core.StreamReadFeature;
+import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 
 import java.io.IOException;
+import java.time.Duration;
+import java.time.Instant;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
@@ -19,12 +22,13 @@ import java.util.Map;
  * Reads one JSON event and checks it:
  * the fields named by the {@link FieldMapping} must be present with the right types, the study
  * must be configured and the outcome must lie in that study's declared range (and be one of its
- * two ends when the study declares a binary outcome). Fields the
- * mapping does not name are skipped. Never throws on bad input: the returned event carries a
- * {@link RejectReason} and a one-line detail instead.
+ * two ends when the study declares a binary outcome). Fields the mapping does not name are
+ * skipped. Never throws: the returned event carries a {@link RejectReason} and a one-line detail
+ * instead, so no record can stop the monitor.
  *
  * <p>Accepted forms: {@code treated} true/false or 1/0; {@code outcome} any JSON number;
- * {@code time} epoch milliseconds or an ISO-8601 instant with offset (absent: the record
+ * {@code time} epoch milliseconds or an ISO-8601 instant with offset, in years 1 to 9999 and at
+ * most {@code max-clock-skew} ahead of the record timestamp and the clock (absent: the record
  * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
  * {@code unit} and {@code id} strings or numbers. One parser per thread.
  *
@@ -41,13 +45,18 @@ public final class EventParser {
     private final StudyConfig[] studies;
     private final Map<String, Integer> studyIndex = new HashMap<>();
     private final int maxBytes;
+    private final long skewMillis;
     private final ParsedEvent event = new ParsedEvent();
     private final TextCache texts = new TextCache();
     private final FlatEventScanner scanner;
 
-    public EventParser(List<StudyConfig> studies, FieldMapping fields, int maxBytes) {
+    /**
+     * @param maxClockSkew how far an event time may lie ahead of the record timestamp and the clock
+     */
+    public EventParser(List<StudyConfig> studies, FieldMapping fields, int maxBytes, Duration maxClockSkew) {
         this.fields = fields;
         this.maxBytes = maxBytes;
+        this.skewMillis = saturatedMillis(maxClockSkew);
         this.scanner = new FlatEventScanner(fields, texts);
         this.studies = studies.toArray(new StudyConfig[0]);
         for (int i = 0; i < this.studies.length; i++) {
@@ -55,17 +64,44 @@ public final class EventParser {
         }
     }
 
+    /** The parser for one input topic's events under this configuration. */
+    public static EventParser forInput(BracketConfig config, FieldMapping fields) {
+        return new EventParser(config.studies(), fields, config.maxEventBytes(), config.maxClockSkew());
+    }
+
     /**
-     * Parses {@code bytes}. The result is this parser's reused holder: read it before the next call.
+     * Parses {@code bytes} where the record's own time is the only clock (files: the replay's start time).
+     * The result is this parser's reused holder: read it before the next call.
      *
      * @param recordTime the time to use when the event has no time field (epoch millis)
      */
     public ParsedEvent parse(byte[] bytes, long recordTime) {
-        return parse(bytes, recordTime, true);
+        return parse(bytes, recordTime, recordTime);
+    }
+
+    /**
+     * Parses {@code bytes}. Never throws: any failure rejects the event with a reason. The result is
+     * this parser's reused holder: read it before the next call.
+     *
+     * @param recordTime the time to use when the event has no time field (epoch millis; negative: none)
+     * @param now        the wall clock (epoch millis); event times more than max-clock-skew ahead of
+     *                   it or of the record time are rejected
+     */
+    public ParsedEvent parse(byte[] bytes, long recordTime, long now) {
+        return parse(bytes, recordTime, now, true);
     }
 
     /** @param fast whether to try the fast path first (the tests compare both paths) */
-    ParsedEvent parse(byte[] bytes, long recordTime, boolean fast) {
+    ParsedEvent parse(byte[] bytes, long recordTime, long now, boolean fast) {
+        try {
+            return read(bytes, recordTime, now, fast);
+        } catch (RuntimeException ex) {
+            event.reset();
+            return event.reject(RejectReason.UNREADABLE, "reading the event failed (" + firstLine(ex.toString()) + ")");
+        }
+    }
+
+    private ParsedEvent read(byte[] bytes, long recordTime, long now, boolean fast) {
         ParsedEvent e = event;
         e.reset();
         if (bytes == null || bytes.length == 0) {
@@ -74,20 +110,22 @@ public final class EventParser {
         if (bytes.length > maxBytes) {
             return e.reject(RejectReason.TOO_LARGE, bytes.length + " bytes exceed the limit of " + maxBytes + " (max-event-bytes)");
         }
+        long clock = recordTime >= 0 ? Math.min(recordTime, now) : now;
+        long latest = clock > Long.MAX_VALUE - skewMillis ? Long.MAX_VALUE : clock + skewMillis;
         if (fast && scanner.scan(bytes, e)) {
-            return complete(e, scanner.study, scanner.hasUnit, scanner.hasTreated, scanner.hasOutcome, recordTime);
+            return complete(e, scanner.study, scanner.hasUnit, scanner.hasTreated, scanner.hasOutcome, recordTime, latest);
         }
         e.reset();
         try (JsonParser p = JSON.createParser(bytes)) {
-            return read(p, e, recordTime);
+            return read(p, e, recordTime, latest);
         } catch (JsonProcessingException ex) {
             return e.reject(RejectReason.BAD_JSON, "not valid JSON: " + firstLine(ex.getOriginalMessage()));
-        } catch (IOException | RuntimeException ex) {
+        } catch (IOException ex) {
             return e.reject(RejectReason.BAD_JSON, "not readable as JSON: " + firstLine(String.valueOf(ex.getMessage())));
         }
     }
 
-    private ParsedEvent read(JsonParser p, ParsedEvent e, long recordTime) throws IOException {
+    private ParsedEvent read(JsonParser p, ParsedEvent e, long recordTime, long latest) throws IOException {
         if (p.nextToken() != JsonToken.START_OBJECT) {
             return e.reject(RejectReason.BAD_JSON, "an event must be a JSON object");
         }
@@ -129,9 +167,15 @@ public final class EventParser {
                 hasOutcome = true;
             } else if (name.equals(fields.time())) {
                 if (t == JsonToken.VALUE_NUMBER_INT) {
+                    if (p.getNumberType() == JsonParser.NumberType.BIG_INTEGER || !IsoTime.representable(p.getLongValue())) {
+                        return unrepresentable(e, p.getText());
+                    }
                     e.time = p.getLongValue();
                 } else if (t == JsonToken.VALUE_STRING) {
                     long parsed = IsoTime.parseMillis(p.getTextCharacters(), p.getTextOffset(), p.getTextLength());
+                    if (parsed == IsoTime.UNREPRESENTABLE) {
+                        return unrepresentable(e, p.getText());
+                    }
                     if (parsed == IsoTime.INVALID) {
                         return e.reject(RejectReason.WRONG_TYPE, "field '" + fields.time()
                                 + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z, was '" + clip(p.getText()) + "'");
@@ -161,11 +205,15 @@ public final class EventParser {
         if (p.nextToken() != null) {
             return e.reject(RejectReason.BAD_JSON, "unexpected content after the event's closing brace");
         }
-        return complete(e, studyId, hasUnit, hasTreated, hasOutcome, recordTime);
+        return complete(e, studyId, hasUnit, hasTreated, hasOutcome, recordTime, latest);
     }
 
-    /** Checks what was read: required fields present, study configured, outcome in its range; fills the defaults. */
-    private ParsedEvent complete(ParsedEvent e, String studyId, boolean hasUnit, boolean hasTreated, boolean hasOutcome, long recordTime) {
+    /**
+     * Checks what was read: required fields present, study configured, outcome in its range, time
+     * not after {@code latest}; fills the defaults.
+     */
+    private ParsedEvent complete(ParsedEvent e, String studyId, boolean hasUnit, boolean hasTreated, boolean hasOutcome,
+                                 long recordTime, long latest) {
         if (studyId == null) {
             return missing(e, fields.study());
         }
@@ -197,6 +245,12 @@ public final class EventParser {
         if (e.time == Long.MIN_VALUE) {
             e.time = recordTime;
         }
+        if (e.time > latest) {
+            // Such a time would become the partition's stream time and close every real window.
+            return e.reject(RejectReason.TIME_TOO_FAR_AHEAD, "time " + Instant.ofEpochMilli(e.time) + " lies more than "
+                    + skewMillis / 1000 + " s (max-clock-skew) ahead of the record timestamp or the clock ("
+                    + Instant.ofEpochMilli(latest - skewMillis) + ")");
+        }
         if (e.stratum == null) {
             e.stratum = StudyCells.NONE;
         }
@@ -208,6 +262,19 @@ public final class EventParser {
 
     private String text(JsonParser p) throws IOException {
         return texts.get(p.getTextCharacters(), p.getTextOffset(), p.getTextLength());
+    }
+
+    private ParsedEvent unrepresentable(ParsedEvent e, String text) {
+        return e.reject(RejectReason.TIME_UNREPRESENTABLE, "field '" + fields.time() + "' must lie in years 1 to 9999, was '"
+                + clip(text) + "'");
+    }
+
+    private static long saturatedMillis(Duration d) {
+        try {
+            return d.toMillis();
+        } catch (ArithmeticException e) {
+            return Long.MAX_VALUE;
+        }
     }
 
     private static ParsedEvent missing(ParsedEvent e, String field) {

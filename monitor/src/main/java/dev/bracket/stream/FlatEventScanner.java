@@ -163,7 +163,7 @@ final class FlatEventScanner {
                 hasOutcome = true;
             }
             case TIME -> {
-                if (kind == INT) {
+                if (kind == INT && IsoTime.representable(longValue)) {
                     e.time = longValue;
                 } else if (kind == STRING && valueEnd - valueStart - 2 <= chars.length) {
                     int len = valueEnd - valueStart - 2;
@@ -171,8 +171,8 @@ final class FlatEventScanner {
                         chars[k] = (char) b[valueStart + 1 + k];
                     }
                     long t = IsoTime.parseMillis(chars, 0, len);
-                    if (t == IsoTime.INVALID) {
-                        return false;
+                    if (t == IsoTime.INVALID || t == IsoTime.UNREPRESENTABLE) {
+                        return false; // Jackson's path names the problem
                     }
                     e.time = t;
                 } else {

@@ -5,7 +5,8 @@ import java.time.OffsetDateTime;
 import java.time.format.DateTimeParseException;
 
 /**
- * Reads ISO-8601 date-times with an offset into epoch milliseconds. The common shape
+ * Reads ISO-8601 date-times with an offset into epoch milliseconds, for years 1 to 9999 only
+ * (the range of ISO-8601's four-digit years; further out, window arithmetic could overflow). The common shape
  * {@code YYYY-MM-DDTHH:MM:SS[.fraction](Z|+HH:MM|-HH:MM)} is read straight from the parser's
  * characters (java.time's formatter costs about a microsecond per event, more than the rest of
  * the parse); anything else goes to {@link OffsetDateTime#parse}.
@@ -14,13 +15,26 @@ final class IsoTime {
 
     /** Returned when the text is not a date-time with an offset. */
     static final long INVALID = Long.MIN_VALUE;
+    /** Returned for a date-time outside {@link #FIRST_MILLIS} to {@link #LAST_MILLIS}. */
+    static final long UNREPRESENTABLE = Long.MIN_VALUE + 1;
+    /** 0001-01-01T00:00:00Z. */
+    static final long FIRST_MILLIS = -62_135_596_800_000L;
+    /** 9999-12-31T23:59:59.999Z. */
+    static final long LAST_MILLIS = 253_402_300_799_999L;
 
     private IsoTime() {
     }
 
+    /** @return epoch milliseconds, {@link #INVALID} or {@link #UNREPRESENTABLE}; never throws */
     static long parseMillis(char[] c, int off, int len) {
         long fast = fast(c, off, len);
-        return fast != INVALID ? fast : slow(new String(c, off, len));
+        long millis = fast != INVALID ? fast : slow(new String(c, off, len));
+        return millis == INVALID || representable(millis) ? millis : UNREPRESENTABLE;
+    }
+
+    /** Whether epoch milliseconds lie in years 1 to 9999. */
+    static boolean representable(long millis) {
+        return millis >= FIRST_MILLIS && millis <= LAST_MILLIS;
     }
 
     private static long fast(char[] c, int o, int len) {
@@ -71,15 +85,19 @@ final class IsoTime {
     }
 
     private static long slow(String text) {
+        Instant instant;
         try {
-            return Instant.parse(text).toEpochMilli();
+            instant = Instant.parse(text);
         } catch (DateTimeParseException e) {
             try {
-                return OffsetDateTime.parse(text).toInstant().toEpochMilli();
+                instant = OffsetDateTime.parse(text).toInstant();
             } catch (DateTimeParseException e2) {
                 return INVALID;
             }
         }
+        // Instant reaches year 1,000,000,000, far beyond a long of milliseconds.
+        return instant.isBefore(Instant.ofEpochMilli(FIRST_MILLIS)) || instant.isAfter(Instant.ofEpochMilli(LAST_MILLIS))
+                ? UNREPRESENTABLE : instant.toEpochMilli();
     }
 
     private static int digits(char[] c, int o, int n) {

@@ -17,8 +17,10 @@ import java.util.Map;
  * The monitor's computation over files instead of topics: the same {@link EventParser},
  * {@link PartitionState} and {@link MergedPartials} as the live path, with each input (file or
  * standard input) standing for one source partition read in order. Events without a time field
- * get the time the replay started. Lines are split by {@link JsonLines}, as {@code demo-producer
- * --from-file} splits them; blank lines are not events.
+ * get the time the replay started, and that time is also the clock for {@code max-clock-skew}:
+ * historical files replay unchanged, while an event dated after the replay's start plus the skew
+ * is rejected as {@code time-too-far-ahead}. Lines are split by {@link JsonLines}, as
+ * {@code demo-producer --from-file} splits them; blank lines are not events.
  */
 public final class Replay {
 
@@ -49,7 +51,7 @@ public final class Replay {
      */
     public Replay(BracketConfig config, FieldMapping fields, int keepRejected, long startTime) {
         this.config = config;
-        this.parser = new EventParser(config.studies(), fields, config.maxEventBytes());
+        this.parser = EventParser.forInput(config, fields);
         this.keepRejected = keepRejected;
         this.startTime = startTime;
     }

@@ -15,12 +15,9 @@ import org.apache.kafka.common.KafkaException;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.errors.InterruptException;
 import org.apache.kafka.common.errors.WakeupException;
-import org.apache.kafka.common.header.Headers;
-import org.apache.kafka.common.header.internals.RecordHeaders;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
-import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -51,21 +48,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     private static final Logger LOG = LoggerFactory.getLogger(StreamAggregator.class);
 
-    /** Header names on rejected records. */
-    public static final String REASON_HEADER = "bracket.reason";
-    public static final String DETAIL_HEADER = "bracket.detail";
-    public static final String SOURCE_TOPIC_HEADER = "bracket.source.topic";
-    public static final String SOURCE_PARTITION_HEADER = "bracket.source.partition";
-    public static final String SOURCE_OFFSET_HEADER = "bracket.source.offset";
-
     private final BracketConfig config;
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
     private final StudyEventCounts eventCounts;
     private final int member;
-    private int owned;
+    private volatile int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
+    private final RejectedCopies rejectedCopies;
     /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
     private final long[][] studyCounts;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
@@ -78,6 +69,16 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private boolean inTransaction;
     private boolean needsReset;
     private long lastCommitNanos;
+    /** Set when an unexpected error ends the loop: from then on nothing is committed, not even on close. */
+    private volatile Throwable failure;
+    /** Wall-clock time of the last commit, or of the last check that found nothing to commit. */
+    private volatile long upToDateMillis = System.currentTimeMillis();
+    /** Whether the group gave this member its partitions (possibly none) since it joined or lost them. */
+    private volatile boolean assigned;
+    private volatile long unassignedSinceMillis = System.currentTimeMillis();
+    // The record being processed, named in the log when its transaction fails.
+    private TopicPartition currentPartition;
+    private long currentOffset = -1;
 
     /**
      * @param member      this member's number within the instance (0 for the first); part of its transactional id
@@ -92,8 +93,9 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         this.partialsPartitions = partialsPartitions;
         this.member = member;
         this.studyCounts = new long[config.studies().size()][3];
+        this.rejectedCopies = new RejectedCopies(config.topics().rejected(), RejectedCopies.limit(config.kafka()));
         for (InputTopic in : config.inputs()) {
-            parsers.put(in.topic(), new EventParser(config.studies(), in.fields(), config.maxEventBytes()));
+            parsers.put(in.topic(), EventParser.forInput(config, in.fields()));
         }
     }
 
@@ -113,27 +115,14 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             consumer.subscribe(config.inputs().stream().map(InputTopic::topic).toList(), new Rebalance());
             lastCommitNanos = System.nanoTime();
             long commitNanos = config.commitInterval().toNanos();
-            while (running) {
-                try {
-                    if (needsReset) {
-                        resetToCommitted(consumer.assignment());
-                    }
-                    ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
-                    if (needsReset) {
-                        continue; // a callback failed: the batch may predate the reset
-                    }
-                    process(records);
-                    if (System.nanoTime() - lastCommitNanos >= commitNanos) {
-                        commit();
-                    }
-                } catch (WakeupException e) {
-                    // close() was called; the loop condition ends it.
-                } catch (KafkaException | IllegalStateException e) {
-                    if (running) {
-                        recover(e);
-                        pause();
-                    }
-                }
+            try {
+                loop(commitNanos);
+            } catch (RuntimeException | Error e) {
+                // Unexpected: the in-memory cells may be ahead of the pending offsets. Abort, and
+                // let no later commit (the consumer's close revokes partitions) write them.
+                failure = e;
+                abortQuietly();
+                throw e;
             }
             if (!needsReset) {
                 commit();
@@ -149,7 +138,33 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         }
     }
 
+    private void loop(long commitNanos) {
+        while (running) {
+            try {
+                if (needsReset) {
+                    resetToCommitted(consumer.assignment());
+                }
+                ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
+                if (needsReset) {
+                    continue; // a callback failed: the batch may predate the reset
+                }
+                process(records);
+                if (System.nanoTime() - lastCommitNanos >= commitNanos) {
+                    commit();
+                }
+            } catch (WakeupException e) {
+                // close() was called; the loop condition ends it.
+            } catch (KafkaException | IllegalStateException e) {
+                if (running) {
+                    recover(e);
+                    pause();
+                }
+            }
+        }
+    }
+
     private void process(ConsumerRecords<byte[], byte[]> records) {
+        long now = System.currentTimeMillis();
         for (TopicPartition tp : records.partitions()) {
             PartitionState state = states.get(tp);
             if (state == null) {
@@ -159,8 +174,10 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             Counter accepted = metrics.accepted(tp.topic());
             long next = -1;
             int used = 0;
+            currentPartition = tp;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
-                ParsedEvent e = parser.parse(r.value(), r.timestamp());
+                currentOffset = r.offset();
+                ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
                 int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
@@ -191,13 +208,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     private void reject(ConsumerRecord<byte[], byte[]> r, ParsedEvent e) {
         beginIfNeeded();
-        Headers headers = new RecordHeaders(r.headers().toArray());
-        headers.add(REASON_HEADER, utf8(e.rejection().id()));
-        headers.add(DETAIL_HEADER, utf8(e.detail()));
-        headers.add(SOURCE_TOPIC_HEADER, utf8(r.topic()));
-        headers.add(SOURCE_PARTITION_HEADER, utf8(Integer.toString(r.partition())));
-        headers.add(SOURCE_OFFSET_HEADER, utf8(Long.toString(r.offset())));
-        producer.send(new ProducerRecord<>(config.topics().rejected(), null, r.timestamp(), r.key(), r.value(), headers));
+        ProducerRecord<byte[], byte[]> copy = rejectedCopies.copy(r, e.rejection(), e.detail());
+        producer.send(copy, (md, ex) -> {
+            if (ex != null) {
+                LOG.warn("copying rejected record {}-{}@{} to '{}' failed: {}", r.topic(), r.partition(), r.offset(),
+                        copy.topic(), ex.toString());
+            }
+        });
         metrics.rejected(r.topic(), e.rejection());
     }
 
@@ -209,6 +226,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             dirty |= s.progressChanged();
         }
         if (!dirty) {
+            upToDateMillis = System.currentTimeMillis();
             return;
         }
         long start = System.nanoTime();
@@ -237,6 +255,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             inTransaction = false;
             states.values().forEach(PartitionState::markClean);
             pendingOffsets.clear();
+            upToDateMillis = System.currentTimeMillis();
             metrics.committed();
             metrics.commitTimer().record(Duration.ofNanos(System.nanoTime() - start));
         } catch (KafkaException | IllegalStateException e) {
@@ -259,7 +278,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
      * and schedules a rebuild of every assigned partition from committed state.
      */
     private void recover(RuntimeException cause) {
-        LOG.warn("aggregation error, aborting and restarting from the last commit: {}", cause.toString());
+        LOG.warn("aggregation error (last record read: {}@{}; uncommitted input up to {}), aborting and restarting from the last commit: {}",
+                currentPartition, currentOffset, pendingOffsets, cause.toString());
         metrics.aborted();
         if (inTransaction) {
             try {
@@ -273,6 +293,18 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             replaceProducer();
         }
         needsReset = true;
+    }
+
+    /** Aborts the open transaction, if any, after an unexpected error; the failure itself is what gets reported. */
+    private void abortQuietly() {
+        if (inTransaction && producer != null) {
+            try {
+                producer.abortTransaction();
+            } catch (RuntimeException e) {
+                LOG.warn("aborting after the failure failed too ({}); the broker aborts the transaction when it times out", e.toString());
+            }
+            inTransaction = false;
+        }
     }
 
     private static boolean isFatalForProducer(RuntimeException e) {
@@ -339,7 +371,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final class Rebalance implements ConsumerRebalanceListener {
         @Override
         public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
-            if (!needsReset) {
+            if (!needsReset && failure == null) {
                 commit(); // hands over exactly what was processed
             }
             partitions.forEach(tp -> {
@@ -354,6 +386,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (!partitions.isEmpty() && !needsReset) {
                 restore(partitions);
             }
+            assigned = true; // called after every rebalance, with no partitions too
         }
 
         @Override
@@ -373,6 +406,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             });
             needsReset = true;
             countOwned();
+            unassigned();
         }
     }
 
@@ -402,6 +436,28 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         }
     }
 
+    private void unassigned() {
+        if (assigned) {
+            unassignedSinceMillis = System.currentTimeMillis();
+            assigned = false;
+        }
+    }
+
+    /** What health checks read; safe from any thread. */
+    public Status status() {
+        return new Status(assigned, owned, upToDateMillis, unassignedSinceMillis, failure);
+    }
+
+    /**
+     * @param assigned         whether the group has given this member its share (possibly no partitions)
+     * @param partitions       input partitions owned now
+     * @param upToDateMillis   when this member last committed, or last found nothing to commit
+     * @param unassignedSince  when it last joined or lost its partitions (meaningful while not assigned)
+     * @param failure          the error that ended the member, or null
+     */
+    public record Status(boolean assigned, int partitions, long upToDateMillis, long unassignedSince, Throwable failure) {
+    }
+
     /** Stops the loop after a final commit and waits for it (at most {@code timeout}). */
     public void close(Duration timeout) {
         running = false;
@@ -421,7 +477,4 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         close(Duration.ofSeconds(30));
     }
 
-    private static byte[] utf8(String s) {
-        return s.getBytes(StandardCharsets.UTF_8);
-    }
 }

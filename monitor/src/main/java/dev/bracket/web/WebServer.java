@@ -11,6 +11,8 @@ import io.javalin.http.HttpStatus;
 import io.javalin.http.staticfiles.Location;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 
+import java.util.List;
+import java.util.Map;
 import java.util.Optional;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
@@ -31,6 +33,9 @@ import java.util.function.Supplier;
  *   GET /api/alerts               alerts firing now and the newest transitions ({@code AlertJson#listing});
  *                                 503 with {"error": ...} until {@link #showAlerts} is called
  *   GET /metrics                  Prometheus text: the registry passed in, with {@link StudyGauges}
+ *   GET /health/live              200 when the monitor's threads run, else 503; body {"status", "failing", "checks"}
+ *   GET /health/ready             200 when it is also connected, assigned and committing, else 503 (same body);
+ *                                 before {@link #showHealth} is called: live 200, ready 503 ("starting")
  * </pre>
  */
 public final class WebServer implements AutoCloseable {
@@ -49,6 +54,8 @@ public final class WebServer implements AutoCloseable {
     private ScheduledExecutorService sampler;
     private String host;
     private volatile Supplier<? extends JsonNode> alerts;
+    private volatile Supplier<Map<String, Object>> live = () -> starting("ok");
+    private volatile Supplier<Map<String, Object>> ready = () -> starting("failing");
 
     /**
      * @param latest   where the bound updater publishes reports
@@ -80,6 +87,8 @@ public final class WebServer implements AutoCloseable {
                 json(ctx, view.get());
             }
         });
+        app.get("/health/live", ctx -> health(ctx, live.get()));
+        app.get("/health/ready", ctx -> health(ctx, ready.get()));
         app.get("/metrics", ctx -> {
             refresh();
             ctx.contentType(PROMETHEUS_TEXT).result(registry.scrape());
@@ -118,6 +127,25 @@ public final class WebServer implements AutoCloseable {
      */
     public void showAlerts(Supplier<? extends JsonNode> view) {
         this.alerts = view;
+    }
+
+    /**
+     * Serves the health endpoints from the monitor's documents, whose {@code status} is
+     * {@code "ok"} (HTTP 200) or {@code "failing"} (HTTP 503).
+     */
+    public void showHealth(Supplier<Map<String, Object>> liveness, Supplier<Map<String, Object>> readiness) {
+        this.live = liveness;
+        this.ready = readiness;
+    }
+
+    private static Map<String, Object> starting(String status) {
+        return Map.of("status", status, "failing", status.equals("ok") ? List.of() : List.of("monitor"),
+                "checks", Map.of("monitor", Map.of("ok", status.equals("ok"), "detail", "the monitor is starting")));
+    }
+
+    private static void health(Context ctx, Map<String, Object> doc) throws JsonProcessingException {
+        ctx.status("ok".equals(doc.get("status")) ? HttpStatus.OK : HttpStatus.SERVICE_UNAVAILABLE);
+        ctx.contentType(JSON).result(ReportJson.mapper().writeValueAsString(doc));
     }
 
     /** The bound port, after {@link #start}. */

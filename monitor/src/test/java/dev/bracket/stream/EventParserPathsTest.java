@@ -9,6 +9,7 @@ import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
 
 import java.nio.charset.StandardCharsets;
+import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Collections;
 import java.util.List;
@@ -28,7 +29,7 @@ class EventParserPathsTest {
             new StudyConfig("registry", new OutcomeRange(-5, 5, Direction.HIGHER), AssumptionSet.eachSingle()));
     private static final long RECORD_TIME = 1_700_000_000_000L;
 
-    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 4096);
+    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 4096, Duration.ofHours(1));
     private final Random rnd = new Random(20261201);
 
     @Test
@@ -105,8 +106,8 @@ class EventParserPathsTest {
     /** Asserts both paths agree on {@code bytes}; says whether the fast path alone could read it. */
     private boolean assertSame(byte[] bytes) {
         String input = new String(bytes, StandardCharsets.UTF_8);
-        String reference = describe(parser.parse(bytes, RECORD_TIME, false));
-        String fast = describe(parser.parse(bytes, RECORD_TIME, true));
+        String reference = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, false));
+        String fast = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, true));
         assertThat(fast).as(input).isEqualTo(reference);
         return new FlatEventScanner(FieldMapping.DEFAULT, new TextCache()).scan(bytes, new ParsedEvent());
     }

@@ -11,6 +11,7 @@ import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 
 import java.nio.charset.StandardCharsets;
+import java.time.Duration;
 import java.util.List;
 
 import static org.assertj.core.api.Assertions.assertThat;
@@ -21,7 +22,7 @@ class EventParserTest {
             new StudyConfig("checkout", new OutcomeRange(0, 1, Direction.LOWER), AssumptionSet.eachSingle()));
     private static final long RECORD_TIME = 1_700_000_000_000L;
 
-    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 512);
+    private final EventParser parser = new EventParser(STUDIES, FieldMapping.DEFAULT, 512, Duration.ofHours(1));
 
     private ParsedEvent parse(String json) {
         return parser.parse(json.getBytes(StandardCharsets.UTF_8), RECORD_TIME);
@@ -67,7 +68,7 @@ class EventParserTest {
     @DisplayName("field names follow the topic's mapping")
     void followsFieldMapping() {
         FieldMapping m = new FieldMapping("experiment", "host", "canary", "error_rate", "ts", "region", "wave", "event_id");
-        EventParser mapped = new EventParser(STUDIES, m, 512);
+        EventParser mapped = new EventParser(STUDIES, m, 512, Duration.ofHours(1));
         ParsedEvent e = mapped.parse("{\"experiment\":\"checkout\",\"host\":\"h\",\"canary\":true,\"error_rate\":0.5,\"region\":\"us\"}"
                 .getBytes(StandardCharsets.UTF_8), RECORD_TIME);
         assertThat(e.isUsable()).isTrue();
@@ -98,6 +99,46 @@ class EventParserTest {
         assertThat(e.isUsable()).isFalse();
         assertThat(e.rejection().id()).isEqualTo(reason.strip());
         assertThat(e.detail()).contains(detail.strip()).doesNotContain("\n");
+    }
+
+    @ParameterizedTest(name = "{0} -> {1}")
+    @CsvSource(delimiter = '|', value = {
+            "\"+999999999-12-31T23:59:59Z\" | time-unrepresentable | must lie in years 1 to 9999",
+            "\"0000-12-31T23:59:59Z\"       | time-unrepresentable | must lie in years 1 to 9999",
+            "99999999999999999999999        | time-unrepresentable | must lie in years 1 to 9999",
+            "-9223372036854775808           | time-unrepresentable | must lie in years 1 to 9999",
+            "253402300800000                | time-unrepresentable | must lie in years 1 to 9999",
+            "\"9999-12-31T23:59:59Z\"       | time-too-far-ahead   | ahead of the record timestamp or the clock",
+            "1700003600001                  | time-too-far-ahead   | more than 3600 s (max-clock-skew)",
+    })
+    @DisplayName("times that cannot be represented or lie too far ahead are rejected on both parsing paths")
+    void rejectsUnusableTimes(String time, String reason, String detail) {
+        byte[] json = ("{\"study\":\"checkout\",\"unit\":\"u\",\"treated\":1,\"outcome\":0,\"time\":" + time.strip() + "}")
+                .getBytes(StandardCharsets.UTF_8);
+        for (boolean fast : new boolean[] {true, false}) {
+            ParsedEvent e = parser.parse(json, RECORD_TIME, RECORD_TIME, fast);
+            assertThat(e.isUsable()).as("fast path " + fast).isFalse();
+            assertThat(e.rejection().id()).isEqualTo(reason.strip());
+            assertThat(e.detail()).contains(detail.strip()).doesNotContain("\n");
+        }
+    }
+
+    @Test
+    @DisplayName("max-clock-skew: up to the skew ahead of the earlier of record time and clock is accepted, beyond it rejected")
+    void clockSkewLimit() {
+        String at = "{\"study\":\"checkout\",\"unit\":\"u\",\"treated\":1,\"outcome\":0,\"time\":%d}";
+        long hour = 3_600_000L;
+        assertThat(parser.parse(String.format(at, RECORD_TIME + hour).getBytes(StandardCharsets.UTF_8), RECORD_TIME).isUsable()).isTrue();
+        // The record timestamp is late, the clock is not: the clock decides.
+        ParsedEvent e = parser.parse(String.format(at, RECORD_TIME + hour + 1).getBytes(StandardCharsets.UTF_8),
+                RECORD_TIME + 5 * hour, RECORD_TIME);
+        assertThat(e.rejection()).isEqualTo(RejectReason.TIME_TOO_FAR_AHEAD);
+        // Without a time field the record timestamp is the event time, and is checked against the clock.
+        e = parser.parse("{\"study\":\"checkout\",\"unit\":\"u\",\"treated\":1,\"outcome\":0}".getBytes(StandardCharsets.UTF_8),
+                RECORD_TIME + 2 * hour, RECORD_TIME);
+        assertThat(e.rejection()).isEqualTo(RejectReason.TIME_TOO_FAR_AHEAD);
+        // A record without a timestamp (-1, old message format) is judged by the clock alone.
+        assertThat(parser.parse(String.format(at, RECORD_TIME).getBytes(StandardCharsets.UTF_8), -1, RECORD_TIME).isUsable()).isTrue();
     }
 
     @Test
