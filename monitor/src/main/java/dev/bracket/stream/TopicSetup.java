@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.alerts.KafkaAlertSink;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import org.apache.kafka.clients.admin.Admin;
@@ -36,8 +37,8 @@ public final class TopicSetup {
         wanted.put(config.topics().rejected(), Map.of());
         wanted.put(config.topics().bounds(), Map.of());
         wanted.put(config.topics().partials(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
-        // Alert state: the newest transition per alert key (dev.bracket.alerts.AlertHistory).
-        wanted.put(config.alerts().topic(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
+        // Alert state and the transitions webhooks may still owe (dev.bracket.alerts.AlertHistory).
+        wanted.put(config.alerts().topic(), KafkaAlertSink.TOPIC_CONFIG);
         try {
             Map<String, TopicDescription> existing = describe(admin, wanted.keySet());
             List<NewTopic> create = new ArrayList<>();
