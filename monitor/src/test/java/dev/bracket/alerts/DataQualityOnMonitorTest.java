@@ -4,7 +4,9 @@ import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.report.LatestReports;
+import dev.bracket.stream.EventParser;
 import dev.bracket.stream.Monitor;
+import dev.bracket.stream.ParsedEvent;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -15,6 +17,7 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.extension.RegisterExtension;
 import org.junit.jupiter.api.io.TempDir;
 
+import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.time.Duration;
@@ -57,6 +60,37 @@ class DataQualityOnMonitorTest {
             }
         }
         return out;
+    }
+
+    @Test
+    @DisplayName("rejected events name their study when it can be read, wherever the study field sits")
+    void rejectedEventsNameTheirStudy() throws Exception {
+        Path config = dir.resolve("parse.yaml");
+        Files.writeString(config, """
+                studies:
+                  - id: clinic
+                    outcome: {min: 0, max: 1}
+                    assume: [[worst-case]]
+                inputs:
+                  - topic: parse-events
+                kafka:
+                  bootstrap.servers: localhost:1
+                """);
+        BracketConfig c = BracketConfig.load(config);
+        EventParser parser = new EventParser(c.studies(), c.inputs().get(0).fields(), c.maxEventBytes());
+        Map<String, String> expected = Map.of(
+                "{\"outcome\":\"high\",\"study\":\"clinic\",\"unit\":\"u\",\"treated\":true}", "wrong-type clinic",
+                "{\"study\":\"clinic\",\"unit\":[1],\"treated\":true,\"outcome\":0.2}", "wrong-type clinic",
+                "{\"study\":\"clinic\",\"treated\":true,\"outcome\":0.2}", "missing-field clinic",
+                "{\"study\":\"clinic\",\"unit\":\"u\",\"treated\":true,\"outcome\":3}", "out-of-range clinic",
+                "{\"study\":\"other\",\"unit\":\"u\",\"treated\":true,\"outcome\":0.2}", "unknown-study none",
+                "{\"unit\":\"u\",\"treated\":true,\"outcome\":0.2}", "missing-field none",
+                "{\"study\":\"clinic\",\"unit\":\"u\",\"treated\":tru", "bad-json none");
+        expected.forEach((line, want) -> {
+            ParsedEvent e = parser.parse(line.getBytes(StandardCharsets.UTF_8), 0);
+            assertThat(e.rejection().id() + " " + (e.study() == null ? "none" : e.study().id())).as(line).isEqualTo(want);
+            assertThat(e.studyIndex() >= 0).as(line).isEqualTo(e.study() != null);
+        });
     }
 
     @Test
