@@ -9,13 +9,10 @@ import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.NewTopic;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.Producer;
-import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.config.TopicConfig;
 import org.apache.kafka.common.errors.TopicExistsException;
-import org.apache.kafka.common.serialization.StringSerializer;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
@@ -92,14 +89,7 @@ public final class AlertLedger implements AutoCloseable {
      */
     public static AlertLedger open(Map<String, String> clientProperties, String topic, Duration timeout) {
         create(clientProperties, topic, timeout);
-        AlertLedger ledger;
-        Map<String, Object> p = new HashMap<>(clientProperties);
-        p.remove(ProducerConfig.TRANSACTIONAL_ID_CONFIG);
-        p.put(ProducerConfig.CLIENT_ID_CONFIG, "bracket-alerts-ledger");
-        p.put(ProducerConfig.ACKS_CONFIG, "all");
-        p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
-        p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 10_000);
-        ledger = new AlertLedger(new KafkaProducer<>(p, new StringSerializer(), new StringSerializer()), topic);
+        AlertLedger ledger = new AlertLedger(KafkaAlertSink.producer(clientProperties, "bracket-alerts-ledger"), topic);
         try (KafkaConsumer<String, String> consumer = AlertHistory.reader(clientProperties, "bracket-alerts-ledger-restore")) {
             ledger.restore(AlertHistory.readToEnd(consumer, topic, timeout));
         } catch (RuntimeException e) {

@@ -60,14 +60,19 @@ public final class KafkaAlertSink implements AlertSink {
      *                         security, …), passed on verbatim except for what this producer needs
      */
     public static KafkaAlertSink connect(Map<String, String> clientProperties, String topic, MeterRegistry registry) {
+        return new KafkaAlertSink(producer(clientProperties, "bracket-alerts"), topic, registry, true);
+    }
+
+    /** An idempotent producer with {@code acks=all} for alert records, on the configuration's client properties. */
+    static KafkaProducer<String, String> producer(Map<String, String> clientProperties, String clientId) {
         Map<String, Object> p = new HashMap<>(clientProperties);
         p.remove(ProducerConfig.TRANSACTIONAL_ID_CONFIG);
-        p.put(ProducerConfig.CLIENT_ID_CONFIG, "bracket-alerts");
+        p.put(ProducerConfig.CLIENT_ID_CONFIG, clientId);
         p.put(ProducerConfig.ACKS_CONFIG, "all");
         p.put(ProducerConfig.ENABLE_IDEMPOTENCE_CONFIG, true);
         // send() blocks while the broker is unknown; alerts must not hold the bound updater for a minute.
         p.put(ProducerConfig.MAX_BLOCK_MS_CONFIG, 10_000);
-        return new KafkaAlertSink(new KafkaProducer<>(p, new StringSerializer(), new StringSerializer()), topic, registry, true);
+        return new KafkaProducer<>(p, new StringSerializer(), new StringSerializer());
     }
 
     /** How long every transition stays in the alerts topic before compaction may remove it. */

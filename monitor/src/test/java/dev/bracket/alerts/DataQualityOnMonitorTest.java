@@ -62,21 +62,35 @@ class DataQualityOnMonitorTest {
         return out;
     }
 
-    @Test
-    @DisplayName("rejected events name their study when it can be read, wherever the study field sits")
-    void rejectedEventsNameTheirStudy() throws Exception {
-        Path config = dir.resolve("parse.yaml");
+    /** One study with a data-quality limit of 5% over 10 minutes, judged every 200 ms. */
+    private static BracketConfig config() throws Exception {
+        Path config = dir.resolve("quality.yaml");
         Files.writeString(config, """
                 studies:
                   - id: clinic
                     outcome: {min: 0, max: 1}
                     assume: [[worst-case]]
+                    alerts:
+                      rules:
+                        data-quality: {max-rejected-share: 0.05, period: 10m, min-events: 100}
                 inputs:
-                  - topic: parse-events
+                  - topic: quality-events
+                topics: {rejected: quality-rejected, partials: quality-partials, bounds: quality-bounds, partitions: 1}
+                commit-interval: 200ms
+                publish-interval: 200ms
+                group: quality
+                instance: quality-1
+                alerts: {topic: quality-alerts, tick: 200ms}
                 kafka:
-                  bootstrap.servers: localhost:1
-                """);
-        BracketConfig c = BracketConfig.load(config);
+                  bootstrap.servers: %s
+                """.formatted(KAFKA.bootstrapServers()));
+        return BracketConfig.load(config);
+    }
+
+    @Test
+    @DisplayName("rejected events name their study when it can be read, wherever the study field sits")
+    void rejectedEventsNameTheirStudy() throws Exception {
+        BracketConfig c = config();
         EventParser parser = new EventParser(c.studies(), c.inputs().get(0).fields(), c.maxEventBytes());
         Map<String, String> expected = Map.of(
                 "{\"outcome\":\"high\",\"study\":\"clinic\",\"unit\":\"u\",\"treated\":true}", "wrong-type clinic",
@@ -99,27 +113,7 @@ class DataQualityOnMonitorTest {
         List<String> lines = lines();
         assertThat(lines.stream().filter(l -> l.contains("\"high\"") || l.contains("\"yes\"")).count()).isEqualTo(40);
         assertThat(lines.stream().filter(l -> l.endsWith("tru")).count()).isEqualTo(20);
-        Path config = dir.resolve("quality.yaml");
-        Files.writeString(config, """
-                studies:
-                  - id: clinic
-                    outcome: {min: 0, max: 1}
-                    assume: [[worst-case]]
-                    alerts:
-                      rules:
-                        data-quality: {max-rejected-share: 0.05, period: 10m, min-events: 100}
-                inputs:
-                  - topic: quality-events
-                topics: {rejected: quality-rejected, partials: quality-partials, bounds: quality-bounds, partitions: 1}
-                commit-interval: 200ms
-                publish-interval: 200ms
-                group: quality
-                instance: quality-1
-                alerts: {topic: quality-alerts, tick: 200ms}
-                kafka:
-                  bootstrap.servers: %s
-                """.formatted(KAFKA.bootstrapServers()));
-        try (Monitor monitor = Monitor.start(BracketConfig.load(config), new SimpleMeterRegistry(), new LatestReports());
+        try (Monitor monitor = Monitor.start(config(), new SimpleMeterRegistry(), new LatestReports());
              KafkaProducer<String, String> producer = new KafkaProducer<>(Map.of(
                      ProducerConfig.BOOTSTRAP_SERVERS_CONFIG, KAFKA.bootstrapServers(), ProducerConfig.ACKS_CONFIG, "all"),
                      new StringSerializer(), new StringSerializer())) {

@@ -3,6 +3,7 @@ package dev.bracket.alerts;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.broker.BrokerPerClass;
+import dev.bracket.broker.ChildMonitor;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -88,12 +89,12 @@ class WebhookResumeAcrossRestartsTest {
                 awaitTransitions(3);
                 child.destroy(); // SIGTERM: a graceful stop with three transitions undelivered
                 assertThat(child.waitFor(60, TimeUnit.SECONDS)).isTrue();
-                assertThat(readLog(logs.get(0))).contains("stopped after a final commit");
+                assertThat(ChildMonitor.log(logs.get(0))).contains("stopped after a final commit");
                 assertThat(receiver.requests()).isEmpty();
 
                 child = startChild(config, logs);
                 // The restart is no news: the stall that did not end stays firing, unannounced.
-                await().atMost(Duration.ofSeconds(30)).until(() -> readLog(logs.get(1)).contains("resuming 3 transition(s)"));
+                await().atMost(Duration.ofSeconds(30)).until(() -> ChildMonitor.log(logs.get(1)).contains("resuming 3 transition(s)"));
                 Thread.sleep(3000); // longer than the stall limit: time enough for a wrong resolve/fire pair
                 assertThat(transitions()).as("no transition from the restart itself").hasSize(3);
                 Instant secondEvent = send(events);
@@ -180,18 +181,8 @@ class WebhookResumeAcrossRestartsTest {
     }
 
     private static Process startChild(Path config, List<Path> logs) throws IOException {
-        String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-        String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
         Path log = dir.resolve("hook-child-" + logs.size() + ".log");
         logs.add(log);
-        return new ProcessBuilder(java, "-Xmx256m", "-cp", classpath, "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
-                .redirectErrorStream(true)
-                .redirectOutput(log.toFile())
-                .start();
-    }
-
-    private static String readLog(Path log) throws IOException {
-        return Files.exists(log) ? Files.readString(log) : "";
+        return ChildMonitor.start(config, log, "256m");
     }
 }
