@@ -121,10 +121,12 @@ class DataQualityOnMonitorTest {
                 producer.send(new ProducerRecord<>("quality-events", line));
             }
             producer.flush();
-            await().atMost(Duration.ofSeconds(30)).until(() -> monitor.alerts().firing().stream()
-                    .anyMatch(s -> s.key().rule() == AlertRule.DATA_QUALITY));
+            // The listing gets the transition just after the state changes: wait for the document itself.
+            await().atMost(Duration.ofSeconds(30)).until(() -> monitor.alerts().apiView().path("recent").size() > 0);
             JsonNode fired = monitor.alerts().apiView().path("recent").get(0);
             assertThat(fired.path("rule").asText()).isEqualTo("data-quality");
+            assertThat(fired.path("state").asText()).isEqualTo("firing");
+            assertThat(monitor.alerts().firing()).extracting(s -> s.key().rule()).containsExactly(AlertRule.DATA_QUALITY);
             JsonNode evidence = fired.path("evidence");
             // Whatever prefix of the stream the first judgement saw, both kinds were counted in it.
             assertThat(evidence.path("rejected").asLong()).as("wrong-type events naming the study").isPositive();
