@@ -31,7 +31,7 @@ import java.util.concurrent.TimeoutException;
 
 /**
  * What alerting must remember across restarts besides the transitions themselves, kept in a
- * compacted topic of its own ({@code <alerts topic>-ledger}, one partition):
+ * compacted topic of its own ({@code <alerts topic>-ledger}):
  * <ul>
  *   <li>{@code webhook|<endpoint id>|<alert key>}: the newest transition of that key the
  *       endpoint is done with (acknowledged with 2xx, refused, or given up after
@@ -83,7 +83,9 @@ public final class AlertLedger implements AutoCloseable {
     }
 
     /**
-     * Creates the ledger topic if missing, reads it to its end, and opens a producer for new entries.
+     * Creates the ledger topic if missing (the monitor's topic setup normally has, with the
+     * configured partitions and replication; this one has one partition and the broker's default
+     * replication), reads it to its end, and opens a producer for new entries.
      *
      * @throws IllegalStateException when the topic cannot be created or read within {@code timeout}
      */
