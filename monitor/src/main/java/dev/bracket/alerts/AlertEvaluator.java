@@ -31,6 +31,7 @@ public final class AlertEvaluator {
 
     private final Map<String, StudyAlertConfig> studies;
     private final Clock clock;
+    private final Instant upSince;
     private final Map<AlertKey, AlertState> states = new HashMap<>();
     private final Map<String, EventCounts> traffic = new HashMap<>();
 
@@ -41,9 +42,9 @@ public final class AlertEvaluator {
     public AlertEvaluator(Map<String, StudyAlertConfig> studies, Clock clock) {
         this.studies = Map.copyOf(studies);
         this.clock = clock;
-        Instant start = clock.instant();
+        this.upSince = clock.instant();
         this.studies.forEach((study, config) -> traffic.put(study,
-                new EventCounts(start, config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
+                new EventCounts(config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
     }
 
     /**
@@ -83,6 +84,39 @@ public final class AlertEvaluator {
         }
     }
 
+    /**
+     * Counts rejected records whose study could not be read (at the clock's time): they count
+     * against every study's data quality, since they may be any study's.
+     */
+    public synchronized void recordUnattributed(long rejected) {
+        Instant now = clock.instant();
+        traffic.values().forEach(counts -> counts.recordUnattributed(now, rejected));
+    }
+
+    /**
+     * Takes over when each study's last event arrived before a restart, so that a stall is judged
+     * from it rather than from this start. Call before any event is recorded.
+     */
+    public synchronized void restoreLastEvents(Map<String, Instant> lastEvents) {
+        lastEvents.forEach((study, at) -> {
+            EventCounts counts = traffic.get(study);
+            if (counts != null) {
+                counts.restoreLastEvent(at);
+            }
+        });
+    }
+
+    /**
+     * When each configured study's last event arrived; this evaluator's start when none has and
+     * none was restored (so that after a restart a study that never sent counts as silent since
+     * the first start).
+     */
+    public synchronized Map<String, Instant> lastEvents() {
+        Map<String, Instant> out = new HashMap<>();
+        traffic.forEach((study, counts) -> out.put(study, counts.lastEventAt().orElse(upSince)));
+        return out;
+    }
+
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
     public synchronized List<AlertTransition> tick() {
         Instant now = clock.instant();
@@ -92,7 +126,7 @@ public final class AlertEvaluator {
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
             config.stalled().ifPresent(rule -> apply(AlertKey.perStudy(study, AlertRule.STREAM_STALLED),
-                    rule.judge(counts.lastEventAt(), now), rule.evidence(counts.lastEventAt(), now), now,
+                    rule.judge(counts.lastEventAt(), upSince, now), rule.evidence(counts.lastEventAt(), upSince, now), now,
                     config.clearAfter(), "", out));
             config.quality().ifPresent(rule -> {
                 Evidence.OfQuality q = counts.within(now, rule.maxShare());

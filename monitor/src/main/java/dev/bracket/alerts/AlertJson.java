@@ -118,6 +118,7 @@ public final class AlertJson {
             o.put("accepted", q.accepted());
             o.put("rejected", q.rejected());
             o.put("outOfRange", q.outOfRange());
+            o.put("unattributed", q.unattributed());
             o.put("rejectedShare", q.rejectedShare());
             o.put("maxRejectedShare", q.maxShare());
         }
@@ -134,6 +135,15 @@ public final class AlertJson {
      * @throws IllegalArgumentException naming the problem when the text is not a {@value #SCHEMA} document
      */
     public static AlertState restoreState(String text) {
+        return document(text).state();
+    }
+
+    /**
+     * Reads back an alert document as it was written.
+     *
+     * @throws IllegalArgumentException naming the problem when the text is not a {@value #SCHEMA} document
+     */
+    public static AlertDocument document(String text) {
         JsonNode o;
         try {
             o = MAPPER.readTree(text);
@@ -147,9 +157,11 @@ public final class AlertJson {
             AlertKey key = AlertKey.parse(required(o, "key"));
             TransitionKind kind = TransitionKind.fromId(required(o, "state"));
             long sequence = o.path("sequence").asLong(0);
-            boolean firing = kind == TransitionKind.FIRING;
-            return new AlertState(key, firing, firing ? o.path("variant").asText("") : "", sequence,
-                    Instant.parse(required(o, "origin")), Instant.parse(required(o, "at")), 0);
+            Instant origin = Instant.parse(required(o, "origin"));
+            String id = o.path("transitionId").isTextual() ? o.get("transitionId").asText()
+                    : AlertTransition.idFor(key, origin, sequence);
+            return new AlertDocument(id, key, kind, sequence, o.path("variant").asText(""), origin,
+                    Instant.parse(required(o, "at")), text);
         } catch (DateTimeParseException e) {
             throw new IllegalArgumentException("bad time in alert document: " + e.getParsedString());
         }

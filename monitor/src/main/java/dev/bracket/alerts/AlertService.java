@@ -8,12 +8,17 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 import java.time.Clock;
+import java.time.Duration;
+import java.time.Instant;
 import java.util.ArrayList;
+import java.util.Comparator;
+import java.util.HashSet;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
@@ -21,8 +26,10 @@ import java.util.concurrent.TimeUnit;
 /**
  * Alerting as the monitor runs it: the evaluator, its sinks and its clock. The bound updater
  * calls {@link #onReport} after each update, the event consumer {@link #recordEvents}; a
- * scheduler judges the per-study rules every {@link AlertOptions#tick()}. At start, state is
- * restored from the alerts topic, so a restart does not fire again what already fired.
+ * scheduler judges the per-study rules every {@link AlertOptions#tick()} and records each
+ * study's last event time in the {@link AlertLedger}. At start, state is restored from the alerts
+ * topic and the ledger, so a restart neither fires again what already fired nor resolves a stall
+ * that did not end, and webhooks resume what they had not delivered.
  */
 public final class AlertService implements AutoCloseable {
 
@@ -31,13 +38,21 @@ public final class AlertService implements AutoCloseable {
     private final AlertEvaluator evaluator;
     private final AlertDispatcher dispatcher;
     private final RecentAlerts recent;
+    private final AlertLedger ledger;
     private final ScheduledExecutorService clockThread;
 
-    /** Wires given parts and starts the clock; {@link #start} builds the parts from configuration. */
+    /** Wires given parts and starts the clock, with a ledger in memory. */
     public AlertService(AlertEvaluator evaluator, AlertDispatcher dispatcher, RecentAlerts recent, AlertOptions options) {
+        this(evaluator, dispatcher, recent, options, AlertLedger.inMemory());
+    }
+
+    /** Wires given parts and starts the clock; {@link #start} builds the parts from configuration. */
+    public AlertService(AlertEvaluator evaluator, AlertDispatcher dispatcher, RecentAlerts recent, AlertOptions options,
+                        AlertLedger ledger) {
         this.evaluator = evaluator;
         this.dispatcher = dispatcher;
         this.recent = recent;
+        this.ledger = ledger;
         this.clockThread = Executors.newSingleThreadScheduledExecutor(r -> {
             Thread t = new Thread(r, "bracket-alerts-clock");
             t.setDaemon(true);
@@ -48,7 +63,8 @@ public final class AlertService implements AutoCloseable {
     }
 
     /**
-     * Restores state from the alerts topic (when a broker is given), then starts evaluating.
+     * Restores state from the alerts topic and its ledger (when a broker is given), queues the
+     * webhook deliveries still owed, then starts evaluating.
      *
      * @param studies each study's alert settings, by study id
      * @param kafka   client properties of the Kafka cluster holding the alerts topic; empty for no
@@ -59,18 +75,36 @@ public final class AlertService implements AutoCloseable {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
         RecentAlerts recent = new RecentAlerts(options.recent());
         List<AlertSink> common = new ArrayList<>(List.of(new LogAlertSink(), recent));
+        Instant now = clock.instant();
+        List<AlertDocument> owed = List.of();
+        AlertLedger ledger;
         if (kafka.isPresent()) {
-            evaluator.restore(AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout()));
+            Duration lookback = studies.values().stream().flatMap(c -> c.webhooks().stream()).map(WebhookTarget::retryFor)
+                    .max(Comparator.naturalOrder()).orElse(Duration.ZERO);
+            AlertHistory.Restored history = AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout(),
+                    now.minus(lookback));
+            evaluator.restore(history.states());
+            owed = history.since();
+            ledger = AlertLedger.open(kafka.get(), AlertLedger.topicFor(options.topic()), options.restoreTimeout());
+            evaluator.restoreLastEvents(ledger.lastEvents());
             common.add(KafkaAlertSink.connect(kafka.get(), options.topic(), registry));
         } else {
             LOG.warn("no Kafka cluster for alerts: alert state is kept in memory only and a restart may fire alerts again");
+            ledger = AlertLedger.inMemory();
         }
         Map<WebhookTarget, WebhookSink> webhooks = new LinkedHashMap<>();
+        Map<WebhookTarget, Set<String>> served = new HashMap<>();
         Map<String, List<AlertSink>> byStudy = new HashMap<>();
-        studies.forEach((study, config) -> config.webhooks().forEach(target -> byStudy
-                .computeIfAbsent(study, k -> new ArrayList<>())
-                .add(webhooks.computeIfAbsent(target, t -> new WebhookSink(t, registry)))));
-        return new AlertService(evaluator, new AlertDispatcher(common, byStudy, registry), recent, options);
+        studies.forEach((study, config) -> config.webhooks().forEach(target -> {
+            byStudy.computeIfAbsent(study, k -> new ArrayList<>())
+                    .add(webhooks.computeIfAbsent(target, t -> new WebhookSink(t, registry, ledger)));
+            served.computeIfAbsent(target, t -> new HashSet<>()).add(study);
+        }));
+        for (Map.Entry<WebhookTarget, WebhookSink> w : webhooks.entrySet()) {
+            Set<String> its = served.get(w.getKey());
+            w.getValue().resume(owed.stream().filter(d -> its.contains(d.key().study())).toList(), now);
+        }
+        return new AlertService(evaluator, new AlertDispatcher(common, byStudy, registry), recent, options, ledger);
     }
 
     /**
@@ -94,10 +128,16 @@ public final class AlertService implements AutoCloseable {
         evaluator.recordEvents(study, accepted, rejected, outOfRange);
     }
 
-    /** Judges the per-study rules now (the scheduler calls it every tick). */
+    /** See {@link AlertEvaluator#recordUnattributed}. */
+    public void recordUnattributed(long rejected) {
+        evaluator.recordUnattributed(rejected);
+    }
+
+    /** Judges the per-study rules now and records the last event times (the scheduler calls it every tick). */
     public synchronized void tick() {
         try {
             dispatcher.publish(evaluator.tick());
+            evaluator.lastEvents().forEach(ledger::recordLastEvent);
         } catch (RuntimeException e) {
             LOG.error("alert tick failed; next tick will try again: {}", e.toString());
         }
@@ -112,10 +152,14 @@ public final class AlertService implements AutoCloseable {
         return evaluator.firing();
     }
 
-    /** Stops the clock and closes the sinks (webhooks get a few seconds to deliver what is pending). */
+    /**
+     * Stops the clock and closes the sinks (webhooks get a few seconds to deliver what is pending;
+     * what is left stays owed in the ledger), then the ledger.
+     */
     @Override
     public void close() {
         clockThread.shutdownNow();
         dispatcher.close();
+        ledger.close();
     }
 }

@@ -3,8 +3,11 @@ package dev.bracket.alerts;
 import java.time.Duration;
 
 /**
- * Fires when the share of rejected events (malformed, unknown arm, outcome outside the declared
- * range, …) among all events of a study within the last {@code period} exceeds {@code maxShare}.
+ * Fires when the share of rejected records among all records of a study within the last
+ * {@code period} exceeds {@code maxShare}. Counted: the study's accepted events, its rejected
+ * events of any reason (wrong type, missing field, outcome outside the declared range, …), and
+ * the records no study could be read from (unparseable lines and the like), which count against
+ * every study because they may be any study's.
  *
  * @param maxShare    the largest acceptable rejected share, in [0, 1)
  * @param period      how far back events are counted
@@ -31,9 +34,10 @@ public record DataQualityRule(double maxShare, Duration period, long minEvents, 
     }
 
     public Verdict judge(Evidence.OfQuality counts) {
-        long total = counts.accepted() + counts.rejected();
-        String seen = counts.rejected() + " of " + total + " events rejected in the last " + AlertText.duration(period)
-                + " (" + counts.outOfRange() + " out of range), share " + AlertText.num(counts.rejectedShare())
+        long total = counts.total();
+        String seen = (counts.rejected() + counts.unattributed()) + " of " + total + " records rejected in the last "
+                + AlertText.duration(period) + " (" + counts.outOfRange() + " out of range, " + counts.unattributed()
+                + " without a readable study), share " + AlertText.num(counts.rejectedShare())
                 + ", limit " + AlertText.num(maxShare);
         if (total < minEvents) {
             return Verdict.unknown(seen + "; fewer than " + minEvents + " events");

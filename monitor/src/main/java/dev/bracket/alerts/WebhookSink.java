@@ -12,6 +12,7 @@ import java.net.http.HttpRequest;
 import java.net.http.HttpResponse;
 import java.nio.charset.StandardCharsets;
 import java.time.Duration;
+import java.time.Instant;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Optional;
@@ -35,6 +36,13 @@ import java.util.function.UnaryOperator;
  *       it was raised is dropped after at least one attempt; a transition arriving while the
  *       queue is full is dropped at once. Both are logged with the transition id and counted in
  *       {@code bracket.webhook.dropped}.</li>
+ *   <li>Restarts: once the receiver has answered for a transition (2xx, refusal, or given up),
+ *       the sink records it in the {@link AlertLedger}. At start, {@link #resume} queues, ahead
+ *       of anything new, every transition of the alerts topic this endpoint serves that the
+ *       ledger does not cover and that is still within {@code retry-for} of being raised. So a
+ *       stop or a crash (SIGKILL included) while the receiver is down loses nothing: the queue in
+ *       memory is only a cache of what the topic and the ledger say is owed. With an in-memory
+ *       ledger (no Kafka cluster) what is queued at stop is dropped, counted and logged.</li>
  *   <li>Each request carries {@code Idempotency-Key: <transition id>}: a receiver that saw a
  *       request time out on our side but arrive on its side recognises the retry.</li>
  *   <li>{@code Authorization: Bearer <token>} when the target names an environment variable that
@@ -51,10 +59,12 @@ public final class WebhookSink implements AlertSink {
     private static final Logger LOG = LoggerFactory.getLogger(WebhookSink.class);
     private static final Duration DEFAULT_GRACE = Duration.ofSeconds(5);
 
-    private record Pending(AlertTransition transition, long raisedNanos) {
+    /** A transition to deliver, and the {@link System#nanoTime} after which it is given up. */
+    private record Pending(AlertDocument transition, long deadlineNanos) {
     }
 
     private final WebhookTarget target;
+    private final AlertLedger ledger;
     private final UnaryOperator<String> environment;
     private final HttpClient client;
     private final Backoff backoff;
@@ -68,16 +78,23 @@ public final class WebhookSink implements AlertSink {
     private volatile boolean closing;
     private volatile Pending inFlight;
 
-    /** A sink reading the token from the process environment. */
-    public WebhookSink(WebhookTarget target, MeterRegistry registry) {
-        this(target, registry, System::getenv);
+    /** A sink reading the token from the process environment, recording deliveries in {@code ledger}. */
+    public WebhookSink(WebhookTarget target, MeterRegistry registry, AlertLedger ledger) {
+        this(target, registry, System::getenv, ledger);
+    }
+
+    /** A sink whose deliveries are remembered in memory only. */
+    public WebhookSink(WebhookTarget target, MeterRegistry registry, UnaryOperator<String> environment) {
+        this(target, registry, environment, AlertLedger.inMemory());
     }
 
     /**
      * @param environment looks environment variables up by name (tests pass their own)
+     * @param ledger      where finished deliveries are recorded, and read at {@link #resume}
      */
-    public WebhookSink(WebhookTarget target, MeterRegistry registry, UnaryOperator<String> environment) {
+    public WebhookSink(WebhookTarget target, MeterRegistry registry, UnaryOperator<String> environment, AlertLedger ledger) {
         this.target = target;
+        this.ledger = ledger;
         this.environment = environment;
         this.registry = registry;
         this.client = HttpClient.newBuilder().version(HttpClient.Version.HTTP_1_1).connectTimeout(target.timeout()).build();
@@ -100,10 +117,42 @@ public final class WebhookSink implements AlertSink {
 
     @Override
     public void accept(AlertTransition t) {
-        if (closing || !queue.offer(new Pending(t, System.nanoTime()))) {
-            drop(t, closing ? "shutdown" : "queue-full",
-                    closing ? "the sink is closing" : "the queue holds " + target.queueCapacity() + " transitions already");
+        enqueue(AlertDocument.of(t), System.nanoTime() + target.retryFor().toNanos());
+    }
+
+    /**
+     * Queues the transitions this endpoint still owes from before the start: those not covered by
+     * the ledger and raised no longer than {@code retry-for} before {@code now}. Call before the
+     * first {@link #accept}.
+     *
+     * @param raised this endpoint's transitions from the alerts topic, oldest first
+     * @param now    the wall-clock time the raising times are measured against
+     * @return how many were queued
+     */
+    public int resume(List<AlertDocument> raised, Instant now) {
+        int queued = 0;
+        for (AlertDocument d : raised) {
+            Duration left = Duration.between(now, d.at().plus(target.retryFor()));
+            if (ledger.delivered(target, d) || left.isNegative()) {
+                continue;
+            }
+            if (enqueue(d, System.nanoTime() + left.toNanos())) {
+                queued++;
+            }
         }
+        if (queued > 0) {
+            LOG.info("webhook {}: resuming {} transition(s) not delivered before the restart", target.endpoint(), queued);
+        }
+        return queued;
+    }
+
+    private boolean enqueue(AlertDocument d, long deadlineNanos) {
+        if (closing || !queue.offer(new Pending(d, deadlineNanos))) {
+            drop(d, closing ? "shutdown" : "queue-full",
+                    closing ? "the sink is closing" : "the queue holds " + target.queueCapacity() + " transitions already");
+            return false;
+        }
+        return true;
     }
 
     /** Transitions waiting or in flight. */
@@ -118,6 +167,7 @@ public final class WebhookSink implements AlertSink {
                 if (p != null) {
                     inFlight = p;
                     deliver(p);
+                    ledger.recordDelivered(target, p.transition());
                     inFlight = null;
                 }
             }
@@ -128,9 +178,9 @@ public final class WebhookSink implements AlertSink {
 
     /** Attempts until delivered, refused or out of time; interrupted only by {@link #close}. */
     private void deliver(Pending p) throws InterruptedException {
-        AlertTransition t = p.transition();
-        byte[] body = AlertJson.toText(t).getBytes(StandardCharsets.UTF_8);
-        long deadline = p.raisedNanos() + target.retryFor().toNanos();
+        AlertDocument t = p.transition();
+        byte[] body = t.text().getBytes(StandardCharsets.UTF_8);
+        long deadline = p.deadlineNanos();
         for (int attempt = 1; ; attempt++) {
             if (attempt > 1) {
                 retries.increment();
@@ -178,7 +228,7 @@ public final class WebhookSink implements AlertSink {
         }
     }
 
-    private HttpRequest request(AlertTransition t, byte[] body) {
+    private HttpRequest request(AlertDocument t, byte[] body) {
         HttpRequest.Builder b = HttpRequest.newBuilder(target.url())
                 .timeout(target.timeout())
                 .header("Content-Type", "application/json")
@@ -207,7 +257,7 @@ public final class WebhookSink implements AlertSink {
         return oneLine.length() <= 200 ? oneLine : oneLine.substring(0, 200) + "…";
     }
 
-    private void drop(AlertTransition t, String reason, String why) {
+    private void drop(AlertDocument t, String reason, String why) {
         Counter.builder("bracket.webhook.dropped").description("transitions given up on").tag("endpoint", target.endpoint())
                 .tag("reason", reason).register(registry).increment();
         LOG.error("webhook {} dropped transition {} ({} {} of {}): {}", target.endpoint(), t.transitionId(),
@@ -218,7 +268,11 @@ public final class WebhookSink implements AlertSink {
         return Counter.builder(name).description(description).tag("endpoint", target.endpoint()).register(registry);
     }
 
-    /** Stops taking transitions, lets delivery drain for up to 5 seconds, then drops what is left (counted, logged). */
+    /**
+     * Stops taking transitions and lets delivery drain for up to 5 seconds. What is left stays
+     * owed in a durable ledger (the next start resumes it); with an in-memory ledger it is
+     * dropped (counted, logged).
+     */
     @Override
     public void close() {
         close(DEFAULT_GRACE);
@@ -245,6 +299,13 @@ public final class WebhookSink implements AlertSink {
             left.add(current);
         }
         queue.drainTo(left);
-        left.forEach(p -> drop(p.transition(), "shutdown", "the monitor stopped before the receiver took it"));
+        if (ledger.durable()) {
+            if (!left.isEmpty()) {
+                LOG.warn("webhook {}: {} transition(s) not yet delivered at stop (first {}); the next start resumes them"
+                        + " within retry-for", target.endpoint(), left.size(), left.get(0).transition().transitionId());
+            }
+        } else {
+            left.forEach(p -> drop(p.transition(), "shutdown", "the monitor stopped before the receiver took it"));
+        }
     }
 }

@@ -142,12 +142,14 @@ public final class EventParser {
             // Field names from the parser are canonicalised; equals() settles on the identity check.
             if (name.equals(fields.study())) {
                 if (t != JsonToken.VALUE_STRING) {
-                    return wrongType(e, fields.study(), "a string", t);
+                    skipWrong(p, e, fields.study(), "a string", t);
+                    continue;
                 }
                 studyId = text(p);
             } else if (name.equals(fields.unit())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
-                    return wrongType(e, fields.unit(), "a string or whole number", t);
+                    skipWrong(p, e, fields.unit(), "a string or whole number", t);
+                    continue;
                 }
                 hasUnit = true;
             } else if (name.equals(fields.treated())) {
@@ -156,12 +158,14 @@ public final class EventParser {
                 } else if (t == JsonToken.VALUE_NUMBER_INT && (p.getLongValue() == 0 || p.getLongValue() == 1)) {
                     e.treated = p.getLongValue() == 1;
                 } else {
-                    return wrongType(e, fields.treated(), "true/false or 1/0", t);
+                    skipWrong(p, e, fields.treated(), "true/false or 1/0", t);
+                    continue;
                 }
                 hasTreated = true;
             } else if (name.equals(fields.outcome())) {
                 if (t != JsonToken.VALUE_NUMBER_INT && t != JsonToken.VALUE_NUMBER_FLOAT) {
-                    return wrongType(e, fields.outcome(), "a number", t);
+                    skipWrong(p, e, fields.outcome(), "a number", t);
+                    continue;
                 }
                 e.outcome = p.getDoubleValue();
                 hasOutcome = true;
@@ -177,26 +181,31 @@ public final class EventParser {
                         return unrepresentable(e, p.getText());
                     }
                     if (parsed == IsoTime.INVALID) {
-                        return e.reject(RejectReason.WRONG_TYPE, "field '" + fields.time()
+                        firstProblem(e, RejectReason.WRONG_TYPE, "field '" + fields.time()
                                 + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z, was '" + clip(p.getText()) + "'");
+                        continue;
                     }
                     e.time = parsed;
                 } else {
-                    return wrongType(e, fields.time(), "epoch milliseconds or an ISO-8601 string", t);
+                    skipWrong(p, e, fields.time(), "epoch milliseconds or an ISO-8601 string", t);
+                    continue;
                 }
             } else if (name.equals(fields.stratum())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
-                    return wrongType(e, fields.stratum(), "a string or whole number", t);
+                    skipWrong(p, e, fields.stratum(), "a string or whole number", t);
+                    continue;
                 }
                 e.stratum = text(p);
             } else if (name.equals(fields.instrument())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
-                    return wrongType(e, fields.instrument(), "a string or whole number", t);
+                    skipWrong(p, e, fields.instrument(), "a string or whole number", t);
+                    continue;
                 }
                 e.instrument = text(p);
             } else if (name.equals(fields.id())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
-                    return wrongType(e, fields.id(), "a string or whole number", t);
+                    skipWrong(p, e, fields.id(), "a string or whole number", t);
+                    continue;
                 }
             } else {
                 p.skipChildren();
@@ -204,6 +213,9 @@ public final class EventParser {
         }
         if (p.nextToken() != null) {
             return e.reject(RejectReason.BAD_JSON, "unexpected content after the event's closing brace");
+        }
+        if (!e.isUsable()) {
+            return attribute(e, studyId);
         }
         return complete(e, studyId, hasUnit, hasTreated, hasOutcome, recordTime, latest);
     }
@@ -218,13 +230,13 @@ public final class EventParser {
             return missing(e, fields.study());
         }
         if (!hasUnit) {
-            return missing(e, fields.unit());
+            return attribute(missing(e, fields.unit()), studyId);
         }
         if (!hasTreated) {
-            return missing(e, fields.treated());
+            return attribute(missing(e, fields.treated()), studyId);
         }
         if (!hasOutcome) {
-            return missing(e, fields.outcome());
+            return attribute(missing(e, fields.outcome()), studyId);
         }
         Integer index = studyIndex.get(studyId);
         if (index == null) {
@@ -281,8 +293,29 @@ public final class EventParser {
         return e.reject(RejectReason.MISSING_FIELD, "field '" + field + "' is missing (or null)");
     }
 
-    private static ParsedEvent wrongType(ParsedEvent e, String field, String expected, JsonToken t) {
-        return e.reject(RejectReason.WRONG_TYPE, "field '" + field + "' must be " + expected + ", was " + describe(t));
+    /**
+     * Notes a wrongly typed field (the first problem is the one reported) and skips its value:
+     * reading on finds the study, so that the rejection counts toward that study's data quality.
+     */
+    private static void skipWrong(JsonParser p, ParsedEvent e, String field, String expected, JsonToken t) throws IOException {
+        firstProblem(e, RejectReason.WRONG_TYPE, "field '" + field + "' must be " + expected + ", was " + describe(t));
+        p.skipChildren();
+    }
+
+    private static void firstProblem(ParsedEvent e, RejectReason reason, String why) {
+        if (e.isUsable()) {
+            e.reject(reason, why);
+        }
+    }
+
+    /** Names the study of a rejected event when it names a configured one. */
+    private ParsedEvent attribute(ParsedEvent e, String studyId) {
+        Integer index = studyId == null ? null : studyIndex.get(studyId);
+        if (index != null) {
+            e.study = studies[index];
+            e.studyIndex = index;
+        }
+        return e;
     }
 
     private static String describe(JsonToken t) {

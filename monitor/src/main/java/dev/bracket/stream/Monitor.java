@@ -104,7 +104,17 @@ public final class Monitor implements AutoCloseable {
                 config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
         List<StreamAggregator> aggregators = new ArrayList<>();
         for (int member = 0; member < config.threads(); member++) {
-            aggregators.add(new StreamAggregator(clients, metrics, partials, member, alerts::recordEvents));
+            aggregators.add(new StreamAggregator(clients, metrics, partials, member, new StudyEventCounts() {
+                @Override
+                public void counted(String study, long accepted, long rejected, long outOfRange) {
+                    alerts.recordEvents(study, accepted, rejected, outOfRange);
+                }
+
+                @Override
+                public void unattributed(long rejected) {
+                    alerts.recordUnattributed(rejected);
+                }
+            }));
         }
         Monitor m = new Monitor(config, aggregators,
                 new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport), metrics, alerts,

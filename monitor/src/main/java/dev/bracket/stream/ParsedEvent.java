@@ -18,6 +18,10 @@ public final class ParsedEvent {
     RejectReason rejection;
     String detail;
 
+    /**
+     * The configured study the event names; for a rejected event too when its study field could
+     * be read (wrong type elsewhere, missing field, out of range), null when it could not.
+     */
     public StudyConfig study() {
         return study;
     }

@@ -59,6 +59,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final RejectedCopies rejectedCopies;
     /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
     private final long[][] studyCounts;
+    /** Rejected records without a readable study, per poll. */
+    private long unattributed;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
@@ -187,6 +189,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                     if (study >= 0) {
                         studyCounts[study][1]++;
                         studyCounts[study][2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
+                    } else {
+                        unattributed++;
                     }
                     reject(r, e);
                 }
@@ -203,6 +207,10 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 eventCounts.counted(config.studies().get(i).id(), c[0], c[1], c[2]);
                 Arrays.fill(c, 0);
             }
+        }
+        if (unattributed > 0) {
+            eventCounts.unattributed(unattributed);
+            unattributed = 0;
         }
     }
 

@@ -1,5 +1,7 @@
 package dev.bracket.stream;
 
+import dev.bracket.alerts.AlertLedger;
+import dev.bracket.alerts.KafkaAlertSink;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import org.apache.kafka.clients.admin.Admin;
@@ -19,8 +21,8 @@ import java.util.concurrent.TimeUnit;
 
 /**
  * Creates the topics the monitor needs when they do not exist: the input topics, the rejected
- * and bounds topics, and the partials and alerts topics with {@code cleanup.policy=compact} (only
- * the latest value per key matters). Existing topics are left as they are.
+ * and bounds topics, and the partials, alerts and alert ledger topics with
+ * {@code cleanup.policy=compact} (only the latest value per key matters). Existing topics are left as they are.
  */
 public final class TopicSetup {
 
@@ -36,8 +38,11 @@ public final class TopicSetup {
         wanted.put(config.topics().rejected(), Map.of());
         wanted.put(config.topics().bounds(), Map.of());
         wanted.put(config.topics().partials(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
-        // Alert state: the newest transition per alert key (dev.bracket.alerts.AlertHistory).
-        wanted.put(config.alerts().topic(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
+        // Alert state and the transitions webhooks may still owe (dev.bracket.alerts.AlertHistory).
+        wanted.put(config.alerts().topic(), KafkaAlertSink.TOPIC_CONFIG);
+        // What each webhook endpoint took and each study's last event time (dev.bracket.alerts.AlertLedger).
+        wanted.put(AlertLedger.topicFor(config.alerts().topic()),
+                Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
         try {
             Map<String, TopicDescription> existing = describe(admin, wanted.keySet());
             List<NewTopic> create = new ArrayList<>();

@@ -88,7 +88,7 @@ class AlertJsonTest {
     @DisplayName("per-study documents have study scope and their own evidence")
     void studyDocuments() {
         AlertKey key = AlertKey.perStudy("rollout", AlertRule.DATA_QUALITY);
-        Evidence.OfQuality q = new Evidence.OfQuality(Duration.ofMinutes(10), 90, 10, 4, 0.05);
+        Evidence.OfQuality q = new Evidence.OfQuality(Duration.ofMinutes(10), 90, 10, 4, 0, 0.05);
         AlertTransition t = AlertState.initial(key).next(Verdict.met("", "10 of 100 rejected"), q, Snapshots.T0, 1, "")
                 .transitions().get(0);
         JsonNode doc = AlertJson.toJson(t);

@@ -50,11 +50,12 @@ class AlertRestartOnBrokerTest {
                 new SimpleMeterRegistry(), new MutableClock(Snapshots.T0));
     }
 
-    private static List<ConsumerRecord<String, String>> records(EmbeddedBroker broker) {
+    /** Every record of {@code topic}, read to its end. */
+    static List<ConsumerRecord<String, String>> records(EmbeddedBroker broker, String topic) {
         try (KafkaConsumer<String, String> c = new KafkaConsumer<>(Map.of(
                 ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
                 ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false), new StringDeserializer(), new StringDeserializer())) {
-            List<TopicPartition> tps = c.partitionsFor(TOPIC).stream().map(p -> new TopicPartition(TOPIC, p.partition())).toList();
+            List<TopicPartition> tps = c.partitionsFor(topic).stream().map(p -> new TopicPartition(topic, p.partition())).toList();
             c.assign(tps);
             c.seekToBeginning(tps);
             Map<TopicPartition, Long> end = c.endOffsets(tps);
@@ -105,11 +106,78 @@ class AlertRestartOnBrokerTest {
                 assertThat(third.apiView().path("recent")).as("a resolved alert is not resolved again").isEmpty();
             }
 
-            List<ConsumerRecord<String, String>> recs = records(broker);
+            List<ConsumerRecord<String, String>> recs = records(broker, TOPIC);
             assertThat(recs).extracting(ConsumerRecord::key).containsOnly(KEY);
             assertThat(recs).hasSize(2);
             assertThat(recs.stream().map(r -> new String(r.headers().lastHeader(KafkaAlertSink.TRANSITION_ID_HEADER).value(),
                     StandardCharsets.UTF_8)).toList()).startsWith(firedId).doesNotHaveDuplicates();
+        } finally {
+            broker.close();
+        }
+    }
+    private static final Map<String, StudyAlertConfig> STALL_ONLY = Map.of("rollout", new StudyAlertConfig(30,
+            BandMethod.ANYTIME, 3, List.of(), Optional.of(new StreamStalledRule(Duration.ofMinutes(1))), Optional.empty(),
+            List.of()));
+
+    private static AlertService startStallOnly(EmbeddedBroker broker, MutableClock clock) {
+        return AlertService.start(STALL_ONLY, OPTIONS, Optional.of(Map.of("bootstrap.servers", broker.bootstrapServers())),
+                new SimpleMeterRegistry(), clock);
+    }
+
+    @Test
+    @DisplayName("a restart with a stalled stream produces no transition: the stall stays firing until an event arrives")
+    void restartWithStalledStreamIsNoNews() throws Exception {
+        EmbeddedBroker broker = EmbeddedBroker.start(dir.resolve("kafka-stall"), 0);
+        try {
+            try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers()))) {
+                admin.createTopics(List.of(KafkaAlertSink.topic(TOPIC, 1, (short) 1))).all().get();
+            }
+            MutableClock clock = new MutableClock(Snapshots.T0);
+            try (AlertService first = startStallOnly(broker, clock)) {
+                first.recordEvents("rollout", 10, 0, 0);
+                clock.advance(Duration.ofSeconds(30));
+                first.tick();
+                assertThat(first.apiView().path("recent")).as("30 s of silence is within the limit").isEmpty();
+                clock.advance(Duration.ofSeconds(31));
+                first.tick();
+                assertThat(first.apiView().path("recent")).singleElement()
+                        .satisfies(doc -> assertThat(doc.path("state").asText()).isEqualTo("firing"));
+            }
+
+            clock.advance(Duration.ofMinutes(5));
+            try (AlertService second = startStallOnly(broker, clock)) {
+                assertThat(second.firing()).extracting(s -> s.key().rule()).containsExactly(AlertRule.STREAM_STALLED);
+                for (int i = 0; i < 6; i++) { // the first 2 minutes after the restart, a tick every 20 s
+                    second.tick();
+                    clock.advance(Duration.ofSeconds(20));
+                }
+                assertThat(second.apiView().path("recent")).as("no resolve/fire pair for a stall that did not end").isEmpty();
+                assertThat(second.firing()).hasSize(1);
+
+                second.recordEvents("rollout", 1, 0, 0);
+                second.tick();
+                assertThat(second.apiView().path("recent")).as("an event that did arrive is news").singleElement()
+                        .satisfies(doc -> {
+                            assertThat(doc.path("state").asText()).isEqualTo("resolved");
+                            assertThat(doc.path("sequence").asLong()).isEqualTo(2);
+                        });
+            }
+
+            // Silent again for 40 s, then a restart: the silence is judged from the restored last
+            // event (not from the start), and fires once the monitor has run for the limit.
+            clock.advance(Duration.ofSeconds(40));
+            try (AlertService third = startStallOnly(broker, clock)) {
+                third.tick();
+                assertThat(third.apiView().path("recent")).isEmpty();
+                clock.advance(Duration.ofSeconds(61));
+                third.tick();
+                assertThat(third.apiView().path("recent")).singleElement().satisfies(doc -> {
+                    assertThat(doc.path("state").asText()).isEqualTo("firing");
+                    assertThat(doc.path("sequence").asLong()).isEqualTo(3);
+                    assertThat(doc.path("evidence").path("silentForSeconds").asDouble())
+                            .as("silence counted from the last event before the restart, not from the start").isEqualTo(101.0);
+                });
+            }
         } finally {
             broker.close();
         }

@@ -16,6 +16,7 @@ import org.junit.jupiter.api.Test;
 import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.Duration;
+import java.time.Instant;
 import java.time.ZoneOffset;
 import java.util.ArrayList;
 import java.util.HashMap;
@@ -96,7 +97,7 @@ class AlertRestoreTest {
                     .isEqualTo(fired.get(0).transitionId());
         });
 
-        List<AlertState> restored = AlertHistory.read(topicWith(producer.history()), TOPIC, Duration.ofSeconds(5));
+        List<AlertState> restored = AlertHistory.read(topicWith(producer.history()), TOPIC, Duration.ofSeconds(5), Instant.MAX).states();
         AlertEvaluator after = evaluator();
         after.restore(restored);
         assertThat(after.firing()).extracting(s -> s.key().toString())
@@ -130,7 +131,7 @@ class AlertRestoreTest {
         written.add(new ProducerRecord<>(TOPIC, "noise", "not json"));
         written.add(new ProducerRecord<>(TOPIC, key.toString(), AlertJson.toText(ts.get(2))));
 
-        List<AlertState> restored = AlertHistory.read(topicWith(written), TOPIC, Duration.ofSeconds(5));
+        List<AlertState> restored = AlertHistory.read(topicWith(written), TOPIC, Duration.ofSeconds(5), Instant.MAX).states();
         assertThat(restored).singleElement().satisfies(s -> {
             assertThat(s.key()).isEqualTo(key);
             assertThat(s.firing()).isTrue();
@@ -143,7 +144,7 @@ class AlertRestoreTest {
     @DisplayName("a topic that does not exist yet restores nothing")
     void missingTopic() {
         MockConsumer<String, String> consumer = new MockConsumer<>("earliest");
-        assertThat(AlertHistory.read(consumer, TOPIC, Duration.ofMillis(200))).isEmpty();
+        assertThat(AlertHistory.read(consumer, TOPIC, Duration.ofMillis(200), Instant.MAX).states()).isEmpty();
     }
 
     @Test

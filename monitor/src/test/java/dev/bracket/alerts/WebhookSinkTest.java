@@ -155,4 +155,27 @@ class WebhookSinkTest {
         assertThat(dropped("refused")).isEqualTo(1);
         assertThat(count("bracket.webhook.retries")).isZero();
     }
+    @Test
+    @DisplayName("at start it resumes, ahead of new ones, the transitions the ledger does not cover and retry-for still allows")
+    void resumesWhatIsOwed() throws Exception {
+        receiver.start(n -> 200);
+        AlertLedger ledger = AlertLedger.inMemory();
+        WebhookTarget target = target(Duration.ofSeconds(1), Duration.ofSeconds(150), 10, 50, 100);
+        List<AlertDocument> raised = Transitions.alternating(Transitions.key("rollout", "mts-negative"), 4).stream()
+                .map(AlertDocument::of).toList(); // raised at T0, T0+60s, T0+120s, T0+180s
+        ledger.recordDelivered(target, raised.get(0));
+        sink = new WebhookSink(target, registry, name -> null, ledger);
+
+        // At T0+220s the second (raised at T0+60s, 150 s retry-for) is out of time.
+        assertThat(sink.resume(raised, Snapshots.T0.plusSeconds(220))).isEqualTo(2);
+        AlertTransition fresh = Transitions.alternating(Transitions.key("rollout", "mtr-positive"), 1).get(0);
+        sink.accept(fresh);
+        await().atMost(Duration.ofSeconds(10)).until(() -> receiver.uniqueDeliveries().size() == 3);
+
+        assertThat(receiver.uniqueDeliveries()).containsExactly(raised.get(2).transitionId(), raised.get(3).transitionId(),
+                fresh.transitionId());
+        assertThat(receiver.requests().get(0).body()).as("the stored document, unchanged").isEqualTo(raised.get(2).text());
+        await().atMost(Duration.ofSeconds(5)).until(() -> ledger.delivered(target, raised.get(3))
+                && ledger.delivered(target, AlertDocument.of(fresh)));
+    }
 }

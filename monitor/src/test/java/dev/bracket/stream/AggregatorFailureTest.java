@@ -60,8 +60,15 @@ class AggregatorFailureTest {
             producer.flush();
         }
         StreamAggregator failing = new StreamAggregator(new KafkaClients(config), new StreamMetrics(new SimpleMeterRegistry()),
-                partials, 0, (study, accepted, rejected, outOfRange) -> {
-                    throw new IllegalArgumentException("listener failed on purpose");
+                partials, 0, new StudyEventCounts() {
+                    @Override
+                    public void counted(String study, long accepted, long rejected, long outOfRange) {
+                        throw new IllegalArgumentException("listener failed on purpose");
+                    }
+
+                    @Override
+                    public void unattributed(long rejected) {
+                    }
                 });
         Thread thread = new Thread(failing, "test-aggregator");
         thread.start();
