@@ -21,9 +21,9 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
  * Coverage of both bands for studies with strata and instrument levels, by simulation with known
- * truth. Strata are weighted by their observed shares (as {@link StratifiedBounds} does), so the
- * target in each replication is the share-weighted combination of the true stratum intervals at
- * the replication's own stratum counts; instrument levels enter through Manski's (1990)
+ * truth. Here every cell has the same fixed number of units, so the observed stratum shares equal
+ * the population's (random shares are {@link StrataSharesCoverageTest}'s subject) and the target
+ * is the share-weighted combination of the true stratum intervals; instrument levels enter through Manski's (1990)
  * intersection, which does not depend on the level shares. Instrument studies use Bonferroni
  * over cells (DESIGN.md §2), so their bands are expected to be conservative.
  */
