@@ -63,7 +63,6 @@ public final class EmpiricalBernsteinBoundary {
         }
     }
 
-    private final double alpha;
     private final double[] thresholds;
 
     /**
@@ -77,12 +76,7 @@ public final class EmpiricalBernsteinBoundary {
         if (plannedCount < 1) {
             throw new IllegalArgumentException("planned count must be >= 1, was " + plannedCount);
         }
-        this.alpha = alpha;
         this.thresholds = thresholds(alpha, centre(alpha, plannedCount));
-    }
-
-    public double alpha() {
-        return alpha;
     }
 
     /** {@code lambda_k = 0.5 * 2^(-k/2)}. */

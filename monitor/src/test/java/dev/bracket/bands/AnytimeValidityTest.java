@@ -16,6 +16,7 @@ import org.junit.jupiter.params.provider.MethodSource;
 
 import java.util.List;
 import java.util.Locale;
+import java.util.function.Predicate;
 import java.util.stream.IntStream;
 import java.util.stream.Stream;
 
@@ -84,6 +85,22 @@ class AnytimeValidityTest {
     private static boolean[] stream(RandomGenerator rng, OutcomeLaw treated, OutcomeLaw control, AnytimeBand anytime,
                                     IdentifiedInterval[] truth) {
         boolean[] missed = new boolean[SETS.size()];
+        look(rng, treated, control, arms -> {
+            for (int s = 0; s < SETS.size(); s++) {
+                if (!missed[s]) {
+                    missed[s] = misses(anytime.ofCell(arms, UNIT, SETS.get(s)), truth[s]);
+                }
+            }
+            return true;
+        });
+        return missed;
+    }
+
+    /**
+     * Draws units (treated with probability P) and, once both arms have 30, hands the arms to
+     * {@code atLook} after every unit, for {@link #LOOKS} looks or until it returns false.
+     */
+    private static void look(RandomGenerator rng, OutcomeLaw treated, OutcomeLaw control, Predicate<ObservedArms> atLook) {
         ObservedArms arms = ObservedArms.empty();
         int looks = 0;
         while (looks < LOOKS) {
@@ -93,13 +110,10 @@ class AnytimeValidityTest {
                 continue;
             }
             looks++;
-            for (int s = 0; s < SETS.size(); s++) {
-                if (!missed[s]) {
-                    missed[s] = misses(anytime.ofCell(arms, UNIT, SETS.get(s)), truth[s]);
-                }
+            if (!atLook.test(arms)) {
+                return;
             }
         }
-        return missed;
     }
 
     @Test
@@ -111,21 +125,12 @@ class AnytimeValidityTest {
         AssumptionSet worstCase = AssumptionSet.parse("worst-case");
         IdentifiedInterval truth = BoundCalculator.interval(P, treated.mean(), control.mean(), UNIT, worstCase);
         long ever = IntStream.range(0, CONTROL_STREAMS).parallel().filter(i -> {
-            RandomGenerator rng = new Well19937c(2004_0601L + i);
-            ObservedArms arms = ObservedArms.empty();
-            int looks = 0;
-            while (looks < LOOKS) {
-                boolean isTreated = rng.nextDouble() < P;
-                arms = arms.add(isTreated, (isTreated ? treated : control).draw(rng));
-                if (arms.treated().count() < FIRST_LOOK_PER_ARM || arms.control().count() < FIRST_LOOK_PER_ARM) {
-                    continue;
-                }
-                looks++;
-                if (misses(FixedHorizonBand.ofCell(arms, UNIT, worstCase, LEVEL, VarianceBasis.SAMPLE), truth)) {
-                    return true;
-                }
-            }
-            return false;
+            boolean[] missed = {false};
+            look(new Well19937c(2004_0601L + i), treated, control, arms -> {
+                missed[0] = misses(FixedHorizonBand.ofCell(arms, UNIT, worstCase, LEVEL, VarianceBasis.SAMPLE), truth);
+                return !missed[0];
+            });
+            return missed[0];
         }).count();
         double share = (double) ever / CONTROL_STREAMS;
         System.out.printf(Locale.ROOT, "worst-case, binary outcomes: streams whose fixed-horizon band ever missed over %d looks: %.3f%n",

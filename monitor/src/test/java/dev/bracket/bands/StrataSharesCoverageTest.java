@@ -1,11 +1,9 @@
 package dev.bracket.bands;
 
-import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
-import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.params.ParameterizedTest;
@@ -37,20 +35,16 @@ class StrataSharesCoverageTest {
     private static final double FLOOR = 0.94;
     private static final int REPLICATIONS = 4000;
 
-    /** A cell of the simulated population: stratum, level, P(T = 1), E[Y | T = 1], E[Y | T = 0] (binary outcomes). */
-    private record Cell(String stratum, String level, double p, double mu1, double mu0) {
-    }
-
     /** Two equally likely strata; within a stratum, each level equally likely. */
-    private static final List<Cell> STRATA = List.of(
-            new Cell("east", StudyCells.NONE, 0.9, 0.9, 0.1),
-            new Cell("west", StudyCells.NONE, 0.1, 0.1, 0.9));
+    private static final List<PopulationCell> STRATA = List.of(
+            new PopulationCell("east", StudyCells.NONE, 0.9, 0.9, 0.1),
+            new PopulationCell("west", StudyCells.NONE, 0.1, 0.1, 0.9));
 
-    private static final List<Cell> STRATA_AND_LEVELS = List.of(
-            new Cell("east", "0", 0.8, 0.9, 0.1),
-            new Cell("east", "1", 0.9, 0.9, 0.1),
-            new Cell("west", "0", 0.1, 0.1, 0.9),
-            new Cell("west", "1", 0.2, 0.1, 0.9));
+    private static final List<PopulationCell> STRATA_AND_LEVELS = List.of(
+            new PopulationCell("east", "0", 0.8, 0.9, 0.1),
+            new PopulationCell("east", "1", 0.9, 0.9, 0.1),
+            new PopulationCell("west", "0", 0.1, 0.1, 0.9),
+            new PopulationCell("west", "1", 0.2, 0.1, 0.9));
 
     static Stream<Arguments> studies() {
         return Stream.of(500, 5000).flatMap(n -> Stream.of(
@@ -63,9 +57,10 @@ class StrataSharesCoverageTest {
     @ParameterizedTest(name = "{0}, {2}, n={3}")
     @MethodSource("studies")
     @DisplayName("both bands cover each end of the population interval at least 94% of the time")
-    void coversThePopulationInterval(String name, List<Cell> population, String set, int n) {
+    void coversThePopulationInterval(String name, List<PopulationCell> population, String set, int n) {
         AssumptionSet assumptions = AssumptionSet.parse(set);
-        IdentifiedInterval target = target(population, assumptions);
+        IdentifiedInterval target = PopulationCell.interval(population, UNIT, assumptions);
+        assertTrue(target.isIdentified(), "the population interval exists: " + target);
         BandSettings settings = BandSettings.both(LEVEL);
         SplittableRandom rng = new SplittableRandom(1_000L * n + set.hashCode());
         int[][] covered = new int[2][2]; // [fixed, anytime][lower, upper]
@@ -87,12 +82,12 @@ class StrataSharesCoverageTest {
     }
 
     /** n units, each in a cell drawn uniformly; then treatment with probability p and a binary outcome. */
-    private static StudyCells sample(List<Cell> population, int n, SplittableRandom rng) {
+    private static StudyCells sample(List<PopulationCell> population, int n, SplittableRandom rng) {
         ObservedArms[] arms = new ObservedArms[population.size()];
         Arrays.fill(arms, ObservedArms.empty());
         for (int i = 0; i < n; i++) {
             int k = rng.nextInt(population.size());
-            Cell c = population.get(k);
+            PopulationCell c = population.get(k);
             boolean treated = rng.nextDouble() < c.p();
             arms[k] = arms[k].add(treated, rng.nextDouble() < (treated ? c.mu1() : c.mu0()) ? 1 : 0);
         }
@@ -101,22 +96,5 @@ class StrataSharesCoverageTest {
             cells = cells.with(population.get(k).stratum(), population.get(k).level(), arms[k]);
         }
         return cells;
-    }
-
-    /**
-     * The population interval: the engine on the true cell parameters (equal cell sizes, counts in
-     * the exact ratio p : 1 - p, exact means), so strata carry their population shares.
-     */
-    private static IdentifiedInterval target(List<Cell> population, AssumptionSet assumptions) {
-        long scale = 1_000_000_000L;
-        StudyCells truth = StudyCells.empty();
-        for (Cell c : population) {
-            long treated = Math.round(c.p() * scale);
-            truth = truth.with(c.stratum(), c.level(), new ObservedArms(
-                    ArmStatistics.ofSummary(treated, c.mu1(), 0), ArmStatistics.ofSummary(scale - treated, c.mu0(), 0)));
-        }
-        IdentifiedInterval overall = StratifiedBounds.interval(truth, UNIT, assumptions).overall();
-        assertTrue(overall.isIdentified(), "the population interval exists: " + overall);
-        return overall;
     }
 }

@@ -1,11 +1,9 @@
 package dev.bracket.bands;
 
-import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
-import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.params.ParameterizedTest;
@@ -13,9 +11,7 @@ import org.junit.jupiter.params.provider.ValueSource;
 
 import java.util.List;
 import java.util.Locale;
-import java.util.Map;
 import java.util.SplittableRandom;
-import java.util.TreeMap;
 
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
@@ -32,19 +28,15 @@ class StudyBandsCoverageTest {
     private static final OutcomeRange UNIT = new OutcomeRange(0, 1);
     private static final double LEVEL = 0.95;
 
-    /** A cell of the simulated population: stratum, level, P(T = 1), E[Y | T = 1], E[Y | T = 0] (binary outcomes). */
-    private record Cell(String stratum, String level, double p, double mu1, double mu0) {
-    }
+    private static final List<PopulationCell> STRATA = List.of(
+            new PopulationCell("north", StudyCells.NONE, 0.3, 0.6, 0.4),
+            new PopulationCell("south", StudyCells.NONE, 0.6, 0.7, 0.55));
 
-    private static final List<Cell> STRATA = List.of(
-            new Cell("north", StudyCells.NONE, 0.3, 0.6, 0.4),
-            new Cell("south", StudyCells.NONE, 0.6, 0.7, 0.55));
-
-    private static final List<Cell> STRATA_AND_LEVELS = List.of(
-            new Cell("north", "0", 0.2, 0.6, 0.4),
-            new Cell("north", "1", 0.7, 0.65, 0.45),
-            new Cell("south", "0", 0.4, 0.7, 0.5),
-            new Cell("south", "1", 0.8, 0.75, 0.5));
+    private static final List<PopulationCell> STRATA_AND_LEVELS = List.of(
+            new PopulationCell("north", "0", 0.2, 0.6, 0.4),
+            new PopulationCell("north", "1", 0.7, 0.65, 0.45),
+            new PopulationCell("south", "0", 0.4, 0.7, 0.5),
+            new PopulationCell("south", "1", 0.8, 0.75, 0.5));
 
     @ParameterizedTest(name = "strata, {0}")
     @ValueSource(strings = {"worst-case", "mtr-positive", "mtr-positive,mts-positive"})
@@ -60,14 +52,14 @@ class StudyBandsCoverageTest {
         coverage(STRATA_AND_LEVELS, AssumptionSet.parse(set), 4000, 300, 12);
     }
 
-    private static void coverage(List<Cell> population, AssumptionSet assumptions, int n, int replications, long seed) {
+    private static void coverage(List<PopulationCell> population, AssumptionSet assumptions, int n, int replications, long seed) {
         BandSettings settings = BandSettings.both(LEVEL);
         SplittableRandom rng = new SplittableRandom(seed);
         int[] lowerCovered = new int[2];
         int[] upperCovered = new int[2];
+        IdentifiedInterval target = PopulationCell.interval(population, UNIT, assumptions);
         for (int r = 0; r < replications; r++) {
             StudyCells sample = sample(population, n, rng);
-            IdentifiedInterval target = target(population, sample, assumptions);
             List<ConfidenceBand> bands = settings.bands(sample, UNIT, assumptions);
             for (int b = 0; b < 2; b++) {
                 lowerCovered[b] += bands.get(b).contains(target.lower()) ? 1 : 0;
@@ -85,9 +77,9 @@ class StudyBandsCoverageTest {
     }
 
     /** Equal-sized cells; within a cell treatment with probability p, then a binary outcome. */
-    private static StudyCells sample(List<Cell> population, int n, SplittableRandom rng) {
+    private static StudyCells sample(List<PopulationCell> population, int n, SplittableRandom rng) {
         StudyCells cells = StudyCells.empty();
-        for (Cell c : population) {
+        for (PopulationCell c : population) {
             ObservedArms arms = ObservedArms.empty();
             for (int i = 0; i < n / population.size(); i++) {
                 boolean treated = rng.nextDouble() < c.p();
@@ -96,29 +88,5 @@ class StudyBandsCoverageTest {
             cells = cells.with(c.stratum(), c.level(), arms);
         }
         return cells;
-    }
-
-    /**
-     * The true identified set with the sample's stratum weights: the engine applied to the true
-     * cell parameters (counts in the exact ratio p : 1 - p, exact means), then stratum intervals
-     * weighted by the sample's stratum counts.
-     */
-    private static IdentifiedInterval target(List<Cell> population, StudyCells sample, AssumptionSet assumptions) {
-        long scale = 1_000_000_000L;
-        StudyCells truth = StudyCells.empty();
-        for (Cell c : population) {
-            long treated = Math.round(c.p() * scale);
-            truth = truth.with(c.stratum(), c.level(), new ObservedArms(
-                    ArmStatistics.ofSummary(treated, c.mu1(), 0), ArmStatistics.ofSummary(scale - treated, c.mu0(), 0)));
-        }
-        Map<String, IdentifiedInterval> perStratum = new TreeMap<>(StratifiedBounds.interval(truth, UNIT, assumptions).perStratum());
-        double lower = 0;
-        double upper = 0;
-        for (Map.Entry<String, IdentifiedInterval> e : perStratum.entrySet()) {
-            double w = (double) sample.pooled(e.getKey()).total() / sample.pooled().total();
-            lower += w * e.getValue().lower();
-            upper += w * e.getValue().upper();
-        }
-        return IdentifiedInterval.of(lower, upper);
     }
 }
