@@ -21,7 +21,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
  * the population's (random shares are {@link StrataSharesCoverageTest}'s subject) and the target
  * is the share-weighted combination of the true stratum intervals; instrument levels enter through Manski's (1990)
  * intersection, which does not depend on the level shares. Instrument studies use Bonferroni
- * over cells (DESIGN.md §2), so their bands are expected to be conservative.
+ * over cells, so their bands are expected to be conservative.
  */
 class StudyBandsCoverageTest {
 
