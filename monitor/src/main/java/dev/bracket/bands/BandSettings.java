@@ -18,7 +18,7 @@ import java.util.Set;
  *
  * @param level        confidence level 1 - alpha, in (0, 1)
  * @param methods      the bands wanted (reported in {@link BandMethod} order)
- * @param variance     where the fixed-horizon band takes the arms' variances from
+ * @param variance     where the bands take the arms' spreads from
  * @param plannedCount tuning of the anytime band (see {@link AnytimeBand}); fix it before the data arrive
  */
 public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis variance, long plannedCount) {
@@ -66,7 +66,7 @@ public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis 
         for (BandMethod m : methods) {
             out.add(switch (m) {
                 case FIXED_HORIZON -> FixedHorizonBand.of(cells, range, assumptions, level, variance, estimate);
-                case ANYTIME -> new AnytimeBand(level, plannedCount).of(cells, range, assumptions, estimate);
+                case ANYTIME -> new AnytimeBand(level, plannedCount, variance).of(cells, range, assumptions, estimate);
             });
         }
         return List.copyOf(out);

@@ -63,14 +63,18 @@ class CalcBandsTest {
     }
 
     @Test
-    @DisplayName("without SDs the fixed band uses the range bound and says so; the anytime band does not change")
+    @DisplayName("without SDs both bands use the largest spread the range allows and say so")
     void withoutSdsTheRangeBoundStandsIn() throws IOException {
         JsonNode without = bands("--assume", "mtr-positive,mts-positive", "--json");
         JsonNode with = bands("--treated-sd", "0.48", "--control-sd", "0.5", "--assume", "mtr-positive,mts-positive", "--json");
         assertTrue(without.get(0).get("basis").asText().contains("(b-a)^2/4"), without.toString());
         // Popoviciu's (b-a)^2/4 = 0.25 exceeds both sample variances, so the band is wider.
         assertTrue(without.get(0).get("upper").asDouble() > with.get(0).get("upper").asDouble());
-        assertEquals(with.get(1), without.get(1));
+        // Bhatia & Davis (2000): variance <= (b - mean)(mean - a) = 0.62 * 0.38 > 0.48^2 and 0.48 * 0.52 < 0.5^2,
+        // so the anytime band without SDs uses a larger treated spread and a smaller control spread.
+        assertTrue(without.get(1).get("basis").asText().contains("largest spreads the range allows"), without.toString());
+        assertTrue(with.get(1).get("basis").asText().contains("observed spreads"), with.toString());
+        assertTrue(without.get(1).get("upper").asDouble() != with.get(1).get("upper").asDouble(), without + " vs " + with);
     }
 
     @Test
@@ -96,7 +100,7 @@ class CalcBandsTest {
         int row = lines.indexOf(lines.stream().filter(l -> l.startsWith("worst-case ")).findFirst().orElseThrow());
         assertTrue(lines.get(row + 1).trim().startsWith("fixed 95% band"), r.out());
         assertTrue(lines.get(row + 2).trim().startsWith("anytime 95% band"), r.out());
-        assertTrue(r.out().contains("(b-a)^2/4") && r.out().contains("no standard deviation needed"), r.out());
+        assertTrue(r.out().contains("(b-a)^2/4") && r.out().contains("largest spreads the range allows"), r.out());
         assertTrue(r.out().contains("alert on the anytime band"), r.out());
     }
 
