@@ -1,6 +1,15 @@
-package dev.bracket.bounds;
+package dev.bracket.bench;
 
 import dev.bracket.bands.BandSettings;
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.IndependentInstrumentBounds;
+import dev.bracket.bounds.InstrumentAssumption;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeKind;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.StudyCells;
 import dev.bracket.report.StudyReport;
 
 import java.lang.management.ManagementFactory;
@@ -12,16 +21,16 @@ import java.util.Locale;
 import java.util.SplittableRandom;
 
 /**
- * What the monitor pays per study and publish for bounds under an independent instrument: the
- * time of {@link StudyReport#of} with both confidence bands (what the bound updater runs for
- * every window of a study it publishes), for 2, 3 and 4 instrument levels, with one assumption
- * set and with the default of every single assumption, beside the mean-independence bounds for
- * comparison. Each call gets fresh cell counts (two-sided compliance, about 10,000 units per
- * level). Every configuration first runs once unmeasured (to warm the JIT on all code paths),
- * then ROUNDS rounds of CALLS calls each; prints the median round, in CPU microseconds of the
- * calling thread per publish,
- * and the machine's load average (the machine is shared: compare figures within one run). A
- * guide, asserts nothing, not part of the test suite.
+ * What the monitor pays per study and publish for bounds under an independent instrument
+ * ({@link IndependentInstrumentBounds}): the time of {@link StudyReport#of} with both confidence
+ * bands (what the bound updater runs for every window of a study it publishes), for 2, 3 and 4
+ * instrument levels, with one assumption set and with the default of every single assumption,
+ * beside the mean-independence bounds for comparison. Each call gets fresh cell counts
+ * (two-sided compliance, about 10,000 units per level). Every configuration first runs once
+ * unmeasured (to warm the JIT on all code paths), then ROUNDS rounds of CALLS calls each; prints
+ * the median round, in CPU microseconds of the calling thread per publish, and the machine's
+ * load average (the machine is shared: compare figures within one run). No broker and no waits.
+ * A guide, asserts nothing, not part of the test suite; run by {@code bench/run instruments}.
  *
  * <pre>
  * IndependentInstrumentBenchmark [CALLS] [ROUNDS]
