@@ -15,6 +15,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.TreeMap;
 
 /**
  * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
@@ -81,6 +82,18 @@ public final class AlertEvaluator {
         if (counts != null) {
             counts.record(clock.instant(), accepted, rejected, outOfRange);
         }
+    }
+
+    /** Per study, when its last event arrived; the evaluator's start stands in until one has. */
+    public synchronized Map<String, Instant> lastEvents() {
+        Map<String, Instant> out = new TreeMap<>();
+        traffic.forEach((study, counts) -> out.put(study, counts.lastEventAt()));
+        return out;
+    }
+
+    /** The time on the evaluator's clock. */
+    Instant now() {
+        return clock.instant();
     }
 
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */

@@ -105,7 +105,7 @@ public final class AlertService implements AutoCloseable {
 
     /** The body of {@code GET /api/alerts}. */
     public ObjectNode apiView() {
-        return AlertJson.listing(evaluator.firing(), recent.newestFirst());
+        return AlertJson.listing(evaluator.firing(), recent.newestFirst(), evaluator.lastEvents(), evaluator.now());
     }
 
     public List<AlertState> firing() {

@@ -152,7 +152,10 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             } catch (JsonProcessingException e) {
                 throw new IllegalStateException("cannot encode the report of " + key, e);
             }
-            PublishedReport published = new PublishedReport(study.id(), window.name(), now, report.report());
+            boolean cumulative = window.kind() == WindowSpec.Kind.CUMULATIVE;
+            PublishedReport published = new PublishedReport(study.id(), window.name(),
+                    cumulative ? null : Instant.ofEpochMilli(report.start()), cumulative ? null : Instant.ofEpochMilli(report.end()),
+                    now, report.report());
             latest.put(published);
             try {
                 listener.accept(published);
