@@ -190,6 +190,17 @@ class CalcCommandTest {
 
     // --cells: CSV input with strata and instrument levels.
 
+    @Test
+    @DisplayName("--json: an SD that was not given is null, not 0 (README: missing numbers are null)")
+    void sdNotGivenIsNull() throws Exception {
+        JsonNode none = JSON.readTree(run(with(EXAMPLE, "--json")).out()).get("arms");
+        assertTrue(none.get("treated").get("sd").isNull());
+        assertTrue(none.get("control").get("sd").isNull());
+        JsonNode one = JSON.readTree(run(with(EXAMPLE, "--json", "--treated-sd", "0.3")).out()).get("arms");
+        assertEquals(0.3, one.get("treated").get("sd").asDouble());
+        assertTrue(one.get("control").get("sd").isNull());
+    }
+
     private static Path write(Path dir, String name, String text) throws IOException {
         Path file = dir.resolve(name);
         Files.writeString(file, text, StandardCharsets.UTF_8);
