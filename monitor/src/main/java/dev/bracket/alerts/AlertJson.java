@@ -53,8 +53,11 @@ public final class AlertJson {
         o.put("firingSince", t.firingSince().toString());
         o.put("summary", t.summary());
         o.set("evidence", evidence(t.evidence()));
+        // A per-study alert (stalled stream, data quality) rests on no assumption: no cautions about them.
         ArrayNode cautions = o.putArray("cautions");
-        Cautions.ALL.forEach(cautions::add);
+        if (perCell) {
+            Cautions.ALL.forEach(cautions::add);
+        }
         return o;
     }
 
