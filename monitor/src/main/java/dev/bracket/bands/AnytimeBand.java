@@ -78,7 +78,9 @@ public final class AnytimeBand {
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions) {
         int k = Math.max(1, BoxProjection.cellCount(cells));
         String basis = k == 1 ? singleCellBasis : basis(k);
-        if (StratifiedBounds.interval(cells, range, assumptions).overall().status() == BoundStatus.INSUFFICIENT_DATA) {
+        // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
+        if (StratifiedBounds.interval(cells, range, assumptions).overall().status() == BoundStatus.INSUFFICIENT_DATA
+                || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         NormalMixtureBoundary boundary = k == 1 ? singleCellBoundary : boundary(k);

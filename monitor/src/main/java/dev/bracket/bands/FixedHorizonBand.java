@@ -52,7 +52,8 @@ public final class FixedHorizonBand {
     public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                     VarianceBasis variance) {
         IdentifiedInterval estimate = StratifiedBounds.interval(cells, range, assumptions).overall();
-        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
+        // A stratum seen in one arm only has no sampling model here for its missing mean: no band yet.
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells) || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
         if (estimate.isBounded() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {

@@ -37,7 +37,7 @@ public final class ReportTable {
                 appendBand(out, format, b);
             }
             for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {
-                appendInterval(out, format, "  stratum " + s.getKey(), s.getValue(), "");
+                appendInterval(out, format, "  stratum " + (s.getKey().isEmpty() ? "(none given)" : s.getKey()), s.getValue(), "");
             }
         }
         out.append('\n');

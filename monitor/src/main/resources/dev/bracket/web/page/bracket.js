@@ -277,7 +277,7 @@ function table(report) {
     t.appendChild(tr);
     (row.strata || []).forEach(s => {
       const sr = el("tr", {class: "stratum"});
-      sr.appendChild(el("td", {class: "text"}, "stratum " + s.stratum + " alone"));
+      sr.appendChild(el("td", {class: "text"}, (s.stratum === "" ? "events without a stratum" : "stratum " + s.stratum) + " alone"));
       sr.appendChild(el("td", {class: "text"}, s.status));
       sr.appendChild(el("td", {}, s.status === "bounded" ? "[" + fmt(s.lower) + ", " + fmt(s.upper) + "]" : "–"));
       sr.appendChild(el("td", {}, s.width === null ? "–" : s.width.toFixed(4)));
