@@ -33,7 +33,7 @@ public final class ReportTable {
         out.append(String.format(Locale.ROOT, format, "assumptions", "status", "lower", "upper", "width", "sign of effect"));
         for (BoundRow row : report.rows()) {
             appendInterval(out, format, row.assumptions().toString(), row.interval(), row.sign());
-            for (ConfidenceBand b : row.bands()) {
+            for (ConfidenceBand b : row.shownBands()) {
                 appendBand(out, format, b);
             }
             for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {

@@ -201,6 +201,26 @@ class CalcCommandTest {
         assertTrue(one.get("control").get("sd").isNull());
     }
 
+    @Test
+    @DisplayName("a refuted row shows only bands that say refuted, in the table and in JSON")
+    void refutedRowHasNoBands() throws Exception {
+        // mu1 < mu0 contradicts mtr-positive with mts-positive (Manski & Pepper 2000: the pair gives [0, mu1 - mu0]).
+        String[] args = replacing("--treated-mean", "0.40");
+        JsonNode rows = JSON.readTree(run(with(args, "--json")).out()).get("bounds");
+        JsonNode refuted = rows.get(1);
+        assertEquals("refuted", refuted.get("status").asText());
+        refuted.path("bands").forEach(b -> assertEquals("refuted", b.get("status").asText(), b.toString()));
+        assertEquals(2, rows.get(0).get("bands").size());
+        List<String> table = run(args).out().lines().toList();
+        int at = table.indexOf(table.stream().filter(l -> l.startsWith("mtr-positive,mts-positive")).findFirst().orElseThrow());
+        for (String line : table.subList(at + 1, table.size())) {
+            if (!line.trim().contains("% band")) {
+                break;
+            }
+            assertTrue(line.contains("refuted") && !line.contains("negative") && !line.contains("positive"), line);
+        }
+    }
+
     private static Path write(Path dir, String name, String text) throws IOException {
         Path file = dir.resolve(name);
         Files.writeString(file, text, StandardCharsets.UTF_8);

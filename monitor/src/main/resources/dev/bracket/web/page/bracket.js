@@ -241,9 +241,10 @@ function legend() {
 
 // ---- the table ----------------------------------------------------------------------------
 
-function bandCell(row, b) {
-  // A refuted row has no band to read: the assumptions themselves are contradicted.
-  if (row.status === "refuted") return el("td", {}, "refuted");
+// A refuted row carries no bands (no interval to put them around): its cells say so.
+function bandCell(row, kind) {
+  const b = (row.bands || []).find(x => x.method === kind.method && x.level === kind.level);
+  if (!b) return el("td", {}, row.status === "refuted" ? "none: refuted" : "–");
   return el("td", {class: "sign-" + b.sign}, b.status !== "bounded" ? b.status : "[" + fmt(b.lower) + ", " + fmt(b.upper) + "]");
 }
 
@@ -273,7 +274,7 @@ function table(report) {
     tr.appendChild(el("td", {}, row.status === "bounded" ? "[" + fmt(row.lower) + ", " + fmt(row.upper) + "]" : "–"));
     tr.appendChild(el("td", {}, row.width === null ? "–" : row.width.toFixed(4)));
     tr.appendChild(el("td", {class: "text sign-" + row.sign}, signText(row)));
-    (row.bands || []).forEach(b => tr.appendChild(bandCell(row, b)));
+    bandKinds.forEach(k => tr.appendChild(bandCell(row, k)));
     t.appendChild(tr);
     (row.strata || []).forEach(s => {
       const sr = el("tr", {class: "stratum"});
