@@ -7,6 +7,11 @@
 const charts = new Map();   // "study|window|assumptions|bands" -> uPlot instance
 const JOIN = ",";           // how assumption sets are written everywhere: the --assume syntax
 
+// Three significant digits, signed: short enough for a lane's right-hand text.
+function short(v) {
+  return (v >= 0 ? "+" : "") + (+v.toPrecision(3));
+}
+
 function fmt(v) {
   return v === null || v === undefined ? "–" : (v >= 0 ? "+" : "") + v.toFixed(4);
 }
@@ -169,11 +174,11 @@ function verdict(row) {
   const basis = band && band.status === "bounded" ? band : null;
   const lo = basis ? basis.lower : row.lower, hi = basis ? basis.upper : row.upper;
   const what = basis ? basis.method + " band" : "interval";
-  if (row.excludesZero && lo > 0 && row.lower > 0) return {kind: "positive", head: "positive sign", text: what + " clears 0 by " + lo.toFixed(4)};
-  if (row.excludesZero && hi < 0 && row.upper < 0) return {kind: "negative", head: "negative sign", text: what + " clears 0 by " + (-hi).toFixed(4)};
-  if (lo > 0) return {kind: "none", head: "no sign", text: "interval reaches 0; " + what + " " + lo.toFixed(4) + " above"};
-  if (hi < 0) return {kind: "none", head: "no sign", text: "interval reaches 0; " + what + " " + (-hi).toFixed(4) + " below"};
-  return {kind: "none", head: "no sign", text: what + " spans 0: " + fmt(lo) + " to " + fmt(hi)};
+  if (row.excludesZero && lo > 0 && row.lower > 0) return {kind: "positive", head: "positive sign", text: what + " clears 0 by " + +lo.toPrecision(3)};
+  if (row.excludesZero && hi < 0 && row.upper < 0) return {kind: "negative", head: "negative sign", text: what + " clears 0 by " + +(-hi).toPrecision(3)};
+  if (lo > 0) return {kind: "none", head: "no sign", text: "interval reaches 0; " + what + " " + +lo.toPrecision(3) + " above"};
+  if (hi < 0) return {kind: "none", head: "no sign", text: "interval reaches 0; " + what + " " + +(-hi).toPrecision(3) + " below"};
+  return {kind: "none", head: "no sign", text: what + " spans 0: " + short(lo) + " to " + short(hi)};
 }
 
 function niceStep(span) {
@@ -338,6 +343,11 @@ function drawSeries(holder, study, series) {
     holder.appendChild(fig);
   }
   fig.appendChild(el("figcaption", {}, series.assumptions.join(JOIN) + " over time"));
+  if (series.time.length < 2) {
+    // one report has no span of time to draw; the chart appears with the second
+    fig.appendChild(el("p", {class: "quiet note"}, "One report so far; the chart starts with the next."));
+    return;
+  }
   chart = new uPlot(chartOptions(Math.max(300, fig.clientWidth), bands), data, fig);
   charts.set(key, chart);
 }
