@@ -253,6 +253,29 @@ class CalcCommandTest {
     }
 
     @Test
+    @DisplayName("--cells: a stratum with treated units only is reported with its worst case; the study stays bounded")
+    void stratumWithOneArm(@TempDir Path dir) throws IOException {
+        Path csv = write(dir, "one-arm.csv", """
+                stratum,arm,n,mean
+                north,treated,30,6.0
+                north,control,70,4.0
+                pilot,treated,20,7.5
+                """);
+        Run r = run("calc", "--min", "0", "--max", "10", "--cells", csv.toString(), "--assume", "worst-case", "--json");
+        assertEquals(0, r.exitCode(), r.err());
+        JsonNode row = JSON.readTree(r.out()).get("bounds").get(0);
+        // Manski (1990): north p = 0.3 gives [-4.0, 6.0] (above); pilot p = 1 gives [7.5 - 10, 7.5 - 0];
+        // weights 100/120 and 20/120.
+        assertEquals("bounded", row.get("status").asText());
+        assertEquals((100 * -4.0 + 20 * -2.5) / 120, row.get("lower").asDouble(), 1e-12);
+        assertEquals((100 * 6.0 + 20 * 7.5) / 120, row.get("upper").asDouble(), 1e-12);
+        JsonNode pilot = row.get("strata").get(1);
+        assertEquals("pilot", pilot.get("stratum").asText());
+        assertEquals(-2.5, pilot.get("lower").asDouble(), 1e-12);
+        assertEquals(7.5, pilot.get("upper").asDouble(), 1e-12);
+    }
+
+    @Test
     @DisplayName("--cells with an instrument column reproduces the vitamin A bounds [-0.1946, 0.0054]")
     void cellsWithInstrument(@TempDir Path dir) throws IOException {
         // Sommer et al. (1986) counts as in Imbens & Rubin (1997), Table 1 (recalled from memory);
