@@ -15,6 +15,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.TreeMap;
 
 /**
  * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
@@ -112,9 +113,14 @@ public final class AlertEvaluator {
      * the first start).
      */
     public synchronized Map<String, Instant> lastEvents() {
-        Map<String, Instant> out = new HashMap<>();
+        Map<String, Instant> out = new TreeMap<>();
         traffic.forEach((study, counts) -> out.put(study, counts.lastEventAt().orElse(upSince)));
         return out;
+    }
+
+    /** The time on the evaluator's clock. */
+    Instant now() {
+        return clock.instant();
     }
 
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */

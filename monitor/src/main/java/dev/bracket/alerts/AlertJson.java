@@ -13,6 +13,7 @@ import java.time.Duration;
 import java.time.Instant;
 import java.time.format.DateTimeParseException;
 import java.util.List;
+import java.util.Map;
 
 /**
  * The versioned JSON document of an alert transition (schema {@value #SCHEMA}), as it goes to
@@ -52,8 +53,11 @@ public final class AlertJson {
         o.put("firingSince", t.firingSince().toString());
         o.put("summary", t.summary());
         o.set("evidence", evidence(t.evidence()));
+        // A per-study alert (stalled stream, data quality) rests on no assumption: no cautions about them.
         ArrayNode cautions = o.putArray("cautions");
-        Cautions.ALL.forEach(cautions::add);
+        if (perCell) {
+            Cautions.ALL.forEach(cautions::add);
+        }
         return o;
     }
 
@@ -70,9 +74,11 @@ public final class AlertJson {
 
     /**
      * The body of {@code GET /api/alerts}: the alerts firing now and the newest transitions
-     * (each a full {@value #SCHEMA} document), with the cautions.
+     * (each a full {@value #SCHEMA} document), per study when its last event arrived and how long
+     * ago that was at {@code at} (the monitor's start stands in until one has), with the cautions.
      */
-    public static ObjectNode listing(List<AlertState> firing, List<AlertTransition> newestFirst) {
+    public static ObjectNode listing(List<AlertState> firing, List<AlertTransition> newestFirst, Map<String, Instant> lastEvents,
+                                     Instant at) {
         ObjectNode o = MAPPER.createObjectNode();
         o.put("schema", LISTING_SCHEMA);
         ArrayNode now = o.putArray("firing");
@@ -87,6 +93,13 @@ public final class AlertJson {
         }
         ArrayNode recent = o.putArray("recent");
         newestFirst.forEach(t -> recent.add(toJson(t)));
+        ArrayNode studies = o.putArray("studies");
+        lastEvents.forEach((study, last) -> {
+            ObjectNode s = studies.addObject();
+            s.put("study", study);
+            s.put("lastEventAt", last.toString());
+            s.put("silentForSeconds", seconds(Duration.between(last, at)));
+        });
         ArrayNode cautions = o.putArray("cautions");
         Cautions.ALL.forEach(cautions::add);
         return o;

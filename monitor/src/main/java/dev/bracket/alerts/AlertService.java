@@ -3,6 +3,7 @@ package dev.bracket.alerts;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.BoundRow;
 import dev.bracket.report.PublishedReport;
+import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
@@ -73,6 +74,11 @@ public final class AlertService implements AutoCloseable {
     public static AlertService start(Map<String, StudyAlertConfig> studies, AlertOptions options,
                                      Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
+        // Per study, so Prometheus can tell a silent study from a busy one (stalled-stream rules).
+        studies.keySet().forEach(study -> Gauge.builder("bracket.last.event.timestamp", evaluator,
+                        e -> e.lastEvents().get(study).toEpochMilli() / 1000.0)
+                .description("When the study's last event arrived, Unix time (the monitor's start until one has)")
+                .tag("study", study).baseUnit("seconds").register(registry));
         RecentAlerts recent = new RecentAlerts(options.recent());
         List<AlertSink> common = new ArrayList<>(List.of(new LogAlertSink(), recent));
         Instant now = clock.instant();
@@ -145,7 +151,7 @@ public final class AlertService implements AutoCloseable {
 
     /** The body of {@code GET /api/alerts}. */
     public ObjectNode apiView() {
-        return AlertJson.listing(evaluator.firing(), recent.newestFirst());
+        return AlertJson.listing(evaluator.firing(), recent.newestFirst(), evaluator.lastEvents(), evaluator.now());
     }
 
     public List<AlertState> firing() {

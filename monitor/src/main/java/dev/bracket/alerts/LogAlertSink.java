@@ -29,12 +29,15 @@ public final class LogAlertSink implements AlertSink {
 
     /**
      * The line, e.g. {@code alert FIRING rollout/mts-negative/cumulative/sign-identified #1: sign of
-     * the effect identified: positive (…) [id …] …}, ending with the cautions in short.
+     * the effect identified: positive (…) [id …] …}, ending with the cautions in short when the
+     * alert is about an interval; per-study alerts (a stalled stream, data quality) rest on no
+     * assumption and carry none.
      */
     static String line(AlertTransition t) {
         String since = t.kind() == TransitionKind.RESOLVED ? "; firing since " + t.firingSince() : "";
+        String cautions = t.key().rule().perCell() ? " — only as credible as its assumptions;"
+                + " not clinical or operational advice; defer to local regulation and licensed practice" : "";
         return "alert " + t.kind().id().toUpperCase(Locale.ROOT) + " " + t.key() + " #" + t.sequence() + ": "
-                + t.summary() + since + " [id " + t.transitionId() + "] — only as credible as its assumptions;"
-                + " not clinical or operational advice; defer to local regulation and licensed practice";
+                + t.summary() + since + " [id " + t.transitionId() + "]" + cautions;
     }
 }

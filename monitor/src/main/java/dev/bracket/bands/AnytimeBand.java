@@ -110,7 +110,8 @@ public final class AnytimeBand {
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
                 : sequences == 3 ? singleCellBoxBasis : basis(false, shares > 0, sequences);
-        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA) {
+        // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         if (ends.isPresent()) {

@@ -66,7 +66,8 @@ public final class FixedHorizonBand {
     /** The same, given the study's estimated interval (to spare computing it again). */
     public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                     VarianceBasis variance, IdentifiedInterval estimate) {
-        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
+        // A stratum seen in one arm only has no sampling model here for its missing mean: no band yet.
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells) || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
         if (estimate.isBounded() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {

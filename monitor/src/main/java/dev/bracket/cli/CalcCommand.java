@@ -1,5 +1,6 @@
 package dev.bracket.cli;
 
+import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.Cautions;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
@@ -132,13 +133,28 @@ public final class CalcCommand implements Callable<Integer> {
         StudyReport report = StudyReport.of(input.cells(), range, sets,
                 bands.withVariance(input.everySdGiven() ? VarianceBasis.SAMPLE : VarianceBasis.RANGE_BOUND));
         if (json) {
-            spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter()
-                    .writeValueAsString(ReportJson.toJson(report)));
+            ObjectNode doc = ReportJson.toJson(report);
+            forgetUngivenSds((ObjectNode) doc.get("arms"), input.everySdGiven());
+            spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(doc));
         } else {
             spec.commandLine().getOut().print(ReportTable.render(report));
         }
         spec.commandLine().getOut().flush();
         return 0;
+    }
+
+    /**
+     * An SD that was not given is unknown, not 0 (the arms hold 0 in its place): null in JSON.
+     * From a file, an arm's pooled SD needs every cell's SD, so without them both are null.
+     */
+    private void forgetUngivenSds(ObjectNode arms, boolean everySdGiven) {
+        boolean fromFile = cellsFile != null;
+        if (fromFile ? !everySdGiven : treatedSd == null) {
+            ((ObjectNode) arms.get("treated")).putNull("sd");
+        }
+        if (fromFile ? !everySdGiven : controlSd == null) {
+            ((ObjectNode) arms.get("control")).putNull("sd");
+        }
     }
 
     private OutcomeRange range() {

@@ -30,8 +30,8 @@ import java.util.stream.Collectors;
 @Command(name = "monitor",
         mixinStandardHelpOptions = true,
         description = {
-                "Reads outcome events from Kafka, keeps per-partition statistics with exactly-once commits and",
-                "publishes bound documents for every study, window and assumption set to the bounds topic.",
+                "Reads outcome events from Kafka and publishes the bounds of every study, window and assumption set.",
+                "Keeps per-partition statistics with exactly-once commits; bound documents go to the bounds topic.",
                 "Without kafka.bootstrap.servers in the configuration it starts a single-node Kafka broker in this",
                 "process, keeping its data under broker.data-dir (default ~/.local/state/bracket/kafka)."},
         footer = {"",

@@ -12,6 +12,8 @@ import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 
 import java.io.IOException;
+import java.net.InetAddress;
+import java.net.UnknownHostException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
@@ -25,7 +27,6 @@ import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.Set;
-import java.util.UUID;
 import java.util.regex.Pattern;
 
 /**
@@ -47,7 +48,7 @@ import java.util.regex.Pattern;
  * max-event-bytes:    larger events are rejected
  * max-clock-skew:     event times further ahead of the record timestamp or the clock are rejected
  * threads:            aggregation group members this instance runs (each its own consumer and transactions)
- * group, instance:    consumer group id; a stable name for this instance (transactional id)
+ * group, instance:    consumer group id; a stable name for this instance (transactional id; default <group>-<host name>)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
  * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertSettings}
@@ -157,10 +158,11 @@ public record BracketConfig(
         if (port > 65_535) {
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
+        String group = name(root.get("group"), "bracket");
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
                 bands, commit, publish, progress, (int) maxBytes, skew, (int) threads,
-                name(root.get("group"), "bracket"),
-                name(root.get("instance"), "instance-" + UUID.randomUUID()),
+                group,
+                name(root.get("instance"), defaultInstance(group)),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
                 (int) port, AlertSettings.options(root.get("alerts")));
@@ -364,6 +366,22 @@ public record BracketConfig(
             throw node.fail("must be a Kafka topic name (letters, digits, '.', '_', '-'), was '" + s + "'");
         }
         return s;
+    }
+
+    /**
+     * {@code <group>-<host name>}: stable across restarts on one machine, so a restarted monitor
+     * takes over (and aborts) its predecessor's open transaction at once instead of waiting for
+     * the transaction timeout. Two monitors of one group on one machine need their own {@code instance}.
+     */
+    static String defaultInstance(String group) {
+        String host;
+        try {
+            host = InetAddress.getLocalHost().getHostName();
+        } catch (UnknownHostException e) {
+            host = System.getenv().getOrDefault("HOSTNAME", "localhost");
+        }
+        String clean = host.replaceAll("[^A-Za-z0-9._-]", "-");
+        return group + "-" + (clean.isEmpty() ? "localhost" : clean);
     }
 
     private static String name(ConfigNode node, String fallback) {

@@ -91,9 +91,9 @@ public final class ReportJson {
                 interval(s, iv);
             });
         }
-        if (!row.bands().isEmpty()) {
+        if (!row.shownBands().isEmpty()) {
             ArrayNode bands = o.putArray("bands");
-            row.bands().forEach(b -> bands.add(band(b)));
+            row.shownBands().forEach(b -> bands.add(band(b)));
         }
         return o;
     }

@@ -40,11 +40,11 @@ public final class ReportTable {
         for (BoundRow row : report.rows()) {
             appendInterval(out, format, row.assumptions().toString(), instrumentLevels ? row.assumptions().instrument().id() : "",
                     row.interval(), row.sign());
-            for (ConfidenceBand b : row.bands()) {
+            for (ConfidenceBand b : row.shownBands()) {
                 appendBand(out, format, b);
             }
             for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {
-                appendInterval(out, format, "  stratum " + s.getKey(), "", s.getValue(), "");
+                appendInterval(out, format, "  stratum " + (s.getKey().isEmpty() ? "(none given)" : s.getKey()), "", s.getValue(), "");
             }
         }
         out.append('\n');

@@ -1,12 +1,14 @@
 package dev.bracket.stream;
 
 import com.fasterxml.jackson.core.JsonProcessingException;
+import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.report.ReportJson;
+import dev.bracket.report.StudyReport;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
@@ -23,6 +25,7 @@ import java.time.Duration;
 import java.time.Instant;
 import java.util.ArrayList;
 import java.util.HashMap;
+import java.util.HashSet;
 import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
@@ -51,6 +54,8 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final Set<String> pending = new LinkedHashSet<>();
     private final Map<String, Long> lastPublishNanos = new HashMap<>();
     private final Map<String, Long> revisions = new HashMap<>();
+    /** study + stratum already warned about for having units in one arm only. */
+    private final Set<String> oneArmedWarned = new HashSet<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     private final boolean windowed;
     private final Consumer<PublishedReport> listener;
@@ -154,7 +159,11 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             } catch (JsonProcessingException e) {
                 throw new IllegalStateException("cannot encode the report of " + key, e);
             }
-            PublishedReport published = new PublishedReport(study.id(), window.name(), now, report.report());
+            boolean cumulative = window.kind() == WindowSpec.Kind.CUMULATIVE;
+            warnOneArmed(study.id(), report.report());
+            PublishedReport published = new PublishedReport(study.id(), window.name(),
+                    cumulative ? null : Instant.ofEpochMilli(report.start()), cumulative ? null : Instant.ofEpochMilli(report.end()),
+                    now, report.report());
             latest.put(published);
             try {
                 listener.accept(published);
@@ -169,6 +178,18 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     /** When a report was last published (epoch millis), 0 before the first; safe from any thread. */
     public long lastReportMillis() {
         return lastReportMillis;
+    }
+
+    /** Once per study and stratum: its interval is the worst case whatever the assumptions, and bands wait. */
+    private void warnOneArmed(String study, StudyReport report) {
+        for (String stratum : StratifiedBounds.oneArmed(report.cells())) {
+            if (oneArmedWarned.add(study + '\u0000' + stratum)) {
+                LOG.warn("study {}: stratum '{}' has units in one arm only; its interval is the worst case whatever the"
+                        + " assumptions (the missing arm's mean may be anywhere in the outcome range), and the study's"
+                        + " confidence bands wait until both arms are seen there{}", study, stratum,
+                        stratum.isEmpty() ? " (the stratum of events without a stratum field)" : "");
+            }
+        }
     }
 
     /** Stops the loop and waits for it. */

@@ -1,6 +1,7 @@
 package dev.bracket.stream;
 
 import io.micrometer.core.instrument.Counter;
+import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Timer;
 
@@ -40,14 +41,16 @@ public final class StreamMetrics {
 
     public StreamMetrics(MeterRegistry registry) {
         this.registry = registry;
-        committed = Counter.builder("bracket.transactions").tag("result", "committed")
-                .description("Transactions that committed partial statistics and input offsets").register(registry);
-        aborted = Counter.builder("bracket.transactions").tag("result", "aborted")
-                .description("Transactions aborted after an error; their input is processed again").register(registry);
+        // One help text for both results: Prometheus shows a single one per metric name.
+        String transactions = "Kafka transactions of partial statistics and input offsets, by result:"
+                + " committed, or aborted after an error (their input is processed again)";
+        committed = Counter.builder("bracket.transactions").tag("result", "committed").description(transactions).register(registry);
+        aborted = Counter.builder("bracket.transactions").tag("result", "aborted").description(transactions).register(registry);
         restores = Counter.builder("bracket.partitions.restored")
                 .description("Input partitions whose statistics were restored from the partials topic").register(registry);
         commitTime = Timer.builder("bracket.transaction.duration").description("Time to write partials and commit one transaction").register(registry);
-        registry.gauge("bracket.partitions.assigned", assigned);
+        Gauge.builder("bracket.partitions.assigned", assigned, AtomicInteger::get)
+                .description("Input partitions this monitor instance reads now").register(registry);
     }
 
     public MeterRegistry registry() {

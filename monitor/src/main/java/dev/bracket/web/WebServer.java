@@ -9,6 +9,7 @@ import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpStatus;
 import io.javalin.http.staticfiles.Location;
+import io.micrometer.core.instrument.binder.jvm.JvmGcMetrics;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 
 import java.util.List;
@@ -30,6 +31,7 @@ import java.util.function.Supplier;
  *   GET /api/studies              {@link StudyDocuments#list}
  *   GET /api/studies/{id}         {@link StudyDocuments#study}; 404 with {"error": ...} for an unknown study
  *   GET /api/studies/{id}/history {@link StudyDocuments#history}
+ *   GET /api/studies/{id}/history.csv the same history as CSV ({@link HistoryCsv})
  *   GET /api/alerts               alerts firing now and the newest transitions ({@code AlertJson#listing});
  *                                 503 with {"error": ...} until {@link #showAlerts} is called
  *   GET /metrics                  Prometheus text: the registry passed in, with {@link StudyGauges}
@@ -51,6 +53,7 @@ public final class WebServer implements AutoCloseable {
     private final ReportHistory history;
     private final StudyGauges gauges;
     private final Javalin app;
+    private final JvmGcMetrics gcMetrics;
     private ScheduledExecutorService sampler;
     private String host;
     private volatile Supplier<? extends JsonNode> alerts;
@@ -67,6 +70,7 @@ public final class WebServer implements AutoCloseable {
         this.registry = registry;
         this.history = new ReportHistory(historyCapacity);
         this.gauges = new StudyGauges(registry, latest);
+        this.gcMetrics = ProcessMetrics.bindTo(registry);
         this.app = Javalin.create(config -> {
             config.showJavalinBanner = false;
             config.staticFiles.add("/dev/bracket/web/page", Location.CLASSPATH);
@@ -77,6 +81,18 @@ public final class WebServer implements AutoCloseable {
         app.get("/api/studies/{id}/history", ctx -> {
             refresh();
             found(ctx, StudyDocuments.history(history, ctx.pathParam("id")));
+        });
+        app.get("/api/studies/{id}/history.csv", ctx -> {
+            refresh();
+            Optional<String> csv = HistoryCsv.of(history, ctx.pathParam("id"));
+            if (csv.isPresent()) {
+                ctx.contentType("text/csv; charset=utf-8")
+                        .header("Content-Disposition", "attachment; filename=\"" + ctx.pathParam("id").replaceAll("[^A-Za-z0-9._-]", "_")
+                                + "-history.csv\"")
+                        .result(csv.get());
+            } else {
+                found(ctx, Optional.empty());
+            }
         });
         app.get("/api/alerts", ctx -> {
             Supplier<? extends JsonNode> view = alerts;
@@ -169,6 +185,7 @@ public final class WebServer implements AutoCloseable {
             sampler.shutdownNow();
         }
         app.stop();
+        gcMetrics.close();
     }
 
     private void found(Context ctx, Optional<? extends JsonNode> document) throws JsonProcessingException {

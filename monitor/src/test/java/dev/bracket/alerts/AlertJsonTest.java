@@ -124,5 +124,9 @@ class AlertJsonTest {
                 .contains("local regulation");
         assertThat(LogAlertSink.line(ts.get(1))).startsWith("alert RESOLVED rollout/mts-negative/cumulative/sign-identified #2")
                 .contains("firing since 2026-03-01T09:00:00Z");
+        // A stalled stream rests on no assumption: neither its line nor its document speaks of them.
+        AlertTransition stall = Transitions.alternating(AlertKey.perStudy("rollout", AlertRule.STREAM_STALLED), 1).get(0);
+        assertThat(LogAlertSink.line(stall)).startsWith("alert FIRING rollout").doesNotContain("assumptions");
+        assertThat(AlertJson.toJson(stall).path("cautions")).isEmpty();
     }
 }

@@ -101,6 +101,11 @@ class BracketConfigTest {
         assertThat(c.bands().methods()).containsExactlyInAnyOrder(BandMethod.values());
         assertThat(c.brokerDataDir().toString()).endsWith("bracket/kafka");
         assertThat(c.withBootstrapServers("localhost:1").usesEmbeddedBroker()).isFalse();
+        // Without instance: a name that survives a restart (the same on every parse), from group and host.
+        assertThat(c.instance()).startsWith("bracket-").matches("[A-Za-z0-9._-]+")
+                .isEqualTo(BracketConfig.parse("min.yaml", "studies:\n  - id: s\n    outcome: {min: 0, max: 1}\n").instance());
+        assertThat(BracketConfig.parse("g.yaml", "group: other\nstudies:\n  - id: s\n    outcome: {min: 0, max: 1}\n").instance())
+                .isEqualTo("other-" + c.instance().substring("bracket-".length()));
     }
 
     @Test

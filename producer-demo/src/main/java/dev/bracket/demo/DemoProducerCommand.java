@@ -50,10 +50,11 @@ public final class DemoProducerCommand implements Callable<Integer> {
     double rate;
 
     @Option(names = "--duration", paramLabel = "TIME", converter = DurationText.Converter.class,
-            description = "Stop after this long, e.g. 90s or 10m (default: no limit).")
+            description = "Stop after this long, e.g. 90s or 10m. With --count too, whichever comes first"
+                    + " (default: no limit; without either the producer runs until Ctrl-C or the file ends).")
     Duration duration;
 
-    @Option(names = "--count", paramLabel = "N", description = "Stop after N events (default: no limit).")
+    @Option(names = "--count", paramLabel = "N", description = "Stop after N events. With --duration too, whichever comes first (default: no limit).")
     long count;
 
     @CommandLine.Mixin

@@ -87,6 +87,19 @@ class DemoProducerTest {
     }
 
     @Test
+    @DisplayName("with both a count and a duration, whichever is reached first stops the feed")
+    void firstLimitWins() {
+        MockProducer<String, String> byCount = mock();
+        new DemoProducer(byCount, "t", 0, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+                new DemoProducer.Limits(50, Duration.ofSeconds(30)), () -> false);
+        assertThat(byCount.history()).hasSize(50);
+        MockProducer<String, String> byTime = mock();
+        new DemoProducer(byTime, "t", 100, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+                new DemoProducer.Limits(1_000_000, Duration.ofMillis(300)), () -> false);
+        assertThat(byTime.history().size()).isBetween(1, 31);
+    }
+
+    @Test
     @DisplayName("a file is sent line by line as written; blank lines are skipped and non-JSON lines are counted, not dropped")
     void fileLinesAreSentVerbatim() {
         String file = """
