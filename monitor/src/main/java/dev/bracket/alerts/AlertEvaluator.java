@@ -62,7 +62,7 @@ public final class AlertEvaluator {
             return List.of();
         }
         List<AlertTransition> out = new ArrayList<>();
-        for (CellRule rule : config.cellRules()) {
+        for (RowRule rule : config.cellRules()) {
             AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
             Verdict verdict = rule.judge(snapshot.interval(), band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());

@@ -21,7 +21,7 @@ import java.util.concurrent.TimeUnit;
 /**
  * Alerting as the monitor runs it: the evaluator, its sinks and its clock. The bound updater
  * calls {@link #onReport} after each update, the event consumer {@link #recordEvents}; a
- * scheduler judges the per-study rules every {@link AlertOptions#tick()}. At start, state is
+ * scheduler judges the per-study rules every {@link AlertsConfig#tick()}. At start, state is
  * restored from the alerts topic, so a restart does not fire again what already fired.
  */
 public final class AlertService implements AutoCloseable {
@@ -34,7 +34,7 @@ public final class AlertService implements AutoCloseable {
     private final ScheduledExecutorService clockThread;
 
     /** Wires given parts and starts the clock; {@link #start} builds the parts from configuration. */
-    public AlertService(AlertEvaluator evaluator, AlertDispatcher dispatcher, RecentAlerts recent, AlertOptions options) {
+    public AlertService(AlertEvaluator evaluator, AlertDispatcher dispatcher, RecentAlerts recent, AlertsConfig options) {
         this.evaluator = evaluator;
         this.dispatcher = dispatcher;
         this.recent = recent;
@@ -54,7 +54,7 @@ public final class AlertService implements AutoCloseable {
      * @param kafka   client properties of the Kafka cluster holding the alerts topic; empty for no
      *                topic (state then lives in memory only, and a restart may fire again)
      */
-    public static AlertService start(Map<String, StudyAlertConfig> studies, AlertOptions options,
+    public static AlertService start(Map<String, StudyAlertConfig> studies, AlertsConfig options,
                                      Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
         RecentAlerts recent = new RecentAlerts(options.recent());

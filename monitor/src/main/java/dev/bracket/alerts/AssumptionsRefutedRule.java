@@ -16,7 +16,7 @@ import java.util.Map;
  * @param clearMargin a firing alert resolves at once when the band exists again with at least this
  *                    width; 0 disables the margin
  */
-public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
+public record AssumptionsRefutedRule(double clearMargin) implements RowRule {
 
     public AssumptionsRefutedRule {
         if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {

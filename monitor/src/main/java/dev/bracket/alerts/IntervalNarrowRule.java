@@ -15,7 +15,7 @@ import java.util.Map;
  * @param clearMargin a firing alert resolves at once when the band is at least {@code width + clearMargin}
  *                    wide; 0 disables the margin
  */
-public record IntervalNarrowRule(double width, double clearMargin) implements CellRule {
+public record IntervalNarrowRule(double width, double clearMargin) implements RowRule {
 
     public IntervalNarrowRule {
         if (!(width > 0) || Double.isInfinite(width)) {

@@ -16,7 +16,7 @@ import java.util.Map;
  * @param clearMargin a firing alert resolves at once when the band reaches beyond the range by at
  *                    least this much; 0 disables the margin
  */
-public record PracticalEquivalenceRule(double low, double high, double clearMargin) implements CellRule {
+public record PracticalEquivalenceRule(double low, double high, double clearMargin) implements RowRule {
 
     public PracticalEquivalenceRule {
         if (!Double.isFinite(low) || !Double.isFinite(high) || !(low < high)) {

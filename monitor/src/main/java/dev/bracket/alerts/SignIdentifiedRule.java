@@ -16,7 +16,7 @@ import java.util.Map;
  * @param clearMargin a firing alert resolves at once when zero lies inside the band by at least
  *                    this much on both sides; 0 disables the margin (then only clear-after resolves)
  */
-public record SignIdentifiedRule(double clearMargin) implements CellRule {
+public record SignIdentifiedRule(double clearMargin) implements RowRule {
 
     public SignIdentifiedRule {
         if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {

@@ -17,7 +17,7 @@ import java.util.Optional;
  * @param quality    the data-quality rule, if in force
  * @param webhooks   receivers of this study's transitions
  */
-public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, List<CellRule> cellRules,
+public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, List<RowRule> cellRules,
                                Optional<StreamStalledRule> stalled, Optional<DataQualityRule> quality,
                                List<WebhookTarget> webhooks) {
 
@@ -37,7 +37,7 @@ public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, 
         }
         cellRules = List.copyOf(cellRules);
         webhooks = List.copyOf(webhooks);
-        if (cellRules.stream().map(CellRule::rule).distinct().count() != cellRules.size()) {
+        if (cellRules.stream().map(RowRule::rule).distinct().count() != cellRules.size()) {
             throw new IllegalArgumentException("each alert rule may appear once per study");
         }
     }

@@ -3,7 +3,7 @@ package dev.bracket.cli;
 import dev.bracket.report.Cautions;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -110,7 +110,7 @@ public final class CalcCommand implements Callable<Integer> {
     public Integer call() throws IOException {
         OutcomeRange range = range();
         List<AssumptionSet> sets = sets();
-        BandSettings bands = bands();
+        BandConfig bands = bands();
         CalcInput.Cells input = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
         StudyReport report = StudyReport.of(input.cells(), range, sets,
                 bands.withVariance(input.everySdGiven() ? VarianceBasis.SAMPLE : VarianceBasis.RANGE_BOUND));
@@ -151,7 +151,7 @@ public final class CalcCommand implements Callable<Integer> {
         return sets;
     }
 
-    private BandSettings bands() {
+    private BandConfig bands() {
         if (!(level > 0 && level < 1)) {
             throw new InputError("--level must lie strictly between 0 and 1 (for example 0.95), was " + CalcInput.fmt(level));
         }
@@ -161,7 +161,7 @@ public final class CalcCommand implements Callable<Integer> {
             case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
             default -> throw new InputError("--band must be fixed, anytime or both, was '" + band + "'");
         };
-        return new BandSettings(level, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        return new BandConfig(level, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
     }
 
     private CalcInput.Cells cellsFromFlags(OutcomeRange range) {

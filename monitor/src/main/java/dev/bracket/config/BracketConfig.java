@@ -1,9 +1,9 @@
 package dev.bracket.config;
 
-import dev.bracket.alerts.AlertOptions;
+import dev.bracket.alerts.AlertsConfig;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -46,7 +46,7 @@ import java.util.regex.Pattern;
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
- * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertSettings}
+ * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertConfigReader}
  * </pre>
  */
 public record BracketConfig(
@@ -56,7 +56,7 @@ public record BracketConfig(
         TopicNames topics,
         List<WindowSpec> windows,
         Duration grace,
-        BandSettings bands,
+        BandConfig bands,
         Duration commitInterval,
         Duration publishInterval,
         Duration progressInterval,
@@ -67,7 +67,7 @@ public record BracketConfig(
         Map<String, String> kafka,
         Path brokerDataDir,
         int brokerPort,
-        AlertOptions alerts) {
+        AlertsConfig alerts) {
 
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
@@ -123,7 +123,7 @@ public record BracketConfig(
             case "none" -> EnumSet.noneOf(BandMethod.class);
             default -> throw root.get("bands").fail("must be both, fixed, anytime or none");
         };
-        BandSettings bands = new BandSettings(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        BandConfig bands = new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = root.get("max-event-bytes").positiveLong(65_536);
         if (maxBytes > 16 * 1024 * 1024) {
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
@@ -150,7 +150,7 @@ public record BracketConfig(
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
-                (int) port, AlertSettings.options(root.get("alerts")));
+                (int) port, AlertConfigReader.options(root.get("alerts")));
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -213,7 +213,7 @@ public record BracketConfig(
                 throw outcome.get("better").fail(e.getMessage());
             }
             out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume")),
-                    AlertSettings.study(s.get("alerts"))));
+                    AlertConfigReader.study(s.get("alerts"))));
         }
         return out;
     }

@@ -18,14 +18,14 @@ import java.util.function.LongPredicate;
  */
 public final class MergedPartials implements PartialsCodec.Sink {
 
-    private final Map<String, Map<CellKey, Map<SourcePartition, ObservedArms>>> byStudy = new HashMap<>();
+    private final Map<String, Map<PaneKey, Map<SourcePartition, ObservedArms>>> byStudy = new HashMap<>();
     private final Map<SourcePartition, SourceProgress> progress = new HashMap<>();
     private final Set<String> changed = new HashSet<>();
     private boolean watermarkChanged;
 
     @Override
-    public void cell(SourcePartition source, CellKey key, ObservedArms arms) {
-        Map<CellKey, Map<SourcePartition, ObservedArms>> cells = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+    public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
+        Map<PaneKey, Map<SourcePartition, ObservedArms>> cells = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
         if (arms == null) {
             Map<SourcePartition, ObservedArms> sources = cells.get(key);
             if (sources != null && sources.remove(source) != null && sources.isEmpty()) {
@@ -78,8 +78,8 @@ public final class MergedPartials implements PartialsCodec.Sink {
     /** The study's cells of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
         StudyCells out = StudyCells.empty();
-        for (Map.Entry<CellKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
-            CellKey k = e.getKey();
+        for (Map.Entry<PaneKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
+            PaneKey k = e.getKey();
             if (k.window().equals(window) && panes.test(k.paneStart())) {
                 ObservedArms sum = ObservedArms.empty();
                 for (ObservedArms a : e.getValue().values()) {

@@ -33,7 +33,7 @@ public final class PartialsCodec {
 
     /** Receives decoded records; {@code arms} is null for a deleted cell. */
     public interface Sink {
-        void cell(SourcePartition source, CellKey key, ObservedArms arms);
+        void cell(SourcePartition source, PaneKey key, ObservedArms arms);
 
         void progress(SourcePartition source, SourceProgress progress);
     }
@@ -46,7 +46,7 @@ public final class PartialsCodec {
         return Math.floorMod(source.topic().hashCode() * 31 + source.partition(), partitions);
     }
 
-    public static byte[] cellKey(SourcePartition s, CellKey k) {
+    public static byte[] cellKey(SourcePartition s, PaneKey k) {
         ArrayNode a = MAPPER.createArrayNode();
         a.add("cell").add(s.topic()).add(s.partition()).add(k.study()).add(k.stratum()).add(k.level()).add(k.window()).add(k.paneStart());
         return bytes(a);
@@ -99,7 +99,7 @@ public final class PartialsCodec {
             SourcePartition source = new SourcePartition(k.get(1).asText(), k.get(2).asInt());
             switch (k.get(0).asText()) {
                 case "cell" -> {
-                    CellKey cell = new CellKey(k.get(3).asText(), k.get(4).asText(), k.get(5).asText(), k.get(6).asText(), k.get(7).asLong());
+                    PaneKey cell = new PaneKey(k.get(3).asText(), k.get(4).asText(), k.get(5).asText(), k.get(6).asText(), k.get(7).asLong());
                     if (value == null) {
                         sink.cell(source, cell, null);
                     } else {

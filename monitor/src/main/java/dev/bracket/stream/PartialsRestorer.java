@@ -40,7 +40,7 @@ final class PartialsRestorer implements AutoCloseable {
     private static final Duration LIMIT = Duration.ofMinutes(5);
 
     /** One source partition's restored state. */
-    record Restored(Map<CellKey, ObservedArms> cells, SourceProgress progress) {
+    record Restored(Map<PaneKey, ObservedArms> cells, SourceProgress progress) {
     }
 
     private final String topic;
@@ -56,7 +56,7 @@ final class PartialsRestorer implements AutoCloseable {
     }
 
     Map<SourcePartition, Restored> restore(Collection<SourcePartition> sources) {
-        Map<SourcePartition, Map<CellKey, ObservedArms>> cells = new HashMap<>();
+        Map<SourcePartition, Map<PaneKey, ObservedArms>> cells = new HashMap<>();
         Map<SourcePartition, SourceProgress> progress = new HashMap<>();
         sources.forEach(s -> cells.put(s, new HashMap<>()));
         Set<TopicPartition> tps = new HashSet<>();
@@ -64,8 +64,8 @@ final class PartialsRestorer implements AutoCloseable {
         Map<TopicPartition, Long> highWatermarks = highWatermarks(tps);
         PartialsCodec.Sink sink = new PartialsCodec.Sink() {
             @Override
-            public void cell(SourcePartition source, CellKey key, ObservedArms arms) {
-                Map<CellKey, ObservedArms> m = cells.get(source);
+            public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
+                Map<PaneKey, ObservedArms> m = cells.get(source);
                 if (m != null) {
                     if (arms == null) {
                         m.remove(key);

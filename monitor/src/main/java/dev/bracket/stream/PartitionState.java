@@ -33,14 +33,14 @@ public final class PartitionState {
     private final long[] sizeMillis;
     private final long graceMillis;
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
-    private final Map<CellKey, CellAccumulator> cells = new HashMap<>();
+    private final Map<PaneKey, PaneAccumulator> cells = new HashMap<>();
     private final Map<LateKey, Long> late = new HashMap<>();
     // A direct-mapped cache in front of the cell map. Events repeat a few cells, and their
     // strings are the parser's canonical instances, so comparing by identity finds most cells
     // without making a key and looking it up. A miss (or an equal string that is another
     // instance) falls through to the map; anything that removes or replaces cells clears it.
-    private final CellKey[] cachedKeys = new CellKey[CACHE_SLOTS];
-    private final CellAccumulator[] cachedCells = new CellAccumulator[CACHE_SLOTS];
+    private final PaneKey[] cachedKeys = new PaneKey[CACHE_SLOTS];
+    private final PaneAccumulator[] cachedCells = new PaneAccumulator[CACHE_SLOTS];
     private long streamTime = Long.MIN_VALUE;
     private boolean progressDirty;
 
@@ -85,19 +85,19 @@ public final class PartitionState {
         }
     }
 
-    private CellAccumulator cell(String study, String stratum, String level, String window, long pane) {
+    private PaneAccumulator cell(String study, String stratum, String level, String window, long pane) {
         int h = ((study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode()) * 31 + window.hashCode();
         h = h * 31 + Long.hashCode(pane);
         int slot = (h ^ (h >>> 16)) & (CACHE_SLOTS - 1);
-        CellKey k = cachedKeys[slot];
+        PaneKey k = cachedKeys[slot];
         if (k != null && k.paneStart() == pane && k.study() == study && k.stratum() == stratum && k.level() == level
                 && k.window() == window) {
             return cachedCells[slot];
         }
-        CellKey key = new CellKey(study, stratum, level, window, pane);
-        CellAccumulator cell = cells.get(key);
+        PaneKey key = new PaneKey(study, stratum, level, window, pane);
+        PaneAccumulator cell = cells.get(key);
         if (cell == null) {
-            cell = new CellAccumulator();
+            cell = new PaneAccumulator();
             cells.put(key, cell);
         }
         cachedKeys[slot] = key;
@@ -121,14 +121,14 @@ public final class PartitionState {
      * Removes cells whose panes have closed and returns their keys (for tombstones in the
      * partials topic). Closed panes lie before every window a report can still be asked for.
      */
-    public List<CellKey> evictClosed() {
-        List<CellKey> closed = new ArrayList<>();
+    public List<PaneKey> evictClosed() {
+        List<PaneKey> closed = new ArrayList<>();
         Map<String, WindowSpec> byName = new HashMap<>();
         for (WindowSpec w : windows) {
             byName.put(w.name(), w);
         }
-        for (Iterator<Map.Entry<CellKey, CellAccumulator>> it = cells.entrySet().iterator(); it.hasNext(); ) {
-            CellKey key = it.next().getKey();
+        for (Iterator<Map.Entry<PaneKey, PaneAccumulator>> it = cells.entrySet().iterator(); it.hasNext(); ) {
+            PaneKey key = it.next().getKey();
             WindowSpec w = byName.get(key.window());
             if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w.size().toMillis(), key.paneStart())) {
                 closed.add(key);
@@ -142,7 +142,7 @@ public final class PartitionState {
     }
 
     /** Calls {@code sink} with every cell changed since {@link #markClean}. */
-    public void forEachDirty(BiConsumer<CellKey, ObservedArms> sink) {
+    public void forEachDirty(BiConsumer<PaneKey, ObservedArms> sink) {
         cells.forEach((k, c) -> {
             if (c.isDirty()) {
                 sink.accept(k, c.snapshot());
@@ -156,13 +156,13 @@ public final class PartitionState {
 
     /** Marks everything as written. */
     public void markClean() {
-        cells.values().forEach(CellAccumulator::markClean);
+        cells.values().forEach(PaneAccumulator::markClean);
         progressDirty = false;
     }
 
     /** Every cell's current statistics. */
-    public Map<CellKey, ObservedArms> cells() {
-        Map<CellKey, ObservedArms> out = new HashMap<>();
+    public Map<PaneKey, ObservedArms> cells() {
+        Map<PaneKey, ObservedArms> out = new HashMap<>();
         cells.forEach((k, c) -> out.put(k, c.snapshot()));
         return out;
     }
@@ -172,8 +172,8 @@ public final class PartitionState {
     }
 
     /** Puts back a cell read from the partials topic (not marked as changed). */
-    public void restoreCell(CellKey key, ObservedArms arms) {
-        CellAccumulator cell = new CellAccumulator();
+    public void restoreCell(PaneKey key, ObservedArms arms) {
+        PaneAccumulator cell = new PaneAccumulator();
         cell.set(arms);
         cells.put(key, cell);
         clearCache();

@@ -218,7 +218,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             for (PartitionState s : states.values()) {
                 SourcePartition src = s.source();
                 int partition = PartialsCodec.partitionFor(src, partialsPartitions);
-                for (CellKey closed : s.evictClosed()) {
+                for (PaneKey closed : s.evictClosed()) {
                     producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.cellKey(src, closed), null));
                 }
                 s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,

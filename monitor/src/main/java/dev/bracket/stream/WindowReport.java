@@ -1,6 +1,6 @@
 package dev.bracket.stream;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.StudyReport;
@@ -19,7 +19,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
      * cumulative, the watermark's pane for tumbling, and the last {@code size / step} panes
      * ending with the watermark's pane for sliding.
      */
-    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandSettings bands) {
+    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandConfig bands) {
         long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {

@@ -30,7 +30,7 @@ class AlertEvaluatorTest {
     private static final ObservedArms UP = Snapshots.arms(100, 0.6, 100, 0.4);
     private static final ObservedArms DOWN = Snapshots.arms(100, 0.4, 100, 0.6);
 
-    private static StudyAlertConfig config(long minPerArm, int clearAfter, CellRule... rules) {
+    private static StudyAlertConfig config(long minPerArm, int clearAfter, RowRule... rules) {
         return new StudyAlertConfig(minPerArm, BandMethod.ANYTIME, clearAfter, List.of(rules),
                 Optional.empty(), Optional.empty(), List.of());
     }

@@ -32,7 +32,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 class AlertRestartOnBrokerTest {
 
     private static final String TOPIC = "bracket-alerts";
-    private static final AlertOptions OPTIONS = new AlertOptions(TOPIC, Duration.ofHours(1), 50, Duration.ofSeconds(30));
+    private static final AlertsConfig OPTIONS = new AlertsConfig(TOPIC, Duration.ofHours(1), 50, Duration.ofSeconds(30));
     private static final Map<String, StudyAlertConfig> STUDIES = Map.of("rollout", new StudyAlertConfig(30,
             BandMethod.ANYTIME, 3, List.of(new SignIdentifiedRule(0)), Optional.empty(), Optional.empty(), List.of()));
     private static final String KEY = "rollout/mts-negative/cumulative/sign-identified";

@@ -3,7 +3,7 @@ package dev.bracket.alerts;
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.StudyCells;
@@ -60,7 +60,7 @@ class AlertServiceTest {
         AlertEvaluator evaluator = new AlertEvaluator(Map.of("rollout", StudyAlertConfig.defaults()),
                 java.time.Clock.fixed(Snapshots.T0, java.time.ZoneOffset.UTC));
         AlertDispatcher dispatcher = new AlertDispatcher(List.of(new Broken(), recent), Map.of("rollout", List.of(study)), registry);
-        AlertOptions options = new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5));
+        AlertsConfig options = new AlertsConfig("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5));
 
         // p = 1/2, mu1 = 0.6, mu0 = 0.4 on [0, 1]: worst case [-0.4, 0.6] (Manski 1990), mts-negative
         // [0.2, 0.6] (Manski & Pepper 2000), mtr-positive [0, 0.6] (Manski 1997). Bands are the
@@ -68,7 +68,7 @@ class AlertServiceTest {
         ObservedArms arms = Snapshots.arms(5000, 0.6, 5000, 0.4);
         List<AssumptionSet> sets = List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mts-negative"),
                 AssumptionSet.parse("mtr-positive"));
-        StudyReport report = StudyReport.of(StudyCells.single(arms), Snapshots.UNIT, sets, BandSettings.both(0.95));
+        StudyReport report = StudyReport.of(StudyCells.single(arms), Snapshots.UNIT, sets, BandConfig.both(0.95));
         assertThat(report.rows().get(1).bands()).anySatisfy(b -> {
             assertThat(b.method()).isEqualTo(BandMethod.ANYTIME);
             assertThat(b.lower()).isPositive();
@@ -105,7 +105,7 @@ class AlertServiceTest {
         RecentAlerts recent = new RecentAlerts(10);
         AlertService service = new AlertService(new AlertEvaluator(Map.of("rollout", c), clock),
                 new AlertDispatcher(List.of(recent), Map.of(), registry), recent,
-                new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
+                new AlertsConfig("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
         clock.advance(Duration.ofMinutes(2));
         service.tick();
         service.recordEvents("rollout", 1, 0, 0);

@@ -17,7 +17,7 @@ class PartialsCodecTest {
     private final List<Object[]> seen = new ArrayList<>();
     private final PartialsCodec.Sink sink = new PartialsCodec.Sink() {
         @Override
-        public void cell(SourcePartition source, CellKey key, ObservedArms arms) {
+        public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
             seen.add(new Object[] {source, key, arms});
         }
 
@@ -31,7 +31,7 @@ class PartialsCodecTest {
     @DisplayName("cells round-trip bit for bit, including awkward doubles and an empty arm")
     void cellsRoundTripExactly() {
         SourcePartition src = new SourcePartition("outcomes", 2);
-        CellKey key = new CellKey("study \"x\"", "eu/west", "", "cumulative", 0);
+        PaneKey key = new PaneKey("study \"x\"", "eu/west", "", "cumulative", 0);
         ArmStatistics treated = ArmStatistics.of(0.1, 0.2, 1.0 / 3, Math.PI, 4.9e-324);
         ObservedArms arms = new ObservedArms(treated, ArmStatistics.empty());
         PartialsCodec.decode(PartialsCodec.cellKey(src, key), PartialsCodec.cellValue(arms), sink);
@@ -49,7 +49,7 @@ class PartialsCodecTest {
     @DisplayName("a null value deletes a cell; progress keeps stream time and late counts")
     void tombstonesAndProgress() {
         SourcePartition src = new SourcePartition("t", 0);
-        CellKey key = new CellKey("s", "", "", "hourly", 3_600_000);
+        PaneKey key = new PaneKey("s", "", "", "hourly", 3_600_000);
         PartialsCodec.decode(PartialsCodec.cellKey(src, key), null, sink);
         assertThat(seen.get(0)[2]).isNull();
         SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L));

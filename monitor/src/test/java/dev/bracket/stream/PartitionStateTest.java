@@ -1,6 +1,6 @@
 package dev.bracket.stream;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.ObservedArms;
@@ -114,7 +114,7 @@ class PartitionStateTest {
         }
         var cells = s.cells();
         for (int j = 0; j < strata; j++) {
-            ObservedArms arms = cells.get(new CellKey("s", names[j], "", "cumulative", 0));
+            ObservedArms arms = cells.get(new PaneKey("s", names[j], "", "cumulative", 0));
             assertThat(arms.treated().count()).as(names[j]).isEqualTo(expected[j].getN());
             assertThat(arms.treated().mean()).as(names[j]).isCloseTo(expected[j].getMean(), within(1e-12));
         }
@@ -134,9 +134,9 @@ class PartitionStateTest {
         assertThat(s.progress().late()).containsEntry(new LateKey("s", "minute"), 1L);
         assertThat(s.progress().streamTime()).isEqualTo(130_000);
         var cells = s.cells();
-        assertThat(cells.get(new CellKey("s", "", "", "cumulative", 0)).total()).isEqualTo(5);
-        assertThat(cells.get(new CellKey("s", "", "", "minute", 0)).treated().count()).isEqualTo(2);
-        assertThat(cells.get(new CellKey("s", "", "", "three", 0)).treated().count()).isEqualTo(3);
+        assertThat(cells.get(new PaneKey("s", "", "", "cumulative", 0)).total()).isEqualTo(5);
+        assertThat(cells.get(new PaneKey("s", "", "", "minute", 0)).treated().count()).isEqualTo(2);
+        assertThat(cells.get(new PaneKey("s", "", "", "three", 0)).treated().count()).isEqualTo(3);
     }
 
     @Test
@@ -151,15 +151,15 @@ class PartitionStateTest {
         s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
         merged.progress(s.source(), s.progress());
 
-        WindowReport three = WindowReport.current(STUDY, THREE_MINUTES, merged, BandSettings.none());
+        WindowReport three = WindowReport.current(STUDY, THREE_MINUTES, merged, BandConfig.none());
         assertThat(three.start()).isEqualTo(60_000);
         assertThat(three.end()).isEqualTo(240_000);
         assertThat(three.report().pooled().treated().count()).isEqualTo(1);
         assertThat(three.report().pooled().control().count()).isEqualTo(2);
-        WindowReport minute = WindowReport.current(STUDY, MINUTE, merged, BandSettings.none());
+        WindowReport minute = WindowReport.current(STUDY, MINUTE, merged, BandConfig.none());
         assertThat(minute.report().pooled().total()).isEqualTo(1);
         assertThat(minute.report().rows().get(0).interval().isBounded()).isFalse();
-        assertThat(WindowReport.current(STUDY, WindowSpec.CUMULATIVE, merged, BandSettings.none()).report().pooled().total()).isEqualTo(4);
+        assertThat(WindowReport.current(STUDY, WindowSpec.CUMULATIVE, merged, BandConfig.none()).report().pooled().total()).isEqualTo(4);
     }
 
     @Test
@@ -168,11 +168,11 @@ class PartitionStateTest {
         PartitionState s = state(0);
         add(s, true, 1, 1_000);
         add(s, true, 1, 250_000);
-        List<CellKey> closed = s.evictClosed();
+        List<PaneKey> closed = s.evictClosed();
         // Pane 0 closes for "minute" at 70 s and for "three" at 190 s; stream time is 250 s.
-        assertThat(closed).containsExactlyInAnyOrder(new CellKey("s", "", "", "minute", 0), new CellKey("s", "", "", "three", 0));
+        assertThat(closed).containsExactlyInAnyOrder(new PaneKey("s", "", "", "minute", 0), new PaneKey("s", "", "", "three", 0));
         assertThat(s.evictClosed()).isEmpty();
-        assertThat(s.cells()).containsKey(new CellKey("s", "", "", "cumulative", 0)).hasSize(3);
+        assertThat(s.cells()).containsKey(new PaneKey("s", "", "", "cumulative", 0)).hasSize(3);
     }
 
     @Test

@@ -1,9 +1,9 @@
 package dev.bracket.config;
 
-import dev.bracket.alerts.AlertOptions;
+import dev.bracket.alerts.AlertsConfig;
 import dev.bracket.alerts.AlertRule;
 import dev.bracket.alerts.AssumptionsRefutedRule;
-import dev.bracket.alerts.CellRule;
+import dev.bracket.alerts.RowRule;
 import dev.bracket.alerts.DataQualityRule;
 import dev.bracket.alerts.IntervalNarrowRule;
 import dev.bracket.alerts.PracticalEquivalenceRule;
@@ -22,7 +22,7 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
 @DisplayName("Alert settings in the YAML configuration")
-class AlertSettingsTest {
+class AlertConfigReaderTest {
 
     private static final String STUDY = """
             studies:
@@ -75,7 +75,7 @@ class AlertSettingsTest {
         assertThat(a.webhooks()).containsExactly(new WebhookTarget(URI.create("https://alerts.example.org/bracket"),
                 "BRACKET_WEBHOOK_TOKEN", Duration.ofSeconds(3), Duration.ofMinutes(30), 500, Duration.ofMillis(250),
                 Duration.ofMinutes(1)));
-        assertThat(c.alerts()).isEqualTo(new AlertOptions("rollout-alerts", Duration.ofSeconds(2), 50, Duration.ofMinutes(1)));
+        assertThat(c.alerts()).isEqualTo(new AlertsConfig("rollout-alerts", Duration.ofSeconds(2), 50, Duration.ofMinutes(1)));
     }
 
     @Test
@@ -84,9 +84,9 @@ class AlertSettingsTest {
         BracketConfig c = BracketConfig.parse("a.yaml", STUDY);
         assertThat(c.studies().get(0).alerts()).isEqualTo(StudyAlertConfig.defaults());
         assertThat(c.studies().get(0).alerts().band()).isEqualTo(BandMethod.ANYTIME);
-        assertThat(c.studies().get(0).alerts().cellRules()).extracting(CellRule::rule)
+        assertThat(c.studies().get(0).alerts().cellRules()).extracting(RowRule::rule)
                 .containsExactly(AlertRule.SIGN_IDENTIFIED, AlertRule.ASSUMPTIONS_REFUTED);
-        assertThat(c.alerts()).isEqualTo(AlertOptions.DEFAULTS);
+        assertThat(c.alerts()).isEqualTo(AlertsConfig.DEFAULTS);
         assertThat(c.alerts().topic()).isEqualTo("bracket-alerts");
         assertThat(alerts("rules: {}").cellRules()).as("an empty rules map turns per-cell rules off").isEmpty();
     }

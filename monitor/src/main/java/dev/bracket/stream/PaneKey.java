@@ -5,5 +5,5 @@ package dev.bracket.stream;
  * window's pane in event time (0 for the cumulative window). Empty stratum or level means the
  * data carry none.
  */
-public record CellKey(String study, String stratum, String level, String window, long paneStart) {
+public record PaneKey(String study, String stratum, String level, String window, long paneStart) {
 }

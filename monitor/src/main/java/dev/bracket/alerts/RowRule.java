@@ -9,7 +9,7 @@ import java.util.Map;
  * A rule judged per study × assumption set × window from the estimated identified interval and
  * a confidence band. Implementations are pure functions of their settings and the two inputs.
  */
-public sealed interface CellRule
+public sealed interface RowRule
         permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule {
 
     AlertRule rule();

@@ -19,11 +19,11 @@ import java.util.Set;
  * @param variance     where the fixed-horizon band takes the arms' variances from
  * @param plannedCount tuning of the anytime band (see {@link AnytimeBand}); fix it before the data arrive
  */
-public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis variance, long plannedCount) {
+public record BandConfig(double level, Set<BandMethod> methods, VarianceBasis variance, long plannedCount) {
 
     public static final double DEFAULT_LEVEL = 0.95;
 
-    public BandSettings {
+    public BandConfig {
         if (!(level > 0 && level < 1)) {
             throw new IllegalArgumentException("level must lie strictly between 0 and 1, was " + level);
         }
@@ -37,17 +37,17 @@ public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis 
     }
 
     /** Both bands at the given level, sample variances, default anytime tuning. */
-    public static BandSettings both(double level) {
-        return new BandSettings(level, EnumSet.allOf(BandMethod.class), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+    public static BandConfig both(double level) {
+        return new BandConfig(level, EnumSet.allOf(BandMethod.class), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
     }
 
     /** No bands: reports show identified intervals only. */
-    public static BandSettings none() {
-        return new BandSettings(DEFAULT_LEVEL, Set.of(), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+    public static BandConfig none() {
+        return new BandConfig(DEFAULT_LEVEL, Set.of(), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
     }
 
-    public BandSettings withVariance(VarianceBasis basis) {
-        return new BandSettings(level, methods, basis, plannedCount);
+    public BandConfig withVariance(VarianceBasis basis) {
+        return new BandConfig(level, methods, basis, plannedCount);
     }
 
     /** The requested bands for one assumption set over a study's cells. */

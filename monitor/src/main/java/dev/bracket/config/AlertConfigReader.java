@@ -1,9 +1,9 @@
 package dev.bracket.config;
 
-import dev.bracket.alerts.AlertOptions;
+import dev.bracket.alerts.AlertsConfig;
 import dev.bracket.alerts.AlertRule;
 import dev.bracket.alerts.AssumptionsRefutedRule;
-import dev.bracket.alerts.CellRule;
+import dev.bracket.alerts.RowRule;
 import dev.bracket.alerts.DataQualityRule;
 import dev.bracket.alerts.IntervalNarrowRule;
 import dev.bracket.alerts.PracticalEquivalenceRule;
@@ -45,13 +45,13 @@ import java.util.stream.Collectors;
  *   topic: bracket-alerts   tick: 5s   recent: 200   restore-timeout: 30s
  * </pre>
  */
-final class AlertSettings {
+final class AlertConfigReader {
 
     private static final Set<String> STUDY_KEYS = Set.of("band", "min-per-arm", "clear-after", "rules", "webhooks");
     private static final Set<String> WEBHOOK_KEYS =
             Set.of("url", "token-env", "timeout", "retry-for", "queue", "backoff-initial", "backoff-max");
 
-    private AlertSettings() {
+    private AlertConfigReader() {
     }
 
     static StudyAlertConfig study(ConfigNode alerts) {
@@ -66,7 +66,7 @@ final class AlertSettings {
         if (clearAfter > 1_000) {
             throw alerts.get("clear-after").fail("must be at most 1000");
         }
-        List<CellRule> cellRules = new ArrayList<>(d.cellRules());
+        List<RowRule> cellRules = new ArrayList<>(d.cellRules());
         Optional<StreamStalledRule> stalled = d.stalled();
         Optional<DataQualityRule> quality = d.quality();
         ConfigNode rules = alerts.get("rules");
@@ -113,8 +113,8 @@ final class AlertSettings {
                 qualityRule, webhooks));
     }
 
-    static AlertOptions options(ConfigNode node) {
-        AlertOptions d = AlertOptions.DEFAULTS;
+    static AlertsConfig options(ConfigNode node) {
+        AlertsConfig d = AlertsConfig.DEFAULTS;
         if (node.isMissing()) {
             return d;
         }
@@ -123,7 +123,7 @@ final class AlertSettings {
         if (recent > 100_000) {
             throw node.get("recent").fail("must be at most 100000");
         }
-        return build(node, () -> new AlertOptions(node.get("topic").text(d.topic()), node.get("tick").duration(d.tick()),
+        return build(node, () -> new AlertsConfig(node.get("topic").text(d.topic()), node.get("tick").duration(d.tick()),
                 (int) recent, node.get("restore-timeout").duration(d.restoreTimeout())));
     }
 

@@ -10,12 +10,12 @@ import java.time.Duration;
  * @param recent         how many transitions {@code GET /api/alerts} remembers
  * @param restoreTimeout how long reading the alerts topic at start may take before the start fails
  */
-public record AlertOptions(String topic, Duration tick, int recent, Duration restoreTimeout) {
+public record AlertsConfig(String topic, Duration tick, int recent, Duration restoreTimeout) {
 
-    public static final AlertOptions DEFAULTS =
-            new AlertOptions("bracket-alerts", Duration.ofSeconds(5), RecentAlerts.DEFAULT_CAPACITY, Duration.ofSeconds(30));
+    public static final AlertsConfig DEFAULTS =
+            new AlertsConfig("bracket-alerts", Duration.ofSeconds(5), RecentAlerts.DEFAULT_CAPACITY, Duration.ofSeconds(30));
 
-    public AlertOptions {
+    public AlertsConfig {
         if (topic == null || !topic.matches("[a-zA-Z0-9._-]{1,249}")) {
             throw new IllegalArgumentException("alerts topic must be 1-249 letters, digits, '.', '_' or '-', was '" + topic + "'");
         }

@@ -3,7 +3,7 @@ package dev.bracket.stream;
 import dev.bracket.bounds.ObservedArms;
 
 /** Both arms of one cell in one source partition, and whether they changed since the last commit. */
-final class CellAccumulator {
+final class PaneAccumulator {
 
     private final ArmAccumulator treated = new ArmAccumulator();
     private final ArmAccumulator control = new ArmAccumulator();
