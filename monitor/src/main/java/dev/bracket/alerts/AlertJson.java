@@ -35,9 +35,9 @@ public final class AlertJson {
         o.put("transitionId", t.transitionId());
         o.put("key", t.key().toString());
         o.put("study", t.key().study());
-        boolean perCell = t.key().rule().perCell();
-        o.put("scope", perCell ? "cell" : "study");
-        if (perCell) {
+        boolean perRow = t.key().rule().perRow();
+        o.put("scope", perRow ? "row" : "study");
+        if (perRow) {
             ArrayNode ids = o.putArray("assumptions");
             AssumptionSet.parse(t.key().assumptions()).ids().forEach(ids::add);
             o.put("meaning", t.meaning());

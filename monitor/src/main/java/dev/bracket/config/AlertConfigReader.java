@@ -31,7 +31,7 @@ import java.util.stream.Collectors;
  * <pre>
  * studies[i].alerts:
  *   band: anytime | fixed      (default anytime)
- *   min-per-arm: 30                    units per arm before any per-cell rule may fire
+ *   min-per-arm: 30                    units per arm before any per-row rule may fire
  *   clear-after: 3                     consecutive looks without the condition that resolve an alert
  *   rules:                             (absent: sign-identified and assumptions-refuted; {} for none)
  *     sign-identified: {clear-margin}
@@ -66,7 +66,7 @@ final class AlertConfigReader {
         if (clearAfter > 1_000) {
             throw alerts.get("clear-after").fail("must be at most 1000");
         }
-        List<RowRule> cellRules = new ArrayList<>(d.cellRules());
+        List<RowRule> rowRules = new ArrayList<>(d.rowRules());
         Optional<StreamStalledRule> stalled = d.stalled();
         Optional<DataQualityRule> quality = d.quality();
         ConfigNode rules = alerts.get("rules");
@@ -74,7 +74,7 @@ final class AlertConfigReader {
             if (!rules.isObject()) {
                 throw rules.fail("must be a mapping of rule names (" + AlertRule.knownIds() + ") to their settings");
             }
-            cellRules.clear();
+            rowRules.clear();
             for (String name : rules.keys()) {
                 ConfigNode r = rules.get(name);
                 AlertRule rule;
@@ -84,14 +84,14 @@ final class AlertConfigReader {
                     throw rules.fail("names an unknown rule '" + name + "'; known: " + AlertRule.knownIds());
                 }
                 switch (rule) {
-                    case SIGN_IDENTIFIED -> cellRules.add(build(r.onlyKeys(Set.of("clear-margin")),
+                    case SIGN_IDENTIFIED -> rowRules.add(build(r.onlyKeys(Set.of("clear-margin")),
                             () -> new SignIdentifiedRule(number(r.get("clear-margin"), 0))));
-                    case INTERVAL_NARROW -> cellRules.add(build(r.onlyKeys(Set.of("width", "clear-margin")),
+                    case INTERVAL_NARROW -> rowRules.add(build(r.onlyKeys(Set.of("width", "clear-margin")),
                             () -> new IntervalNarrowRule(r.require("width").number(), number(r.get("clear-margin"), 0))));
-                    case PRACTICAL_EQUIVALENCE -> cellRules.add(build(r.onlyKeys(Set.of("lower", "upper", "clear-margin")),
+                    case PRACTICAL_EQUIVALENCE -> rowRules.add(build(r.onlyKeys(Set.of("lower", "upper", "clear-margin")),
                             () -> new PracticalEquivalenceRule(r.require("lower").number(), r.require("upper").number(),
                                     number(r.get("clear-margin"), 0))));
-                    case ASSUMPTIONS_REFUTED -> cellRules.add(build(r.onlyKeys(Set.of("clear-margin")),
+                    case ASSUMPTIONS_REFUTED -> rowRules.add(build(r.onlyKeys(Set.of("clear-margin")),
                             () -> new AssumptionsRefutedRule(number(r.get("clear-margin"), 0))));
                     case STREAM_STALLED -> stalled = Optional.of(build(r.onlyKeys(Set.of("after")),
                             () -> new StreamStalledRule(r.require("after").duration(null))));
@@ -109,7 +109,7 @@ final class AlertConfigReader {
         }
         Optional<StreamStalledRule> stalledRule = stalled;
         Optional<DataQualityRule> qualityRule = quality;
-        return build(alerts, () -> new StudyAlertConfig(minPerArm, band, (int) clearAfter, cellRules, stalledRule,
+        return build(alerts, () -> new StudyAlertConfig(minPerArm, band, (int) clearAfter, rowRules, stalledRule,
                 qualityRule, webhooks));
     }
 

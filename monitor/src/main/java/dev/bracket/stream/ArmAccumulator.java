@@ -3,7 +3,7 @@ package dev.bracket.stream;
 import dev.bracket.bounds.ArmStatistics;
 
 /**
- * A mutable twin of {@link ArmStatistics} for the hot path: one arm of one cell, updated in
+ * A mutable twin of {@link ArmStatistics} for the hot path: one arm of one pane, updated in
  * place. The update is the same Welford step as {@link ArmStatistics#add} (Welford 1962), so a
  * stream folded here equals the same stream folded into immutable values bit for bit.
  */

@@ -33,7 +33,7 @@ import java.util.function.Consumer;
 
 /**
  * Reads the partials topic (committed records only), keeps the latest statistics of every
- * source partition per cell, and recomputes a study's reports when its numbers changed, at most
+ * source partition per pane, and recomputes a study's reports when its numbers changed, at most
  * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
  * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on its own thread.
  */

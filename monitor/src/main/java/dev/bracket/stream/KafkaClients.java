@@ -38,7 +38,7 @@ public final class KafkaClients {
         Map<String, Object> p = base();
         p.putIfAbsent(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
         if (!"consumer".equalsIgnoreCase(String.valueOf(p.get(ConsumerConfig.GROUP_PROTOCOL_CONFIG)))) {
-            // Moves only the partitions that change owner; the others keep their in-memory cells.
+            // Moves only the partitions that change owner; the others keep their in-memory panes.
             p.putIfAbsent(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG,
                     "org.apache.kafka.clients.consumer.CooperativeStickyAssignor");
         }

@@ -10,9 +10,9 @@ import java.util.Set;
 import java.util.function.LongPredicate;
 
 /**
- * The latest cumulative statistics of every source partition for every cell, as read from the
+ * The latest cumulative statistics of every source partition for every pane, as read from the
  * partials topic (or handed over by {@code replay}), and their sum. A newer record for a
- * (source, cell) replaces the older one, so a source's contribution is counted once however
+ * (source, pane) replaces the older one, so a source's contribution is counted once however
  * often it was written; totals are the sum over sources ({@link ObservedArms#merge}).
  * Single-threaded.
  */
@@ -24,15 +24,15 @@ public final class MergedPartials implements PartialsCodec.Sink {
     private boolean watermarkChanged;
 
     @Override
-    public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
-        Map<PaneKey, Map<SourcePartition, ObservedArms>> cells = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+    public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
+        Map<PaneKey, Map<SourcePartition, ObservedArms>> panes = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
         if (arms == null) {
-            Map<SourcePartition, ObservedArms> sources = cells.get(key);
+            Map<SourcePartition, ObservedArms> sources = panes.get(key);
             if (sources != null && sources.remove(source) != null && sources.isEmpty()) {
-                cells.remove(key);
+                panes.remove(key);
             }
         } else {
-            cells.computeIfAbsent(key, k -> new HashMap<>()).put(source, arms);
+            panes.computeIfAbsent(key, k -> new HashMap<>()).put(source, arms);
         }
         changed.add(key.study());
     }
@@ -75,7 +75,7 @@ public final class MergedPartials implements PartialsCodec.Sink {
         return progress.values().stream().mapToLong(p -> p.late().getOrDefault(key, 0L)).sum();
     }
 
-    /** The study's cells of one window whose pane start passes {@code panes}, summed over sources. */
+    /** The study's panes of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
         StudyCells out = StudyCells.empty();
         for (Map.Entry<PaneKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {

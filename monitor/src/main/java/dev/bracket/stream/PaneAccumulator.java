@@ -2,7 +2,7 @@ package dev.bracket.stream;
 
 import dev.bracket.bounds.ObservedArms;
 
-/** Both arms of one cell in one source partition, and whether they changed since the last commit. */
+/** Both arms of one pane in one source partition, and whether they changed since the last commit. */
 final class PaneAccumulator {
 
     private final ArmAccumulator treated = new ArmAccumulator();

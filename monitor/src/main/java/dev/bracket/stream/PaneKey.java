@@ -1,7 +1,7 @@
 package dev.bracket.stream;
 
 /**
- * Names one cell of statistics: study, stratum, instrument level, window and the start of the
+ * The key of one pane's statistics: study, stratum, instrument level, window and the start of the
  * window's pane in event time (0 for the cumulative window). Empty stratum or level means the
  * data carry none.
  */

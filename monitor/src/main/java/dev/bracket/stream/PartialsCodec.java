@@ -13,7 +13,7 @@ import java.util.Map;
 
 /**
  * Records of the compacted partials topic. Each key names one source partition and either one
- * cell or the partition's progress; the value is the CUMULATIVE state of that key (so
+ * pane or the partition's progress; the value is the CUMULATIVE state of that key (so
  * compaction keeps exactly what is needed) and {@code null} deletes a closed pane.
  *
  * <pre>
@@ -31,9 +31,9 @@ public final class PartialsCodec {
 
     private static final ObjectMapper MAPPER = new ObjectMapper();
 
-    /** Receives decoded records; {@code arms} is null for a deleted cell. */
+    /** Receives decoded records; {@code arms} is null for a deleted pane. */
     public interface Sink {
-        void cell(SourcePartition source, PaneKey key, ObservedArms arms);
+        void pane(SourcePartition source, PaneKey key, ObservedArms arms);
 
         void progress(SourcePartition source, SourceProgress progress);
     }
@@ -46,7 +46,7 @@ public final class PartialsCodec {
         return Math.floorMod(source.topic().hashCode() * 31 + source.partition(), partitions);
     }
 
-    public static byte[] cellKey(SourcePartition s, PaneKey k) {
+    public static byte[] paneKey(SourcePartition s, PaneKey k) {
         ArrayNode a = MAPPER.createArrayNode();
         a.add("cell").add(s.topic()).add(s.partition()).add(k.study()).add(k.stratum()).add(k.level()).add(k.window()).add(k.paneStart());
         return bytes(a);
@@ -56,7 +56,7 @@ public final class PartialsCodec {
         return bytes(MAPPER.createArrayNode().add("progress").add(s.topic()).add(s.partition()));
     }
 
-    public static byte[] cellValue(ObservedArms arms) {
+    public static byte[] paneValue(ObservedArms arms) {
         ObjectNode o = MAPPER.createObjectNode();
         o.set("treated", arm(arms.treated()));
         o.set("control", arm(arms.control()));
@@ -98,13 +98,13 @@ public final class PartialsCodec {
             }
             SourcePartition source = new SourcePartition(k.get(1).asText(), k.get(2).asInt());
             switch (k.get(0).asText()) {
-                case "cell" -> {
-                    PaneKey cell = new PaneKey(k.get(3).asText(), k.get(4).asText(), k.get(5).asText(), k.get(6).asText(), k.get(7).asLong());
+                case "cell" -> { // the stored tag of a pane record, kept so existing partials topics restore
+                    PaneKey pane = new PaneKey(k.get(3).asText(), k.get(4).asText(), k.get(5).asText(), k.get(6).asText(), k.get(7).asLong());
                     if (value == null) {
-                        sink.cell(source, cell, null);
+                        sink.pane(source, pane, null);
                     } else {
                         JsonNode v = MAPPER.readTree(value);
-                        sink.cell(source, cell, new ObservedArms(arm(v.get("treated")), arm(v.get("control"))));
+                        sink.pane(source, pane, new ObservedArms(arm(v.get("treated")), arm(v.get("control"))));
                     }
                 }
                 case "progress" -> {

@@ -24,7 +24,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.concurrent.TimeoutException;
 
 /**
- * Rebuilds source partitions' cells from the partials topic, reading committed records only.
+ * Rebuilds source partitions' panes from the partials topic, reading committed records only.
  *
  * <p>It reads each relevant partials partition from the beginning up to its high watermark
  * taken BEFORE reading (not the last stable offset): a transaction of another instance that is
@@ -32,7 +32,7 @@ import java.util.concurrent.TimeoutException;
  * consumer waits at that open transaction until it ends, then skips aborted records, so when it
  * passes the high watermark every transaction that wrote our sources' records has been
  * resolved. Callers fetch the group's committed offsets first; with read_committed that fetch
- * waits for pending offset commits (KIP-447), so the restored cells match those offsets.
+ * waits for pending offset commits (KIP-447), so the restored panes match those offsets.
  */
 final class PartialsRestorer implements AutoCloseable {
 
@@ -40,7 +40,7 @@ final class PartialsRestorer implements AutoCloseable {
     private static final Duration LIMIT = Duration.ofMinutes(5);
 
     /** One source partition's restored state. */
-    record Restored(Map<PaneKey, ObservedArms> cells, SourceProgress progress) {
+    record Restored(Map<PaneKey, ObservedArms> panes, SourceProgress progress) {
     }
 
     private final String topic;
@@ -56,16 +56,16 @@ final class PartialsRestorer implements AutoCloseable {
     }
 
     Map<SourcePartition, Restored> restore(Collection<SourcePartition> sources) {
-        Map<SourcePartition, Map<PaneKey, ObservedArms>> cells = new HashMap<>();
+        Map<SourcePartition, Map<PaneKey, ObservedArms>> panes = new HashMap<>();
         Map<SourcePartition, SourceProgress> progress = new HashMap<>();
-        sources.forEach(s -> cells.put(s, new HashMap<>()));
+        sources.forEach(s -> panes.put(s, new HashMap<>()));
         Set<TopicPartition> tps = new HashSet<>();
         sources.forEach(s -> tps.add(new TopicPartition(topic, PartialsCodec.partitionFor(s, partitions))));
         Map<TopicPartition, Long> highWatermarks = highWatermarks(tps);
         PartialsCodec.Sink sink = new PartialsCodec.Sink() {
             @Override
-            public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
-                Map<PaneKey, ObservedArms> m = cells.get(source);
+            public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
+                Map<PaneKey, ObservedArms> m = panes.get(source);
                 if (m != null) {
                     if (arms == null) {
                         m.remove(key);
@@ -77,7 +77,7 @@ final class PartialsRestorer implements AutoCloseable {
 
             @Override
             public void progress(SourcePartition source, SourceProgress p) {
-                if (cells.containsKey(source)) {
+                if (panes.containsKey(source)) {
                     progress.put(source, p);
                 }
             }
@@ -102,7 +102,7 @@ final class PartialsRestorer implements AutoCloseable {
             consumer.assign(List.of());
         }
         Map<SourcePartition, Restored> out = new HashMap<>();
-        cells.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE))));
+        panes.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE))));
         return out;
     }
 

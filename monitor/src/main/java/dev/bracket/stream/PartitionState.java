@@ -13,7 +13,7 @@ import java.util.Map;
 import java.util.function.BiConsumer;
 
 /**
- * The cells of one source partition: cumulative statistics per (study, stratum, instrument
+ * The panes of one source partition: cumulative statistics per (study, stratum, instrument
  * level, window, pane), the partition's stream time (largest event time seen) and its late
  * counts. One writer, no locking.
  *
@@ -24,7 +24,7 @@ import java.util.function.BiConsumer;
  */
 public final class PartitionState {
 
-    /** Slots of the cell cache (a power of two). */
+    /** Slots of the pane cache (a power of two). */
     private static final int CACHE_SLOTS = 64;
 
     private final SourcePartition source;
@@ -33,14 +33,14 @@ public final class PartitionState {
     private final long[] sizeMillis;
     private final long graceMillis;
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
-    private final Map<PaneKey, PaneAccumulator> cells = new HashMap<>();
+    private final Map<PaneKey, PaneAccumulator> panes = new HashMap<>();
     private final Map<LateKey, Long> late = new HashMap<>();
-    // A direct-mapped cache in front of the cell map. Events repeat a few cells, and their
-    // strings are the parser's canonical instances, so comparing by identity finds most cells
+    // A direct-mapped cache in front of the pane map. Events repeat a few panes, and their
+    // strings are the parser's canonical instances, so comparing by identity finds most panes
     // without making a key and looking it up. A miss (or an equal string that is another
-    // instance) falls through to the map; anything that removes or replaces cells clears it.
+    // instance) falls through to the map; anything that removes or replaces panes clears it.
     private final PaneKey[] cachedKeys = new PaneKey[CACHE_SLOTS];
-    private final PaneAccumulator[] cachedCells = new PaneAccumulator[CACHE_SLOTS];
+    private final PaneAccumulator[] cachedPanes = new PaneAccumulator[CACHE_SLOTS];
     private long streamTime = Long.MIN_VALUE;
     private boolean progressDirty;
 
@@ -65,7 +65,7 @@ public final class PartitionState {
         return source;
     }
 
-    /** Folds a usable event into its cells, one per window. */
+    /** Folds a usable event into its panes, one per window. */
     public void add(ParsedEvent e) {
         long t = e.time();
         if (t > streamTime) {
@@ -81,33 +81,33 @@ public final class PartitionState {
                 onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            cell(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
+            pane(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
         }
     }
 
-    private PaneAccumulator cell(String study, String stratum, String level, String window, long pane) {
+    private PaneAccumulator pane(String study, String stratum, String level, String window, long paneStart) {
         int h = ((study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode()) * 31 + window.hashCode();
-        h = h * 31 + Long.hashCode(pane);
+        h = h * 31 + Long.hashCode(paneStart);
         int slot = (h ^ (h >>> 16)) & (CACHE_SLOTS - 1);
         PaneKey k = cachedKeys[slot];
-        if (k != null && k.paneStart() == pane && k.study() == study && k.stratum() == stratum && k.level() == level
+        if (k != null && k.paneStart() == paneStart && k.study() == study && k.stratum() == stratum && k.level() == level
                 && k.window() == window) {
-            return cachedCells[slot];
+            return cachedPanes[slot];
         }
-        PaneKey key = new PaneKey(study, stratum, level, window, pane);
-        PaneAccumulator cell = cells.get(key);
-        if (cell == null) {
-            cell = new PaneAccumulator();
-            cells.put(key, cell);
+        PaneKey key = new PaneKey(study, stratum, level, window, paneStart);
+        PaneAccumulator pane = panes.get(key);
+        if (pane == null) {
+            pane = new PaneAccumulator();
+            panes.put(key, pane);
         }
         cachedKeys[slot] = key;
-        cachedCells[slot] = cell;
-        return cell;
+        cachedPanes[slot] = pane;
+        return pane;
     }
 
     private void clearCache() {
         Arrays.fill(cachedKeys, null);
-        Arrays.fill(cachedCells, null);
+        Arrays.fill(cachedPanes, null);
     }
 
     private boolean isClosed(long sizeMillis, long paneStart) {
@@ -118,7 +118,7 @@ public final class PartitionState {
     }
 
     /**
-     * Removes cells whose panes have closed and returns their keys (for tombstones in the
+     * Removes panes whose panes have closed and returns their keys (for tombstones in the
      * partials topic). Closed panes lie before every window a report can still be asked for.
      */
     public List<PaneKey> evictClosed() {
@@ -127,7 +127,7 @@ public final class PartitionState {
         for (WindowSpec w : windows) {
             byName.put(w.name(), w);
         }
-        for (Iterator<Map.Entry<PaneKey, PaneAccumulator>> it = cells.entrySet().iterator(); it.hasNext(); ) {
+        for (Iterator<Map.Entry<PaneKey, PaneAccumulator>> it = panes.entrySet().iterator(); it.hasNext(); ) {
             PaneKey key = it.next().getKey();
             WindowSpec w = byName.get(key.window());
             if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w.size().toMillis(), key.paneStart())) {
@@ -141,9 +141,9 @@ public final class PartitionState {
         return closed;
     }
 
-    /** Calls {@code sink} with every cell changed since {@link #markClean}. */
+    /** Calls {@code sink} with every pane changed since {@link #markClean}. */
     public void forEachDirty(BiConsumer<PaneKey, ObservedArms> sink) {
-        cells.forEach((k, c) -> {
+        panes.forEach((k, c) -> {
             if (c.isDirty()) {
                 sink.accept(k, c.snapshot());
             }
@@ -156,14 +156,14 @@ public final class PartitionState {
 
     /** Marks everything as written. */
     public void markClean() {
-        cells.values().forEach(PaneAccumulator::markClean);
+        panes.values().forEach(PaneAccumulator::markClean);
         progressDirty = false;
     }
 
-    /** Every cell's current statistics. */
-    public Map<PaneKey, ObservedArms> cells() {
+    /** Every pane's current statistics. */
+    public Map<PaneKey, ObservedArms> panes() {
         Map<PaneKey, ObservedArms> out = new HashMap<>();
-        cells.forEach((k, c) -> out.put(k, c.snapshot()));
+        panes.forEach((k, c) -> out.put(k, c.snapshot()));
         return out;
     }
 
@@ -171,11 +171,11 @@ public final class PartitionState {
         return new SourceProgress(streamTime, late);
     }
 
-    /** Puts back a cell read from the partials topic (not marked as changed). */
-    public void restoreCell(PaneKey key, ObservedArms arms) {
-        PaneAccumulator cell = new PaneAccumulator();
-        cell.set(arms);
-        cells.put(key, cell);
+    /** Puts back a pane read from the partials topic (not marked as changed). */
+    public void restorePane(PaneKey key, ObservedArms arms) {
+        PaneAccumulator pane = new PaneAccumulator();
+        pane.set(arms);
+        panes.put(key, pane);
         clearCache();
     }
 

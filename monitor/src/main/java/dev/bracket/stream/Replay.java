@@ -113,7 +113,7 @@ public final class Replay {
     public Result finish() {
         MergedPartials merged = new MergedPartials();
         for (PartitionState s : sources) {
-            s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+            s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();

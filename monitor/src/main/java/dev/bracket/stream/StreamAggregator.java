@@ -34,14 +34,14 @@ import java.util.concurrent.CountDownLatch;
 
 /**
  * One member of the aggregation consumer group: reads events, keeps each assigned partition's
- * cells in memory ({@link PartitionState}) and every commit interval writes the changed cells'
+ * panes in memory ({@link PartitionState}) and every commit interval writes the changed panes'
  * cumulative statistics to the partials topic and commits the input offsets in the same Kafka
  * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
  * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
  * transactions.
  *
  * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
- * or not at all. On assignment a partition's cells are rebuilt from the committed partials and
+ * or not at all. On assignment a partition's panes are rebuilt from the committed partials and
  * reading starts at the committed offset, which describe the same point of the stream. After any
  * error the open transaction is aborted and every assigned partition is rebuilt the same way.
  *
@@ -219,10 +219,10 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 SourcePartition src = s.source();
                 int partition = PartialsCodec.partitionFor(src, partialsPartitions);
                 for (PaneKey closed : s.evictClosed()) {
-                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.cellKey(src, closed), null));
+                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.paneKey(src, closed), null));
                 }
                 s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,
-                        PartialsCodec.cellKey(src, key), PartialsCodec.cellValue(arms))));
+                        PartialsCodec.paneKey(src, key), PartialsCodec.paneValue(arms))));
                 if (s.progressChanged()) {
                     producer.send(new ProducerRecord<>(partials, partition,
                             PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
@@ -321,7 +321,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             PartitionState state = new PartitionState(src, config.windows(), config.grace().toMillis(),
                     (study, window) -> metrics.late(study.id(), window.name()));
             PartialsRestorer.Restored r = restored.get(src);
-            r.cells().forEach(state::restoreCell);
+            r.panes().forEach(state::restorePane);
             state.restoreProgress(r.progress());
             states.put(tp, state);
             OffsetAndMetadata at = committed.get(tp);

@@ -6,7 +6,7 @@ import java.nio.charset.StandardCharsets;
  * Turns the parser's characters into Strings, reusing the String last made for the same
  * characters in a small direct-mapped table. Study, stratum and instrument values repeat across
  * events, so most lookups allocate nothing, and the reused Strings keep their cached hash codes
- * for the cell maps. One cache per parser (not thread-safe).
+ * for the pane maps. One cache per parser (not thread-safe).
  */
 final class TextCache {
 

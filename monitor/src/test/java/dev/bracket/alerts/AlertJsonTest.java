@@ -19,7 +19,7 @@ import static org.assertj.core.api.Assertions.assertThatThrownBy;
 class AlertJsonTest {
 
     @Test
-    @DisplayName("a per-cell document carries key, assumptions in words, numbers, time, id and cautions")
+    @DisplayName("a per-row document carries key, assumptions in words, numbers, time, id and cautions")
     void cellDocument() {
         AlertKey key = Transitions.key("rollout", "mtr-positive,mts-negative");
         AlertTransition t = Transitions.alternating(key, 1).get(0);
@@ -29,7 +29,7 @@ class AlertJsonTest {
         assertThat(doc.path("transitionId").asText()).isEqualTo(t.transitionId());
         assertThat(doc.path("key").asText()).isEqualTo("rollout/mtr-positive,mts-negative/cumulative/sign-identified");
         assertThat(doc.path("study").asText()).isEqualTo("rollout");
-        assertThat(doc.path("scope").asText()).isEqualTo("cell");
+        assertThat(doc.path("scope").asText()).isEqualTo("row");
         assertThat(doc.path("assumptions")).extracting(JsonNode::asText).containsExactly("mtr-positive", "mts-negative");
         assertThat(doc.path("window").asText()).isEqualTo("cumulative");
         assertThat(doc.path("rule").asText()).isEqualTo("sign-identified");

@@ -68,7 +68,7 @@ class AlertConfigReaderTest {
         assertThat(a.band()).isEqualTo(BandMethod.FIXED_HORIZON);
         assertThat(a.minPerArm()).isEqualTo(50);
         assertThat(a.clearAfter()).isEqualTo(4);
-        assertThat(a.cellRules()).containsExactly(new SignIdentifiedRule(0.005), new IntervalNarrowRule(0.05, 0),
+        assertThat(a.rowRules()).containsExactly(new SignIdentifiedRule(0.005), new IntervalNarrowRule(0.05, 0),
                 new PracticalEquivalenceRule(-0.01, 0.01, 0), new AssumptionsRefutedRule(0));
         assertThat(a.stalled()).contains(new StreamStalledRule(Duration.ofMinutes(5)));
         assertThat(a.quality()).contains(new DataQualityRule(0.05, Duration.ofMinutes(10), 200, 0));
@@ -84,11 +84,11 @@ class AlertConfigReaderTest {
         BracketConfig c = BracketConfig.parse("a.yaml", STUDY);
         assertThat(c.studies().get(0).alerts()).isEqualTo(StudyAlertConfig.defaults());
         assertThat(c.studies().get(0).alerts().band()).isEqualTo(BandMethod.ANYTIME);
-        assertThat(c.studies().get(0).alerts().cellRules()).extracting(RowRule::rule)
+        assertThat(c.studies().get(0).alerts().rowRules()).extracting(RowRule::rule)
                 .containsExactly(AlertRule.SIGN_IDENTIFIED, AlertRule.ASSUMPTIONS_REFUTED);
         assertThat(c.alerts()).isEqualTo(AlertsConfig.DEFAULTS);
         assertThat(c.alerts().topic()).isEqualTo("bracket-alerts");
-        assertThat(alerts("rules: {}").cellRules()).as("an empty rules map turns per-cell rules off").isEmpty();
+        assertThat(alerts("rules: {}").rowRules()).as("an empty rules map turns per-row rules off").isEmpty();
     }
 
     @Test

@@ -64,7 +64,7 @@ public final class CellHeapBenchmark {
 
         // As decoded from the partials topic: every cell's statistics are objects of their own.
         MergedPartials merged = new MergedPartials();
-        state.cells().forEach((key, arms) -> merged.cell(source, key, arms));
+        state.panes().forEach((key, arms) -> merged.pane(source, key, arms));
         Reference.reachabilityFence(state);
         state = null;
         long withMerged = usedAfterGc();

@@ -68,7 +68,7 @@ public final class HotPathBenchmark {
                 }
             }
             long t3 = System.nanoTime();
-            if (tokens == 0 || usable != events || state.cells().isEmpty()) {
+            if (tokens == 0 || usable != events || state.panes().isEmpty()) {
                 throw new IllegalStateException("events not read as expected");
             }
             System.out.printf(Locale.ROOT, "round %d: Jackson tokens %.0f ns/event; EventParser %.0f ns; parse + fold %.0f ns%n",

@@ -17,7 +17,7 @@ class PartialsCodecTest {
     private final List<Object[]> seen = new ArrayList<>();
     private final PartialsCodec.Sink sink = new PartialsCodec.Sink() {
         @Override
-        public void cell(SourcePartition source, PaneKey key, ObservedArms arms) {
+        public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
             seen.add(new Object[] {source, key, arms});
         }
 
@@ -34,7 +34,7 @@ class PartialsCodecTest {
         PaneKey key = new PaneKey("study \"x\"", "eu/west", "", "cumulative", 0);
         ArmStatistics treated = ArmStatistics.of(0.1, 0.2, 1.0 / 3, Math.PI, 4.9e-324);
         ObservedArms arms = new ObservedArms(treated, ArmStatistics.empty());
-        PartialsCodec.decode(PartialsCodec.cellKey(src, key), PartialsCodec.cellValue(arms), sink);
+        PartialsCodec.decode(PartialsCodec.paneKey(src, key), PartialsCodec.paneValue(arms), sink);
         assertThat(seen).hasSize(1);
         assertThat(seen.get(0)[0]).isEqualTo(src);
         assertThat(seen.get(0)[1]).isEqualTo(key);
@@ -42,7 +42,7 @@ class PartialsCodecTest {
         assertThat(Double.doubleToRawLongBits(back.treated().mean())).isEqualTo(Double.doubleToRawLongBits(treated.mean()));
         assertThat(Double.doubleToRawLongBits(back.treated().m2())).isEqualTo(Double.doubleToRawLongBits(treated.m2()));
         assertThat(back).isEqualTo(arms);
-        assertThat(PartialsCodec.sourceOf(PartialsCodec.cellKey(src, key))).isEqualTo(src);
+        assertThat(PartialsCodec.sourceOf(PartialsCodec.paneKey(src, key))).isEqualTo(src);
     }
 
     @Test
@@ -50,7 +50,7 @@ class PartialsCodecTest {
     void tombstonesAndProgress() {
         SourcePartition src = new SourcePartition("t", 0);
         PaneKey key = new PaneKey("s", "", "", "hourly", 3_600_000);
-        PartialsCodec.decode(PartialsCodec.cellKey(src, key), null, sink);
+        PartialsCodec.decode(PartialsCodec.paneKey(src, key), null, sink);
         assertThat(seen.get(0)[2]).isNull();
         SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L));
         PartialsCodec.decode(PartialsCodec.progressKey(src), PartialsCodec.progressValue(p), sink);

@@ -61,7 +61,7 @@ class PartitionStateTest {
         }
         MergedPartials merged = new MergedPartials();
         for (PartitionState s : List.of(a, b)) {
-            s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+            s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
         }
         ObservedArms arms = merged.cells("s", "cumulative", pane -> true).pooled();
         assertThat(arms.treated().count()).isEqualTo(treated.getN());
@@ -109,10 +109,10 @@ class PartitionStateTest {
                 assertThat(s.evictClosed()).isNotEmpty();
             }
             if (i == 30_000) {
-                s.cells().forEach(s::restoreCell);
+                s.panes().forEach(s::restorePane);
             }
         }
-        var cells = s.cells();
+        var cells = s.panes();
         for (int j = 0; j < strata; j++) {
             ObservedArms arms = cells.get(new PaneKey("s", names[j], "", "cumulative", 0));
             assertThat(arms.treated().count()).as(names[j]).isEqualTo(expected[j].getN());
@@ -133,7 +133,7 @@ class PartitionStateTest {
         assertThat(late).containsExactly("s/minute");
         assertThat(s.progress().late()).containsEntry(new LateKey("s", "minute"), 1L);
         assertThat(s.progress().streamTime()).isEqualTo(130_000);
-        var cells = s.cells();
+        var cells = s.panes();
         assertThat(cells.get(new PaneKey("s", "", "", "cumulative", 0)).total()).isEqualTo(5);
         assertThat(cells.get(new PaneKey("s", "", "", "minute", 0)).treated().count()).isEqualTo(2);
         assertThat(cells.get(new PaneKey("s", "", "", "three", 0)).treated().count()).isEqualTo(3);
@@ -148,7 +148,7 @@ class PartitionStateTest {
         add(s, false, 3, 130_000);     // pane 2
         add(s, false, 4, 190_000);     // pane 3 (holds the watermark)
         MergedPartials merged = new MergedPartials();
-        s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+        s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
         merged.progress(s.source(), s.progress());
 
         WindowReport three = WindowReport.current(STUDY, THREE_MINUTES, merged, BandConfig.none());
@@ -172,7 +172,7 @@ class PartitionStateTest {
         // Pane 0 closes for "minute" at 70 s and for "three" at 190 s; stream time is 250 s.
         assertThat(closed).containsExactlyInAnyOrder(new PaneKey("s", "", "", "minute", 0), new PaneKey("s", "", "", "three", 0));
         assertThat(s.evictClosed()).isEmpty();
-        assertThat(s.cells()).containsKey(new PaneKey("s", "", "", "cumulative", 0)).hasSize(3);
+        assertThat(s.panes()).containsKey(new PaneKey("s", "", "", "cumulative", 0)).hasSize(3);
     }
 
     @Test
@@ -184,7 +184,7 @@ class PartitionStateTest {
         for (int i = 0; i < 1000; i++) {
             add(original, rnd.nextBoolean(), rnd.nextDouble() * 10, i);
         }
-        original.cells().forEach(copy::restoreCell);
+        original.panes().forEach(copy::restorePane);
         copy.restoreProgress(original.progress());
         for (int i = 0; i < 1000; i++) {
             boolean t = rnd.nextBoolean();
@@ -192,7 +192,7 @@ class PartitionStateTest {
             add(original, t, y, 1000 + i);
             add(copy, t, y, 1000 + i);
         }
-        assertThat(copy.cells()).isEqualTo(original.cells());
+        assertThat(copy.panes()).isEqualTo(original.panes());
         assertThat(copy.progress()).isEqualTo(original.progress());
     }
 }

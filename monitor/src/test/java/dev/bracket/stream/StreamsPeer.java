@@ -29,7 +29,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 
 /**
- * The benchmark's peer: the same per-cell statistics written the way a Kafka Streams user
+ * The benchmark's peer: the same per-row statistics written the way a Kafka Streams user
  * would, exactly-once (EOS v2), one stream thread. Each event is parsed by the monitor's own
  * {@link EventParser} (so the comparison is about the aggregation, not the parser), re-keyed by
  * its cells (study, stratum, instrument level, window and pane: one per configured window, as
