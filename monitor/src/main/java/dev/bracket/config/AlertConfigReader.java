@@ -17,12 +17,10 @@ import java.net.URI;
 import java.net.URISyntaxException;
 import java.time.Duration;
 import java.util.ArrayList;
-import java.util.Arrays;
 import java.util.List;
 import java.util.Optional;
 import java.util.Set;
 import java.util.function.Supplier;
-import java.util.stream.Collectors;
 
 /**
  * Reads the alert sections: a study's {@code alerts} (rules, thresholds, band, webhooks) and the
@@ -148,10 +146,11 @@ final class AlertConfigReader {
     }
 
     private static BandMethod bandMethod(ConfigNode node) {
-        String id = node.text();
-        return Arrays.stream(BandMethod.values()).filter(m -> m.id().equals(id)).findFirst()
-                .orElseThrow(() -> node.fail("must be one of " + Arrays.stream(BandMethod.values()).map(BandMethod::id)
-                        .collect(Collectors.joining(", ")) + ", was '" + id + "'"));
+        try {
+            return BandMethod.parse(node.text());
+        } catch (IllegalArgumentException e) {
+            throw node.fail(e.getMessage());
+        }
     }
 
     private static double number(ConfigNode node, double fallback) {

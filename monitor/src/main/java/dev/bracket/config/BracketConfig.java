@@ -16,7 +16,6 @@ import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -116,13 +115,12 @@ public record BracketConfig(
         if (!(bandLevel > 0 && bandLevel < 1)) {
             throw root.get("band-level").fail("must lie strictly between 0 and 1, e.g. 0.95");
         }
-        Set<BandMethod> methods = switch (root.get("bands").text("both")) {
-            case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
-            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
-            case "none" -> EnumSet.noneOf(BandMethod.class);
-            default -> throw root.get("bands").fail("must be both, fixed, anytime or none");
-        };
+        Set<BandMethod> methods;
+        try {
+            methods = BandMethod.parseChoice(root.get("bands").text("both"));
+        } catch (IllegalArgumentException e) {
+            throw root.get("bands").fail(e.getMessage());
+        }
         BandConfig bands = new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = root.get("max-event-bytes").positiveLong(65_536);
         if (maxBytes > 16 * 1024 * 1024) {
@@ -222,21 +220,18 @@ public record BracketConfig(
         if (node.isMissing()) {
             return AssumptionSet.eachSingle();
         }
-        List<AssumptionSet> sets = new ArrayList<>();
-        for (ConfigNode item : node.elements()) {
-            String text = item.isArray()
-                    ? String.join(",", item.elements().stream().map(ConfigNode::text).toList())
-                    : item.text();
-            try {
-                sets.add(AssumptionSet.parse(text));
-            } catch (IllegalArgumentException e) {
-                throw item.fail(e.getMessage());
-            }
-        }
-        if (sets.isEmpty()) {
+        List<ConfigNode> items = node.elements();
+        if (items.isEmpty()) {
             throw node.fail("must list at least one assumption set, e.g. [[worst-case]]");
         }
-        return sets;
+        List<String> texts = items.stream()
+                .map(item -> item.isArray() ? String.join(",", item.elements().stream().map(ConfigNode::text).toList()) : item.text())
+                .toList();
+        try {
+            return AssumptionSet.parseAll(texts);
+        } catch (AssumptionSet.BadEntry e) {
+            throw items.get(e.index()).fail(e.getMessage());
+        }
     }
 
     private static List<InputTopic> inputs(ConfigNode node) {
