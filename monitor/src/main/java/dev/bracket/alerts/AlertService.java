@@ -21,7 +21,7 @@ import java.util.concurrent.TimeUnit;
 /**
  * Alerting as the monitor runs it: the evaluator, its sinks and its clock. The bound updater
  * calls {@link #onReport} after each update, the event consumer {@link #recordEvents}; a
- * scheduler judges the per-study rules every {@link AlertsConfig#tick()}. At start, state is
+ * scheduler judges the per-study rules every {@link AlertsConfig#checkInterval()}. At start, state is
  * restored from the alerts topic, so a restart does not fire again what already fired.
  */
 public final class AlertService implements AutoCloseable {
@@ -43,7 +43,7 @@ public final class AlertService implements AutoCloseable {
             t.setDaemon(true);
             return t;
         });
-        long tick = options.tick().toMillis();
+        long tick = options.checkInterval().toMillis();
         clockThread.scheduleWithFixedDelay(this::tick, tick, tick, TimeUnit.MILLISECONDS);
     }
 
@@ -57,7 +57,7 @@ public final class AlertService implements AutoCloseable {
     public static AlertService start(Map<String, StudyAlertConfig> studies, AlertsConfig options,
                                      Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
-        RecentAlerts recent = new RecentAlerts(options.recent());
+        RecentAlerts recent = new RecentAlerts(options.recentTransitions());
         List<AlertSink> common = new ArrayList<>(List.of(new LogAlertSink(), recent));
         if (kafka.isPresent()) {
             evaluator.restore(AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout()));

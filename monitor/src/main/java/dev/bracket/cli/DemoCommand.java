@@ -9,7 +9,7 @@ import dev.bracket.demo.DurationText;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
 import dev.bracket.demo.ScenarioOptions;
-import dev.bracket.demo.ScenarioSettings;
+import dev.bracket.demo.ScenarioConfig;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.stream.Monitor;
@@ -70,9 +70,9 @@ public final class DemoCommand implements Callable<Integer> {
     @CommandLine.Mixin
     ScenarioOptions scenarioOptions;
 
-    @Option(names = "--port", paramLabel = "PORT", defaultValue = "8080",
+    @Option(names = "--http-port", paramLabel = "PORT", defaultValue = "8080",
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
-    int port;
+    int httpPort;
 
     @Override
     public Integer call() throws Exception {
@@ -87,7 +87,7 @@ public final class DemoCommand implements Callable<Integer> {
         LatestReports latest = new LatestReports();
         PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
         // First the port, so a busy one fails before anything else starts.
-        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", port, "--port")) {
+        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", httpPort)) {
             Path dataDir = Files.createTempDirectory("bracket-demo-");
             AtomicBoolean stop = new AtomicBoolean();
             CountDownLatch finished = new CountDownLatch(1);
@@ -157,8 +157,8 @@ public final class DemoCommand implements Callable<Integer> {
         return latest.get(STUDY, "cumulative").map(r -> r.report().pooled().total()).orElse(0L);
     }
 
-    private ScenarioSettings settings() {
-        return scenarioOptions.settings(ScenarioSettings.DEFAULT_HOSTS, ScenarioSettings.DEFAULT_ROLLOUT_SHARE, false,
+    private ScenarioConfig settings() {
+        return scenarioOptions.settings(ScenarioConfig.DEFAULT_HOSTS, ScenarioConfig.DEFAULT_ROLLOUT_SHARE, false,
                 spec.commandLine());
     }
 

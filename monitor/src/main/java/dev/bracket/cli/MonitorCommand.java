@@ -44,9 +44,9 @@ public final class MonitorCommand implements Callable<Integer> {
     @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
     Path configFile;
 
-    @Option(names = "--http-port", paramLabel = "PORT",
-            description = "Serve the web page, the JSON API and Prometheus /metrics on this port (0: any free port; default: no HTTP).")
-    Integer httpPort;
+    @Option(names = "--http-port", paramLabel = "PORT", defaultValue = "8080",
+            description = "Serve the web page, the JSON API and Prometheus /metrics on this port; 0 picks a free one (default: ${DEFAULT-VALUE}).")
+    int httpPort;
 
     @Option(names = "--http-bind", paramLabel = "ADDRESS", defaultValue = "127.0.0.1",
             description = "Address the HTTP server listens on; 0.0.0.0 for every interface (default: ${DEFAULT-VALUE}).")
@@ -58,11 +58,9 @@ public final class MonitorCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         LatestReports latest = new LatestReports();
         PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
-        WebServer web = httpPort == null ? null : HttpServing.start(latest, registry, httpBind, httpPort, "--http-port");
-        if (web != null) {
-            out.println("web page, JSON API and Prometheus metrics at " + web.address() + " (metrics: " + web.address() + "metrics)");
-            out.flush();
-        }
+        WebServer web = HttpServing.start(latest, registry, httpBind, httpPort);
+        out.println("web page, JSON API and Prometheus metrics at " + web.address() + " (metrics: " + web.address() + "metrics)");
+        out.flush();
         EmbeddedBroker broker = null;
         if (config.usesEmbeddedBroker()) {
             out.println("starting a Kafka broker in this process, data in " + config.brokerDataDir());
@@ -72,9 +70,7 @@ public final class MonitorCommand implements Callable<Integer> {
             out.println("Kafka broker listening at " + broker.bootstrapServers() + " (use it as bootstrap.servers)");
         }
         Monitor monitor = Monitor.start(config, registry, latest);
-        if (web != null) {
-            web.showAlerts(monitor.alerts()::apiView);
-        }
+        web.showAlerts(monitor.alerts()::apiView);
         out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
                 config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
                 config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),
@@ -87,9 +83,7 @@ public final class MonitorCommand implements Callable<Integer> {
         Runtime.getRuntime().addShutdownHook(new Thread(() -> {
             stop.countDown();
             monitor.close();
-            if (web != null) {
-                web.close();
-            }
+            web.close();
             if (ownBroker != null) {
                 ownBroker.close();
             }

@@ -24,7 +24,7 @@ import java.util.function.Supplier;
 
 /**
  * Reads the alert sections: a study's {@code alerts} (rules, thresholds, band, webhooks) and the
- * top-level {@code alerts} (topic, tick, recent, restore-timeout). Keys:
+ * top-level {@code alerts} (topic, check-interval, recent-transitions, restore-timeout). Keys:
  *
  * <pre>
  * studies[i].alerts:
@@ -32,15 +32,15 @@ import java.util.function.Supplier;
  *   min-per-arm: 30                    units per arm before any per-row rule may fire
  *   clear-after: 3                     consecutive looks without the condition that resolve an alert
  *   rules:                             (absent: sign-identified and assumptions-refuted; {} for none)
- *     sign-identified: {clear-margin}
- *     interval-narrow: {width, clear-margin}
- *     practical-equivalence: {lower, upper, clear-margin}
- *     assumptions-refuted: {clear-margin}
+ *     sign-identified: {clear-zero-margin}
+ *     interval-narrow: {width, clear-extra-width}
+ *     practical-equivalence: {lower, upper, clear-outside-by}
+ *     assumptions-refuted: {clear-min-width}
  *     stream-stalled: {after}
- *     data-quality: {max-rejected-share, period (10m), min-events (100), clear-margin}
+ *     data-quality: {max-rejected-share, period (10m), min-events (100), clear-share-below}
  *   webhooks: [{url, token-env, timeout (5s), retry-for (15m), queue (1000), backoff-initial (500ms), backoff-max (60s)}]
  * alerts:
- *   topic: bracket-alerts   tick: 5s   recent: 200   restore-timeout: 30s
+ *   topic: bracket-alerts   check-interval: 5s   recent-transitions: 200   restore-timeout: 30s
  * </pre>
  */
 final class AlertConfigReader {
@@ -82,22 +82,22 @@ final class AlertConfigReader {
                     throw rules.fail("names an unknown rule '" + name + "'; known: " + AlertRule.knownIds());
                 }
                 switch (rule) {
-                    case SIGN_IDENTIFIED -> rowRules.add(build(r.onlyKeys(Set.of("clear-margin")),
-                            () -> new SignIdentifiedRule(number(r.get("clear-margin"), 0))));
-                    case INTERVAL_NARROW -> rowRules.add(build(r.onlyKeys(Set.of("width", "clear-margin")),
-                            () -> new IntervalNarrowRule(r.require("width").number(), number(r.get("clear-margin"), 0))));
-                    case PRACTICAL_EQUIVALENCE -> rowRules.add(build(r.onlyKeys(Set.of("lower", "upper", "clear-margin")),
+                    case SIGN_IDENTIFIED -> rowRules.add(build(r.onlyKeys(Set.of("clear-zero-margin")),
+                            () -> new SignIdentifiedRule(number(r.get("clear-zero-margin"), 0))));
+                    case INTERVAL_NARROW -> rowRules.add(build(r.onlyKeys(Set.of("width", "clear-extra-width")),
+                            () -> new IntervalNarrowRule(r.require("width").number(), number(r.get("clear-extra-width"), 0))));
+                    case PRACTICAL_EQUIVALENCE -> rowRules.add(build(r.onlyKeys(Set.of("lower", "upper", "clear-outside-by")),
                             () -> new PracticalEquivalenceRule(r.require("lower").number(), r.require("upper").number(),
-                                    number(r.get("clear-margin"), 0))));
-                    case ASSUMPTIONS_REFUTED -> rowRules.add(build(r.onlyKeys(Set.of("clear-margin")),
-                            () -> new AssumptionsRefutedRule(number(r.get("clear-margin"), 0))));
+                                    number(r.get("clear-outside-by"), 0))));
+                    case ASSUMPTIONS_REFUTED -> rowRules.add(build(r.onlyKeys(Set.of("clear-min-width")),
+                            () -> new AssumptionsRefutedRule(number(r.get("clear-min-width"), 0))));
                     case STREAM_STALLED -> stalled = Optional.of(build(r.onlyKeys(Set.of("after")),
                             () -> new StreamStalledRule(r.require("after").duration(null))));
                     case DATA_QUALITY -> quality = Optional.of(build(
-                            r.onlyKeys(Set.of("max-rejected-share", "period", "min-events", "clear-margin")),
+                            r.onlyKeys(Set.of("max-rejected-share", "period", "min-events", "clear-share-below")),
                             () -> new DataQualityRule(r.require("max-rejected-share").number(),
                                     r.get("period").duration(Duration.ofMinutes(10)), r.get("min-events").positiveLong(100),
-                                    number(r.get("clear-margin"), 0))));
+                                    number(r.get("clear-share-below"), 0))));
                 }
             }
         }
@@ -111,17 +111,17 @@ final class AlertConfigReader {
                 qualityRule, webhooks));
     }
 
-    static AlertsConfig options(ConfigNode node) {
+    static AlertsConfig alertsConfig(ConfigNode node) {
         AlertsConfig d = AlertsConfig.DEFAULTS;
         if (node.isMissing()) {
             return d;
         }
-        node.onlyKeys(Set.of("topic", "tick", "recent", "restore-timeout"));
-        long recent = node.get("recent").positiveLong(d.recent());
+        node.onlyKeys(Set.of("topic", "check-interval", "recent-transitions", "restore-timeout"));
+        long recent = node.get("recent-transitions").positiveLong(d.recentTransitions());
         if (recent > 100_000) {
-            throw node.get("recent").fail("must be at most 100000");
+            throw node.get("recent-transitions").fail("must be at most 100000");
         }
-        return build(node, () -> new AlertsConfig(node.get("topic").text(d.topic()), node.get("tick").duration(d.tick()),
+        return build(node, () -> new AlertsConfig(node.get("topic").text(d.topic()), node.get("check-interval").duration(d.checkInterval()),
                 (int) recent, node.get("restore-timeout").duration(d.restoreTimeout())));
     }
 

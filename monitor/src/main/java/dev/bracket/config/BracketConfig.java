@@ -41,11 +41,11 @@ import java.util.regex.Pattern;
  * publish-interval:   least time between two published reports of one study
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
- * threads:            aggregation group members this instance runs (each its own consumer and transactions)
+ * group-members:      aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
- * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertConfigReader}
+ * alerts:             {topic, check-interval, recent-transitions, restore-timeout}; each study's own alerts: see {@link AlertConfigReader}
  * </pre>
  */
 public record BracketConfig(
@@ -60,7 +60,7 @@ public record BracketConfig(
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
-        int threads,
+        int groupMembers,
         String group,
         String instance,
         Map<String, String> kafka,
@@ -72,7 +72,7 @@ public record BracketConfig(
 
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "group-members", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -133,9 +133,9 @@ public record BracketConfig(
         if (grace.isNegative()) {
             throw root.get("grace").fail("must not be negative");
         }
-        long threads = root.get("threads").positiveLong(1);
-        if (threads > 64) {
-            throw root.get("threads").fail("must be at most 64");
+        long groupMembers = root.get("group-members").positiveLong(1);
+        if (groupMembers > 64) {
+            throw root.get("group-members").fail("must be at most 64");
         }
         ConfigNode broker = root.get("broker").onlyKeys(Set.of("data-dir", "port"));
         long port = broker.get("port").isMissing() ? 0 : broker.get("port").positiveLong(0);
@@ -143,12 +143,12 @@ public record BracketConfig(
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes, (int) threads,
+                bands, commit, publish, progress, (int) maxBytes, (int) groupMembers,
                 name(root.get("group"), "bracket"),
                 name(root.get("instance"), "instance-" + UUID.randomUUID()),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
-                (int) port, AlertConfigReader.options(root.get("alerts")));
+                (int) port, AlertConfigReader.alertsConfig(root.get("alerts")));
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -161,7 +161,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, groupMembers, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */

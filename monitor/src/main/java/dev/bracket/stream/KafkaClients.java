@@ -84,7 +84,7 @@ public final class KafkaClients {
         return new KafkaProducer<>(p, new ByteArraySerializer(), new ByteArraySerializer());
     }
 
-    /** {@code bracket-GROUP-INSTANCE}, with {@code -N} for the instance's further members (threads). */
+    /** {@code bracket-GROUP-INSTANCE}, with {@code -N} for the instance's further members (group-members). */
     public String transactionalId(int member) {
         return "bracket-" + config.group() + "-" + config.instance() + (member == 0 ? "" : "-" + member);
     }

@@ -16,7 +16,7 @@ import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.stream.Collectors;
 
 /**
- * A running monitor instance against a Kafka cluster: topic setup, {@code threads} aggregation
+ * A running monitor instance against a Kafka cluster: topic setup, {@code group-members} aggregation
  * group members and one bound updater, each on its own thread, and the alert evaluator fed by
  * both (state restored from the alerts topic at start). Start with {@link #start}; stop with
  * {@link #close} (final commits, then clients closed, then alert sinks drained).
@@ -62,7 +62,7 @@ public final class Monitor implements AutoCloseable {
                 config.studies().stream().collect(Collectors.toMap(StudyConfig::id, StudyConfig::alerts)),
                 config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
         List<StreamAggregator> aggregators = new ArrayList<>();
-        for (int member = 0; member < config.threads(); member++) {
+        for (int member = 0; member < config.groupMembers(); member++) {
             aggregators.add(new StreamAggregator(clients, metrics, partials, member, alerts::recordEvents));
         }
         Monitor m = new Monitor(aggregators,

@@ -48,7 +48,7 @@ class AlertJsonTest {
         assertThat(ev.path("band").path("basis").asText()).isEqualTo("constructed for the test");
         assertThat(ev.path("band").path("level").asDouble()).isEqualTo(0.95);
         assertThat(ev.path("band").path("lower").asDouble()).isEqualTo(0.05);
-        assertThat(ev.path("limits").has("clearMargin")).isTrue();
+        assertThat(ev.path("limits").has("clearZeroMargin")).isTrue();
         assertThat(doc.path("cautions")).extracting(JsonNode::asText).containsExactlyElementsOf(Cautions.ALL);
         assertThat(doc.path("cautions").toString()).contains("only as credible as its assumptions")
                 .contains("not clinical or operational advice").contains("local regulation");

@@ -13,7 +13,7 @@ final class Transitions {
 
     static final Evidence EVIDENCE = new Evidence.OfBand(Snapshots.arms(100, 0.6, 100, 0.4),
             IdentifiedInterval.of(0.2, 0.6), Snapshots.band(BandMethod.ANYTIME, 0.05, 0.7),
-            Map.of("clearMargin", 0.0));
+            Map.of("clearZeroMargin", 0.0));
 
     private Transitions() {
     }

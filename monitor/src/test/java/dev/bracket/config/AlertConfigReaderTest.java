@@ -44,7 +44,7 @@ class AlertConfigReaderTest {
                       min-per-arm: 50
                       clear-after: 4
                       rules:
-                        sign-identified: {clear-margin: 0.005}
+                        sign-identified: {clear-zero-margin: 0.005}
                         interval-narrow: {width: 0.05}
                         practical-equivalence: {lower: -0.01, upper: 0.01}
                         assumptions-refuted:
@@ -60,8 +60,8 @@ class AlertConfigReaderTest {
                           backoff-max: PT1M
                 alerts:
                   topic: rollout-alerts
-                  tick: 2s
-                  recent: 50
+                  check-interval: 2s
+                  recent-transitions: 50
                   restore-timeout: 1m
                 """);
         StudyAlertConfig a = c.studies().get(0).alerts();

@@ -37,7 +37,7 @@ class BracketConfigTest {
             bands: anytime
             commit-interval: 250ms
             publish-interval: 2s
-            threads: 2
+            group-members: 2
             group: checkout-monitor
             instance: host-a
             kafka:
@@ -78,7 +78,7 @@ class BracketConfigTest {
         assertThat(c.publishInterval()).isEqualTo(Duration.ofSeconds(2));
         assertThat(c.bandLevel()).isEqualTo(0.9);
         assertThat(c.bands().methods()).containsExactly(BandMethod.ANYTIME);
-        assertThat(c.threads()).isEqualTo(2);
+        assertThat(c.groupMembers()).isEqualTo(2);
         assertThat(c.group()).isEqualTo("checkout-monitor");
         assertThat(c.instance()).isEqualTo("host-a");
         assertThat(c.kafka()).containsEntry("security.protocol", "SASL_SSL").containsEntry("sasl.mechanism", "SCRAM-SHA-512");
@@ -93,7 +93,7 @@ class BracketConfigTest {
         assertThat(c.inputs()).containsExactly(new InputTopic("bracket-events", FieldMapping.DEFAULT));
         assertThat(c.windows()).containsExactly(WindowSpec.CUMULATIVE);
         assertThat(c.commitInterval()).isEqualTo(Duration.ofSeconds(1));
-        assertThat(c.threads()).isEqualTo(1);
+        assertThat(c.groupMembers()).isEqualTo(1);
         assertThat(c.publishInterval()).isEqualTo(Duration.ofMillis(500));
         assertThat(c.bandLevel()).isEqualTo(0.95);
         assertThat(c.bands().methods()).containsExactlyInAnyOrder(BandMethod.values());

@@ -189,7 +189,7 @@ class MonitorCrashRecoveryTest {
         Path log = dir.resolve("child-" + logs.size() + ".log");
         logs.add(log);
         return new ProcessBuilder(java, "-Xmx384m", "-cp", classpath, "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
+                "monitor", "--config", config.toString(), "--http-port", "0")
                 .redirectErrorStream(true)
                 .redirectOutput(log.toFile())
                 .start();

@@ -45,7 +45,7 @@ class MonitorRebalanceTest {
                 commit-interval: 200ms
                 publish-interval: 200ms
                 max-event-bytes: 1024
-                threads: %d
+                group-members: %d
                 group: rb
                 instance: %s
                 kafka:

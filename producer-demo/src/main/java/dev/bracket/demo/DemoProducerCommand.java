@@ -59,11 +59,11 @@ public final class DemoProducerCommand implements Callable<Integer> {
     @CommandLine.Mixin
     ScenarioOptions scenarioOptions;
 
-    @Option(names = "--hosts", paramLabel = "N", defaultValue = "" + ScenarioSettings.DEFAULT_HOSTS,
+    @Option(names = "--hosts", paramLabel = "N", defaultValue = "" + ScenarioConfig.DEFAULT_HOSTS,
             description = "Hosts in the simulated service (default: ${DEFAULT-VALUE}).")
     int hosts;
 
-    @Option(names = "--rollout-share", paramLabel = "P", defaultValue = "" + ScenarioSettings.DEFAULT_ROLLOUT_SHARE,
+    @Option(names = "--rollout-share", paramLabel = "P", defaultValue = "" + ScenarioConfig.DEFAULT_ROLLOUT_SHARE,
             description = "Share of hosts that get the setting (default: ${DEFAULT-VALUE}).")
     double rolloutShare;
 
@@ -104,7 +104,7 @@ public final class DemoProducerCommand implements Callable<Integer> {
         return send(new ScenarioFeed(scenario, study), limits);
     }
 
-    private ScenarioSettings scenario() {
+    private ScenarioConfig scenario() {
         return scenarioOptions.settings(hosts, rolloutShare, strata, spec.commandLine());
     }
 

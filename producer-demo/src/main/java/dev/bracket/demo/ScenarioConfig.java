@@ -12,7 +12,7 @@ package dev.bracket.demo;
  * @param strata            whether events carry the host's region as their stratum
  * @param seed              fixes the hosts, the engineers' picks and every outcome
  */
-public record ScenarioSettings(int hosts, double rolloutShare, double selectionStrength, double effect,
+public record ScenarioConfig(int hosts, double rolloutShare, double selectionStrength, double effect,
                                boolean strata, long seed) {
 
     public static final int DEFAULT_HOSTS = 400;
@@ -20,7 +20,7 @@ public record ScenarioSettings(int hosts, double rolloutShare, double selectionS
     public static final double DEFAULT_SELECTION = 0.7;
     public static final double DEFAULT_EFFECT = -0.08;
 
-    public ScenarioSettings {
+    public ScenarioConfig {
         if (hosts < 10 || hosts > 1_000_000) {
             throw new IllegalArgumentException("hosts must be between 10 and 1000000, was " + hosts);
         }
@@ -41,8 +41,8 @@ public record ScenarioSettings(int hosts, double rolloutShare, double selectionS
     }
 
     /** The demo's defaults with the given seed. */
-    public static ScenarioSettings defaults(long seed) {
-        return new ScenarioSettings(DEFAULT_HOSTS, DEFAULT_ROLLOUT_SHARE, DEFAULT_SELECTION, DEFAULT_EFFECT, false, seed);
+    public static ScenarioConfig defaults(long seed) {
+        return new ScenarioConfig(DEFAULT_HOSTS, DEFAULT_ROLLOUT_SHARE, DEFAULT_SELECTION, DEFAULT_EFFECT, false, seed);
     }
 
     /** Hosts that get the setting: the rounded share, at least one and fewer than all. */
