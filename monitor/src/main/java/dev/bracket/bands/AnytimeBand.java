@@ -16,13 +16,13 @@ import java.util.Optional;
  * band holds the whole identified set. Looking after every event, stopping when a result looks
  * interesting, or continuing when it does not, all keep this guarantee; it is the band alerts use.
  *
- * <p>Construction (DESIGN.md §3). In each cell (stratum × instrument level) three confidence
+ * <p>Construction. In each cell (stratum × instrument level) three confidence
  * sequences run at once, each at error {@code alpha / (3 K)} for K cells (Bonferroni): one for the
  * treated share p over all of the cell's units, and one for each arm's mean over that arm's
  * units alone, all from {@link NormalMixtureBoundary} (Howard et al. 2021, Ann. Statist. 49(2))
  * on outcomes rescaled to [0, 1] by the declared range. With probability at least 1 - alpha every
  * true (p, mu1, mu0) stays in its box forever; {@link BoxProjection} turns the boxes into the band.
- * For one cell this is DESIGN.md's corner rule (lower end: mu1 low, mu0 high; upper end: mu1 high,
+ * For one cell this is the corner rule, the endpoints being monotone in the means (lower end: mu1 low, mu0 high; upper end: mu1 high,
  * mu0 low; p at either end), extended to the points where the box meets {@code mu1 = mu0} so
  * that corners where the assumptions are refuted are handled. Strata are weighted by their
  * observed shares, as in {@link StratifiedBounds}: the band covers the ATE of a population with

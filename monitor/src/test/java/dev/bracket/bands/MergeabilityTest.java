@@ -18,7 +18,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
- * The streaming monitor keeps statistics per Kafka partition and merges them (DESIGN.md §5).
+ * The streaming monitor keeps statistics per Kafka partition and merges them (README, "bracket monitor").
  * Both bands are functions of per-row counts, means and M2, which merge exactly in exact
  * arithmetic (Chan, Golub &amp; LeVeque 1979; count and count*mean simply add), so merged
  * partitions must give the band of one pass over all events, in any order, up to rounding.

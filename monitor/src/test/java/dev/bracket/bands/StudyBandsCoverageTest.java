@@ -25,7 +25,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
  * target in each replication is the share-weighted combination of the true stratum intervals at
  * the replication's own stratum counts; instrument levels enter through Manski's (1990)
  * intersection, which does not depend on the level shares. Instrument studies use Bonferroni
- * over cells (DESIGN.md §2), so their bands are expected to be conservative.
+ * over cells (see {@link AnytimeBand} and {@link FixedHorizonBand}), so their bands are expected to be conservative.
  */
 class StudyBandsCoverageTest {
 

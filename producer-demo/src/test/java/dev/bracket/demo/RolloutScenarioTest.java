@@ -84,7 +84,7 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("the stated truth satisfies ATE = p*mu1 + (1-p)*m10 - (1-p)*mu0 - p*m01")
     void truthSatisfiesTheAteDecomposition() {
-        // Decomposition of the ATE by treatment arm, DESIGN.md section 2 (Manski 1990, AER P&P).
+        // Decomposition of the ATE by treatment arm (Manski 1990, AER P&P).
         for (long seed = 1; seed <= 10; seed++) {
             TrueEffects t = new RolloutScenario(ScenarioConfig.defaults(seed)).truth();
             double p = t.treatedShare();
@@ -133,7 +133,7 @@ class RolloutScenarioTest {
     @DisplayName("with healthy hosts picked first, monotone treatment selection (positive) holds in the population")
     void positiveSelectionSatisfiesMts() {
         // MTS positive as a constraint on the unobservable means: m10 <= mu1 and m01 >= mu0
-        // (Manski & Pepper 2000; DESIGN.md table). The demo relies on it holding here.
+        // (Manski & Pepper 2000). The demo relies on it holding here.
         for (long seed = 1; seed <= 10; seed++) {
             TrueEffects t = truthFor(0.7, seed);
             assertThat(t.m10()).isLessThanOrEqualTo(t.treatedMean());
