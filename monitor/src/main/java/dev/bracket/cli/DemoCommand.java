@@ -12,7 +12,7 @@ import dev.bracket.demo.ScenarioOptions;
 import dev.bracket.demo.ScenarioConfig;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
+import dev.bracket.app.Monitor;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;

@@ -7,7 +7,7 @@ import dev.bracket.config.InputTopic;
 import dev.bracket.report.BoundRow;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
+import dev.bracket.app.Monitor;
 import dev.bracket.stream.StreamMetrics;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusConfig;

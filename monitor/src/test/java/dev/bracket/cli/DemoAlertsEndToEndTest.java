@@ -14,7 +14,7 @@ import dev.bracket.demo.ScenarioConfig;
 import dev.bracket.report.BoundRow;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
+import dev.bracket.app.Monitor;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.Producer;
 import org.junit.jupiter.api.DisplayName;

@@ -1,5 +1,10 @@
-package dev.bracket.stream;
+package dev.bracket.app;
 
+import dev.bracket.stream.BoundUpdater;
+import dev.bracket.stream.KafkaClients;
+import dev.bracket.stream.StreamAggregator;
+import dev.bracket.stream.StreamMetrics;
+import dev.bracket.stream.TopicSetup;
 import dev.bracket.alerts.AlertService;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
