@@ -4,7 +4,6 @@ import dev.bracket.stream.BoundUpdater;
 import dev.bracket.stream.KafkaClients;
 import dev.bracket.stream.StreamAggregator;
 import dev.bracket.stream.StreamMetrics;
-import dev.bracket.stream.TopicSetup;
 import dev.bracket.alerts.AlertService;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.TopicSetup;
 import dev.bracket.app.Monitor;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;

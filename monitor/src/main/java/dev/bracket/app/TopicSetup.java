@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.app;
 
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
