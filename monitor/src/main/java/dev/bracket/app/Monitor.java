@@ -1,9 +1,9 @@
 package dev.bracket.app;
 
-import dev.bracket.stream.BoundUpdater;
-import dev.bracket.stream.KafkaClients;
-import dev.bracket.stream.StreamAggregator;
-import dev.bracket.stream.StreamMetrics;
+import dev.bracket.stream.publish.BoundUpdater;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.stream.transaction.StreamMetrics;
 import dev.bracket.alerts.AlertService;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;

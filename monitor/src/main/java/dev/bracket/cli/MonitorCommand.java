@@ -8,7 +8,7 @@ import dev.bracket.report.BoundRow;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.app.Monitor;
-import dev.bracket.stream.StreamMetrics;
+import dev.bracket.stream.transaction.StreamMetrics;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;

@@ -1,5 +1,12 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.WindowReport;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;

@@ -10,9 +10,9 @@ import java.util.SplittableRandom;
  * in [-5, 5], two strata, two instrument levels), one second apart in event time. Invented
  * load, not data.
  */
-final class BenchEvents {
+public final class BenchEvents {
 
-    static final long START = 1_735_689_600_000L; // 2025-01-01T00:00:00Z
+    public static final long START = 1_735_689_600_000L; // 2025-01-01T00:00:00Z
 
     /** The configuration's studies section for these events. */
     static final String STUDIES = """

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.StreamAggregator;
 import dev.bracket.app.Monitor;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;

@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.KafkaClients;
 import dev.bracket.app.TopicSetup;
 import dev.bracket.app.Monitor;
 import dev.bracket.broker.BrokerPerClass;

@@ -1,5 +1,7 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.WindowSpec;
 import org.apache.kafka.common.serialization.Serdes;

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 /**
  * Told how many events of each study the aggregator read in one poll: accepted, rejected, and of

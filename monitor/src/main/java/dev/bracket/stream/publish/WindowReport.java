@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.publish;
 
 import dev.bracket.bands.BandConfig;
 import dev.bracket.config.StudyConfig;

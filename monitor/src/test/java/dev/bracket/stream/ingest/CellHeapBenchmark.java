@@ -1,5 +1,7 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
+import dev.bracket.stream.BenchEvents;
+import dev.bracket.stream.publish.MergedPartials;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;

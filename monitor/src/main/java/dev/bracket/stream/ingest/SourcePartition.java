@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 /**
  * Where statistics came from: an input topic's partition, or for {@code replay} a file (its

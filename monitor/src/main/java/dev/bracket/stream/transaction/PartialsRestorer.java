@@ -1,5 +1,8 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
 import dev.bracket.bounds.ObservedArms;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.ListOffsetsOptions;

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.publish;
 
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.node.ObjectNode;

@@ -1,5 +1,9 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.LateKey;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;

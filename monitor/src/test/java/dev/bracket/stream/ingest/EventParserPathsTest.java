@@ -1,5 +1,6 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
+import dev.bracket.stream.TestEvents;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.OutcomeRange;

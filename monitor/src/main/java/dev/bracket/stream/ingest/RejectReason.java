@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 /**
  * Why an event could not be used. The identifier travels in the rejected record's

@@ -1,5 +1,10 @@
-package dev.bracket.stream;
+package dev.bracket.stream.publish;
 
+import dev.bracket.stream.ingest.LateKey;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
+import dev.bracket.stream.transaction.PartialsCodec;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.StudyCells;
 

@@ -1,5 +1,7 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.WindowReport;
 import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;

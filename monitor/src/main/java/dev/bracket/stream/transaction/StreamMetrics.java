@@ -1,5 +1,6 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.RejectReason;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.MeterRegistry;
 import io.micrometer.core.instrument.Timer;
@@ -73,7 +74,7 @@ public final class StreamMetrics {
                 .register(registry)).increment();
     }
 
-    void published(String study) {
+    public void published(String study) {
         published.computeIfAbsent(study, s -> Counter.builder("bracket.reports.published").tag("study", s)
                 .description("Bound documents published").register(registry)).increment();
     }

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 /**
  * The key of one pane's statistics: study, stratum, instrument level, window and the start of the

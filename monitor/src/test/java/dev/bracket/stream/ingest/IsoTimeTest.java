@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;

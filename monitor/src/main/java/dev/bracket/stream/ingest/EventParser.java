@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;

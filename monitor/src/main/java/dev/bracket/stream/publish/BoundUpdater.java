@@ -1,5 +1,8 @@
-package dev.bracket.stream;
+package dev.bracket.stream.publish;
 
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.PartialsCodec;
+import dev.bracket.stream.transaction.StreamMetrics;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;

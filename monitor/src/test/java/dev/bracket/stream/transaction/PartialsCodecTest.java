@@ -1,5 +1,9 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.LateKey;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.ObservedArms;
 import org.junit.jupiter.api.DisplayName;

@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.ingest;
 
 import dev.bracket.config.StudyConfig;
 
@@ -67,7 +67,7 @@ public final class ParsedEvent {
         return rejection == null;
     }
 
-    void reset() {
+    public void reset() {
         study = null;
         studyIndex = -1;
         treated = false;

@@ -1,5 +1,12 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import io.micrometer.core.instrument.Counter;

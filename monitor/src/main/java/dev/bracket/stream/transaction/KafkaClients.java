@@ -1,4 +1,4 @@
-package dev.bracket.stream;
+package dev.bracket.stream.transaction;
 
 import dev.bracket.config.BracketConfig;
 import org.apache.kafka.clients.admin.Admin;
