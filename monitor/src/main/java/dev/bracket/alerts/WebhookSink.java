@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.retry.Backoff;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;

@@ -1,4 +1,4 @@
-package dev.bracket.alerts;
+package dev.bracket.retry;
 
 import java.time.Duration;
 import java.util.random.RandomGenerator;
