@@ -9,6 +9,7 @@ import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
+import dev.bracket.retry.Backoff;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.binder.kafka.KafkaClientMetrics;
 import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
@@ -38,6 +39,7 @@ import java.util.List;
 import java.util.Map;
 import java.util.Set;
 import java.util.concurrent.CountDownLatch;
+import java.util.concurrent.ThreadLocalRandom;
 
 /**
  * One member of the aggregation consumer group: reads events, keeps each assigned partition's
@@ -78,6 +80,9 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
+    /** Retries after a failed poll or commit: 0.5 s, doubling up to 10 s (common practice, no source). */
+    private static final Backoff RETRY = new Backoff(Duration.ofMillis(500), Duration.ofSeconds(10));
+    private int failuresInARow;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
     private KafkaProducer<byte[], byte[]> producer;
@@ -133,6 +138,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                     if (System.nanoTime() - lastCommitNanos >= commitNanos) {
                         commit();
                     }
+                    failuresInARow = 0;
                 } catch (WakeupException e) {
                     // close() was called; the loop condition ends it.
                 } catch (KafkaException | IllegalStateException e) {
@@ -305,10 +311,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /** Drops the given partitions' state and rebuilds it from the partials topic and the committed offsets. */
     private void resetToCommitted(Collection<TopicPartition> partitions) {
-        for (TopicPartition tp : partitions) {
-            states.remove(tp);
-            pendingOffsets.remove(tp);
-        }
+        forget(partitions);
         if (!partitions.isEmpty()) {
             restore(partitions);
         }
@@ -349,10 +352,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (!needsReset) {
                 commit(); // hands over exactly what was processed
             }
-            partitions.forEach(tp -> {
-                states.remove(tp);
-                pendingOffsets.remove(tp);
-            });
+            forget(partitions);
             countOwned();
         }
 
@@ -374,12 +374,17 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 }
                 inTransaction = false;
             }
-            partitions.forEach(tp -> {
-                states.remove(tp);
-                pendingOffsets.remove(tp);
-            });
+            forget(partitions);
             needsReset = true;
             countOwned();
+        }
+    }
+
+    /** Drops the partitions' in-memory state and uncommitted offsets. */
+    private void forget(Collection<TopicPartition> partitions) {
+        for (TopicPartition tp : partitions) {
+            states.remove(tp);
+            pendingOffsets.remove(tp);
         }
     }
 
@@ -390,7 +395,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     private void pause() {
         try {
-            Thread.sleep(500); // back off before retrying against a broker that just failed us
+            // Waits longer after each failure in a row, so a broker that keeps failing us is not hammered.
+            Thread.sleep(RETRY.delay(++failuresInARow, ThreadLocalRandom.current()).toMillis());
         } catch (InterruptedException e) {
             Thread.currentThread().interrupt();
             running = false;
