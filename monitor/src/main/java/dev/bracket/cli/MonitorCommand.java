@@ -4,6 +4,7 @@ import dev.bracket.report.Cautions;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
+import dev.bracket.demo.ShutdownGate;
 import dev.bracket.report.BoundRow;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
@@ -18,12 +19,11 @@ import picocli.CommandLine.Option;
 
 import java.io.PrintWriter;
 import java.nio.file.Path;
+import java.time.Duration;
 import java.time.LocalTime;
 import java.time.temporal.ChronoUnit;
 import java.util.Locale;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
-import java.util.concurrent.TimeUnit;
 import java.util.stream.Collectors;
 
 /** {@code bracket monitor}: the streaming monitor; runs until stopped (Ctrl-C or SIGTERM). */
@@ -76,27 +76,21 @@ public final class MonitorCommand implements Callable<Integer> {
                 config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),
                 config.topics().bounds(), config.instance(), config.group());
         out.flush();
-        CountDownLatch stop = new CountDownLatch(1);
-        CountDownLatch stopped = new CountDownLatch(1);
-        EmbeddedBroker ownBroker = broker;
-        // SIGTERM and Ctrl-C run this hook; the JVM halts when it returns, so it reports itself.
-        Runtime.getRuntime().addShutdownHook(new Thread(() -> {
-            stop.countDown();
+        // SIGTERM and Ctrl-C end the loop below; the JVM waits for the final commit before it halts.
+        try (ShutdownGate gate = new ShutdownGate("bracket-shutdown", Duration.ofMinutes(1))) {
+            Duration every = config.progressInterval();
+            while (!gate.awaitStop(every)) {
+                out.println(progressLine(monitor, latest));
+                out.flush();
+            }
             monitor.close();
             web.close();
-            if (ownBroker != null) {
-                ownBroker.close();
+            if (broker != null) {
+                broker.close();
             }
             out.println("stopped after a final commit");
             out.flush();
-            stopped.countDown();
-        }, "bracket-shutdown"));
-        long every = config.progressInterval().toMillis();
-        while (!stop.await(every, TimeUnit.MILLISECONDS)) {
-            out.println(progressLine(monitor, latest));
-            out.flush();
         }
-        stopped.await(60, TimeUnit.SECONDS);
         return 0;
     }
 

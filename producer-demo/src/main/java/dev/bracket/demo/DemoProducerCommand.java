@@ -15,8 +15,6 @@ import java.nio.file.Path;
 import java.time.Clock;
 import java.time.Duration;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
-import java.util.concurrent.atomic.AtomicBoolean;
 
 /** Sends the simulated rollout (or a file of JSON lines) to the outcomes topic. */
 @Command(name = "demo-producer",
@@ -121,28 +119,11 @@ public final class DemoProducerCommand implements Callable<Integer> {
 
     /** Sends until done or Ctrl-C; a Ctrl-C still flushes what was handed to the producer. */
     private int send(EventFeed feed, DemoProducer.Limits limits) {
-        AtomicBoolean stop = new AtomicBoolean();
-        CountDownLatch finished = new CountDownLatch(1);
-        Thread hook = new Thread(() -> {
-            stop.set(true);
-            try {
-                finished.await();
-            } catch (InterruptedException e) {
-                Thread.currentThread().interrupt();
-            }
-        });
-        Runtime.getRuntime().addShutdownHook(hook);
         DemoProducer sender;
-        try (Producer<String, String> producer = DemoProducer.kafkaProducer(bootstrapServers)) {
+        try (ShutdownGate gate = new ShutdownGate("bracket-producer-stop", Duration.ofMinutes(1));
+             Producer<String, String> producer = DemoProducer.kafkaProducer(bootstrapServers)) {
             sender = new DemoProducer(producer, topic, rate, Clock.systemUTC());
-            sender.run(feed, limits, stop::get);
-        } finally {
-            finished.countDown();
-        }
-        try {
-            Runtime.getRuntime().removeShutdownHook(hook);
-        } catch (IllegalStateException shuttingDown) {
-            // Ctrl-C arrived: the hook is already running and returns once we finish
+            sender.run(feed, limits, gate::stopRequested);
         }
         PrintWriter out = spec.commandLine().getOut();
         out.printf("Sent %d events; the broker acknowledged %d, refused %d.%n", sender.sent(), sender.acknowledged(), sender.failed());
