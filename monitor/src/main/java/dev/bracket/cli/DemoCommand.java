@@ -5,7 +5,7 @@ import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.DemoProducerCommand;
-import dev.bracket.demo.DurationText;
+import dev.bracket.duration.DurationText;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
 import dev.bracket.demo.ScenarioOptions;

@@ -1,5 +1,6 @@
 package dev.bracket.demo;
 
+import dev.bracket.duration.DurationText;
 import org.apache.kafka.clients.producer.Producer;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;

@@ -1,4 +1,4 @@
-package dev.bracket.demo;
+package dev.bracket.duration;
 
 import java.time.Duration;
 import java.util.Locale;
