@@ -2,15 +2,13 @@ package dev.bracket.config;
 
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.duration.DurationText;
 
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Iterator;
 import java.util.List;
-import java.util.Locale;
 import java.util.Set;
-import java.util.regex.Matcher;
-import java.util.regex.Pattern;
 
 /**
  * One node of the configuration with its place in the file. Typed accessors check the rule for
@@ -18,7 +16,6 @@ import java.util.regex.Pattern;
  */
 final class ConfigNode {
 
-    private static final Pattern DURATION = Pattern.compile("(\\d+(?:\\.\\d+)?)\\s*(ms|s|m|h|d)");
 
     private final YamlDocument doc;
     private final JsonNode node;
@@ -152,28 +149,15 @@ final class ConfigNode {
         return node.asLong();
     }
 
-    /** A duration such as {@code 500ms}, {@code 30s}, {@code 5m}, {@code 1h}, {@code 7d} or ISO-8601 {@code PT1H}. */
+    /** A duration in the grammar of {@link DurationText}, e.g. {@code 500ms}, {@code 5m} or {@code PT1H}. */
     Duration duration(Duration fallback) {
         if (isMissing()) {
             return fallback;
         }
-        String s = text().trim().toLowerCase(Locale.ROOT);
-        Matcher m = DURATION.matcher(s);
         try {
-            if (m.matches()) {
-                double v = Double.parseDouble(m.group(1));
-                long millis = Math.round(v * switch (m.group(2)) {
-                    case "ms" -> 1L;
-                    case "s" -> 1_000L;
-                    case "m" -> 60_000L;
-                    case "h" -> 3_600_000L;
-                    default -> 86_400_000L;
-                });
-                return Duration.ofMillis(millis);
-            }
-            return Duration.parse(s.toUpperCase(Locale.ROOT));
-        } catch (RuntimeException e) {
-            throw fail("must be a duration like 500ms, 30s, 5m, 1h, 7d or PT1H, was '" + node.asText() + "'");
+            return DurationText.parse(text());
+        } catch (IllegalArgumentException e) {
+            throw fail(e.getMessage());
         }
     }
 }

@@ -5,27 +5,40 @@ import java.util.Locale;
 import java.util.regex.Matcher;
 import java.util.regex.Pattern;
 
-/** Durations as people type them on a command line: {@code 90s}, {@code 5m}, {@code 2h}, {@code 500ms}, or plain seconds. */
+/**
+ * The one grammar of durations, in the configuration and on the command line: a number and a
+ * unit ({@code 500ms}, {@code 30s}, {@code 1.5m}, {@code 1h}, {@code 7d}) or ISO-8601
+ * ({@code PT1H}).
+ */
 public final class DurationText {
 
-    private static final Pattern FORM = Pattern.compile("(\\d+)(ms|s|m|h)?");
+    /** What a duration looks like, for error messages. */
+    public static final String EXAMPLES = "500ms, 30s, 5m, 1h, 7d or PT1H";
+
+    private static final Pattern FORM = Pattern.compile("(\\d+(?:\\.\\d+)?)\\s*(ms|s|m|h|d)");
 
     private DurationText() {
     }
 
+    /** Parses a duration; a text in neither form throws, naming the forms. */
     public static Duration parse(String text) {
-        Matcher m = FORM.matcher(text == null ? "" : text.trim().toLowerCase(Locale.ROOT));
-        if (!m.matches()) {
-            throw new IllegalArgumentException("'" + text + "' is not a duration; write e.g. 90s, 5m, 2h or 500ms");
+        String s = text == null ? "" : text.trim().toLowerCase(Locale.ROOT);
+        Matcher m = FORM.matcher(s);
+        try {
+            if (m.matches()) {
+                double v = Double.parseDouble(m.group(1));
+                return Duration.ofMillis(Math.round(v * switch (m.group(2)) {
+                    case "ms" -> 1L;
+                    case "s" -> 1_000L;
+                    case "m" -> 60_000L;
+                    case "h" -> 3_600_000L;
+                    default -> 86_400_000L;
+                }));
+            }
+            return Duration.parse(s.toUpperCase(Locale.ROOT));
+        } catch (RuntimeException e) {
+            throw new IllegalArgumentException("must be a duration like " + EXAMPLES + ", was '" + text + "'");
         }
-        long n = Long.parseLong(m.group(1));
-        String unit = m.group(2) == null ? "s" : m.group(2);
-        return switch (unit) {
-            case "ms" -> Duration.ofMillis(n);
-            case "s" -> Duration.ofSeconds(n);
-            case "m" -> Duration.ofMinutes(n);
-            default -> Duration.ofHours(n);
-        };
     }
 
     /** Picocli converter, so a bad value is reported as a usage error naming the option. */
