@@ -1,5 +1,6 @@
 package dev.bracket.alerts;
 
+import dev.bracket.alerts.delivery.RecentAlerts;
 import java.time.Duration;
 
 /**

@@ -4,7 +4,7 @@ import dev.bracket.stream.publish.BoundUpdater;
 import dev.bracket.stream.transaction.KafkaClients;
 import dev.bracket.stream.transaction.StreamAggregator;
 import dev.bracket.stream.transaction.StreamMetrics;
-import dev.bracket.alerts.AlertService;
+import dev.bracket.alerts.delivery.AlertService;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.report.LatestReports;

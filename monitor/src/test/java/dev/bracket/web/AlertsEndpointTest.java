@@ -1,11 +1,11 @@
 package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.bracket.alerts.AlertDispatcher;
+import dev.bracket.alerts.delivery.AlertDispatcher;
 import dev.bracket.alerts.AlertEvaluator;
 import dev.bracket.alerts.AlertsConfig;
-import dev.bracket.alerts.AlertService;
-import dev.bracket.alerts.RecentAlerts;
+import dev.bracket.alerts.delivery.AlertService;
+import dev.bracket.alerts.delivery.RecentAlerts;
 import dev.bracket.alerts.StudyAlertConfig;
 import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.ArmStatistics;

@@ -1,4 +1,6 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
+
+import dev.bracket.alerts.AlertTransition;
 
 /**
  * Somewhere alert transitions go. {@link #accept} is called in transition order from one thread

@@ -1,5 +1,12 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertRule;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.Evidence;
+import dev.bracket.alerts.Snapshots;
+import dev.bracket.alerts.Verdict;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.IdentifiedInterval;
 
@@ -9,7 +16,7 @@ import java.util.List;
 import java.util.Map;
 
 /** Real transitions from the state machine, for sink tests. */
-final class Transitions {
+public final class Transitions {
 
     static final Evidence EVIDENCE = new Evidence.OfBand(Snapshots.arms(100, 0.6, 100, 0.4),
             IdentifiedInterval.of(0.2, 0.6), Snapshots.band(BandMethod.ANYTIME, 0.05, 0.7),
@@ -18,12 +25,12 @@ final class Transitions {
     private Transitions() {
     }
 
-    static AlertKey key(String study, String assumptions) {
+    public static AlertKey key(String study, String assumptions) {
         return new AlertKey(study, assumptions, "cumulative", AlertRule.SIGN_IDENTIFIED);
     }
 
     /** {@code count} alternating firing/resolved transitions of one key, one minute apart. */
-    static List<AlertTransition> alternating(AlertKey key, int count) {
+    public static List<AlertTransition> alternating(AlertKey key, int count) {
         List<AlertTransition> out = new ArrayList<>();
         AlertState s = AlertState.initial(key);
         Instant at = Snapshots.T0;

@@ -1,5 +1,6 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertTransition;
 import java.util.ArrayDeque;
 import java.util.ArrayList;
 import java.util.Collections;

@@ -1,5 +1,8 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertText;
 import org.apache.kafka.clients.consumer.Consumer;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;

@@ -1,5 +1,8 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertRule;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.TransitionKind;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.slf4j.Logger;

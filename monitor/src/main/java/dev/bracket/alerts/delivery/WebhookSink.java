@@ -1,5 +1,7 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertText;
+import dev.bracket.alerts.AlertTransition;
 import dev.bracket.retry.Backoff;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.Gauge;

@@ -1,5 +1,11 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertsConfig;
+import dev.bracket.alerts.BoundSnapshot;
+import dev.bracket.alerts.MutableClock;
+import dev.bracket.alerts.SignIdentifiedRule;
+import dev.bracket.alerts.Snapshots;
+import dev.bracket.alerts.StudyAlertConfig;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.broker.EmbeddedBroker;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;

@@ -1,5 +1,13 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertEvaluator;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.AlertsConfig;
+import dev.bracket.alerts.MutableClock;
+import dev.bracket.alerts.Snapshots;
+import dev.bracket.alerts.StreamStalledRule;
+import dev.bracket.alerts.StudyAlertConfig;
+import dev.bracket.alerts.TransitionKind;
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;

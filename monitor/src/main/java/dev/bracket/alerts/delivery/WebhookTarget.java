@@ -1,4 +1,4 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
 import java.net.URI;
 import java.time.Duration;

@@ -1,5 +1,10 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertEvaluator;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertsConfig;
+import dev.bracket.alerts.BoundSnapshot;
+import dev.bracket.alerts.StudyAlertConfig;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.BoundRow;
 import dev.bracket.report.PublishedReport;

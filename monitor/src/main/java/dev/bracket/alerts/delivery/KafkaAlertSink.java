@@ -1,5 +1,6 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertTransition;
 import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.apache.kafka.clients.admin.NewTopic;

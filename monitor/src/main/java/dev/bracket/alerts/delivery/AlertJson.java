@@ -1,5 +1,10 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.Evidence;
+import dev.bracket.alerts.TransitionKind;
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.JsonNode;

@@ -1,5 +1,15 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertEvaluator;
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertRule;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.AssumptionsRefutedRule;
+import dev.bracket.alerts.Evidence;
+import dev.bracket.alerts.Snapshots;
+import dev.bracket.alerts.StudyAlertConfig;
+import dev.bracket.alerts.Verdict;
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;

@@ -1,4 +1,4 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
 import com.sun.net.httpserver.HttpServer;
 
@@ -19,9 +19,9 @@ import java.util.function.IntUnaryOperator;
  * (from 1) with the status {@code behaviour} gives for n, optionally after a delay, and records
  * every request as it arrived.
  */
-final class Receiver implements AutoCloseable {
+public final class Receiver implements AutoCloseable {
 
-    record Request(long arrivedNanos, String idempotencyKey, String authorization, String body, int status) {
+    public record Request(long arrivedNanos, String idempotencyKey, String authorization, String body, int status) {
     }
 
     private final int port;
@@ -31,7 +31,7 @@ final class Receiver implements AutoCloseable {
     private ExecutorService executor;
 
     /** Reserves a free port without listening on it yet: the receiver is "down" until {@link #start}. */
-    Receiver() {
+    public Receiver() {
         try (ServerSocket s = new ServerSocket(0, 1, java.net.InetAddress.getLoopbackAddress())) {
             port = s.getLocalPort();
         } catch (IOException e) {
@@ -39,7 +39,7 @@ final class Receiver implements AutoCloseable {
         }
     }
 
-    String url() {
+    public String url() {
         return "http://127.0.0.1:" + port + "/hook";
     }
 
@@ -73,12 +73,12 @@ final class Receiver implements AutoCloseable {
         start(behaviour, n -> 0);
     }
 
-    List<Request> requests() {
+    public List<Request> requests() {
         return List.copyOf(requests);
     }
 
     /** The idempotency keys of successful requests, each once, in the order first acknowledged. */
-    List<String> uniqueDeliveries() {
+    public List<String> uniqueDeliveries() {
         return requests.stream().filter(r -> r.status() / 100 == 2).map(Request::idempotencyKey).distinct().toList();
     }
 

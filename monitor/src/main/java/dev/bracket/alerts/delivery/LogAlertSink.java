@@ -1,5 +1,7 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.TransitionKind;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 

@@ -1,5 +1,15 @@
-package dev.bracket.alerts;
+package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.AlertEvaluator;
+import dev.bracket.alerts.AlertKey;
+import dev.bracket.alerts.AlertRule;
+import dev.bracket.alerts.AlertState;
+import dev.bracket.alerts.AlertTransition;
+import dev.bracket.alerts.BoundSnapshot;
+import dev.bracket.alerts.SignIdentifiedRule;
+import dev.bracket.alerts.Snapshots;
+import dev.bracket.alerts.StudyAlertConfig;
+import dev.bracket.alerts.TransitionKind;
 import dev.bracket.bands.BandMethod;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
