@@ -1,6 +1,5 @@
 package dev.bracket.alerts;
 
-import dev.bracket.alerts.delivery.WebhookTarget;
 import dev.bracket.bands.BandMethod;
 
 import java.util.List;

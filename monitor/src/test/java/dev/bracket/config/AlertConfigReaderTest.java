@@ -10,7 +10,7 @@ import dev.bracket.alerts.PracticalEquivalenceRule;
 import dev.bracket.alerts.SignIdentifiedRule;
 import dev.bracket.alerts.StreamStalledRule;
 import dev.bracket.alerts.StudyAlertConfig;
-import dev.bracket.alerts.delivery.WebhookTarget;
+import dev.bracket.alerts.WebhookTarget;
 import dev.bracket.bands.BandMethod;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;

@@ -1,5 +1,6 @@
 package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.WebhookTarget;
 import dev.bracket.alerts.AlertEvaluator;
 import dev.bracket.alerts.AlertState;
 import dev.bracket.alerts.AlertsConfig;

@@ -1,5 +1,6 @@
 package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.WebhookTarget;
 import dev.bracket.alerts.AlertText;
 import dev.bracket.alerts.AlertTransition;
 import dev.bracket.retry.Backoff;

@@ -1,5 +1,6 @@
 package dev.bracket.alerts.delivery;
 
+import dev.bracket.alerts.WebhookTarget;
 import dev.bracket.alerts.AlertTransition;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;

@@ -1,4 +1,4 @@
-package dev.bracket.alerts.delivery;
+package dev.bracket.alerts;
 
 import java.net.URI;
 import java.time.Duration;
