@@ -1,9 +1,9 @@
 package dev.bracket.config;
 
-import dev.bracket.alerts.AlertOptions;
+import dev.bracket.alerts.AlertsConfig;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -20,7 +20,6 @@ import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -47,11 +46,11 @@ import java.util.regex.Pattern;
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
  * max-clock-skew:     event times further ahead of the record timestamp or the clock are rejected
- * threads:            aggregation group members this instance runs (each its own consumer and transactions)
+ * group-members:      aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id; default <group>-<host name>)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
- * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertSettings}
+ * alerts:             {topic, check-interval, recent-transitions, restore-timeout}; each study's own alerts: see {@link AlertConfigReader}
  * </pre>
  */
 public record BracketConfig(
@@ -61,19 +60,19 @@ public record BracketConfig(
         TopicNames topics,
         List<WindowSpec> windows,
         Duration grace,
-        BandSettings bands,
+        BandConfig bands,
         Duration commitInterval,
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
         Duration maxClockSkew,
-        int threads,
+        int groupMembers,
         String group,
         String instance,
         Map<String, String> kafka,
         Path brokerDataDir,
         int brokerPort,
-        AlertOptions alerts) {
+        AlertsConfig alerts) {
 
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
@@ -81,7 +80,7 @@ public record BracketConfig(
     private static final int MAX_PARTITIONS = 10_000;
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew", "threads", "group", "instance", "kafka", "broker",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew", "group-members", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -129,14 +128,13 @@ public record BracketConfig(
         if (!(bandLevel > 0 && bandLevel < 1)) {
             throw root.get("band-level").fail("must lie strictly between 0 and 1, e.g. 0.95");
         }
-        Set<BandMethod> methods = switch (root.get("bands").text("both")) {
-            case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
-            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
-            case "none" -> EnumSet.noneOf(BandMethod.class);
-            default -> throw root.get("bands").fail("must be both, fixed, anytime or none");
-        };
-        BandSettings bands = new BandSettings(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        Set<BandMethod> methods;
+        try {
+            methods = BandMethod.parseChoice(root.get("bands").text("both"));
+        } catch (IllegalArgumentException e) {
+            throw root.get("bands").fail(e.getMessage());
+        }
+        BandConfig bands = new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = root.get("max-event-bytes").positiveLong(65_536);
         if (maxBytes > 16 * 1024 * 1024) {
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
@@ -149,9 +147,9 @@ public record BracketConfig(
         if (grace.isNegative()) {
             throw root.get("grace").fail("must not be negative");
         }
-        long threads = root.get("threads").positiveLong(1);
-        if (threads > 64) {
-            throw root.get("threads").fail("must be at most 64");
+        long groupMembers = root.get("group-members").positiveLong(1);
+        if (groupMembers > 64) {
+            throw root.get("group-members").fail("must be at most 64");
         }
         ConfigNode broker = root.get("broker").onlyKeys(Set.of("data-dir", "port"));
         long port = broker.get("port").isMissing() ? 0 : broker.get("port").positiveLong(0);
@@ -160,12 +158,12 @@ public record BracketConfig(
         }
         String group = name(root.get("group"), "bracket");
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes, skew, (int) threads,
+                bands, commit, publish, progress, (int) maxBytes, skew, (int) groupMembers,
                 group,
                 name(root.get("instance"), defaultInstance(group)),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
-                (int) port, AlertSettings.options(root.get("alerts")));
+                (int) port, AlertConfigReader.alertsConfig(root.get("alerts")));
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -178,7 +176,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, maxClockSkew, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, maxClockSkew, groupMembers, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */
@@ -235,7 +233,7 @@ public record BracketConfig(
             }
             InstrumentAssumption instrument = instrument(s.get("instrument"), kind);
             List<AssumptionSet> sets = assumptions(s.get("assume")).stream().map(set -> set.withInstrument(instrument)).toList();
-            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertSettings.study(s.get("alerts"))));
+            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertConfigReader.study(s.get("alerts"))));
         }
         return out;
     }
@@ -258,21 +256,18 @@ public record BracketConfig(
         if (node.isMissing()) {
             return AssumptionSet.eachSingle();
         }
-        List<AssumptionSet> sets = new ArrayList<>();
-        for (ConfigNode item : node.elements()) {
-            String text = item.isArray()
-                    ? String.join(",", item.elements().stream().map(ConfigNode::text).toList())
-                    : item.text();
-            try {
-                sets.add(AssumptionSet.parse(text));
-            } catch (IllegalArgumentException e) {
-                throw item.fail(e.getMessage());
-            }
-        }
-        if (sets.isEmpty()) {
+        List<ConfigNode> items = node.elements();
+        if (items.isEmpty()) {
             throw node.fail("must list at least one assumption set, e.g. [[worst-case]]");
         }
-        return sets;
+        List<String> texts = items.stream()
+                .map(item -> item.isArray() ? String.join(",", item.elements().stream().map(ConfigNode::text).toList()) : item.text())
+                .toList();
+        try {
+            return AssumptionSet.parseAll(texts);
+        } catch (AssumptionSet.BadEntry e) {
+            throw items.get(e.index()).fail(e.getMessage());
+        }
     }
 
     private static List<InputTopic> inputs(ConfigNode node) {

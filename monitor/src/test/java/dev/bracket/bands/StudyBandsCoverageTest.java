@@ -53,7 +53,7 @@ class StudyBandsCoverageTest {
     }
 
     private static void coverage(List<PopulationCell> population, AssumptionSet assumptions, int n, int replications, long seed) {
-        BandSettings settings = BandSettings.both(LEVEL);
+        BandConfig settings = BandConfig.both(LEVEL);
         SplittableRandom rng = new SplittableRandom(seed);
         int[] lowerCovered = new int[2];
         int[] upperCovered = new int[2];

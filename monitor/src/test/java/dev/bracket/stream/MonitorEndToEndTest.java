@@ -1,5 +1,9 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.RejectedCopies;
+
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.app.Monitor;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.broker.BrokerPerClass;
