@@ -74,11 +74,12 @@ class StudyBandsCoverageTest {
      * excess over the identified width (a choice, no source: the references are first-order —
      * true instead of estimated spreads, normal instead of Wilson intervals for shares, a grid over
      * each box — and the gaps seen are below 2%; a 20% error in a critical value moves the excess
-     * by about 20%, four times this tolerance).
+     * by about 20%, four times this tolerance, while halving an anytime sequence's error moves it by
+     * only about 1% and goes unnoticed here).
      */
     private static final double WIDTH_TOLERANCE = 0.05;
 
-    /** Monte-Carlo standard errors of the mean width allowed on top (three: about one failure in 700 for a correct band). */
+    /** Monte-Carlo standard errors of the mean width allowed on top (three: a correct band fails about three times in a thousand, normal approximation). */
     private static final double MC_ERRORS = 3;
 
     private static final List<PopulationCell> STRATA = List.of(
@@ -162,6 +163,8 @@ class StudyBandsCoverageTest {
         if (method == BandMethod.FIXED_HORIZON) {
             return levels ? projectionWidth(strata, n, set, normal(boxError)) : imbensManskiWidth(population, n, set);
         }
+        // The band's routing for these sets: a per-unit quantity per end exists for worst case and MTR
+        // without levels, not once MTS bounds a counterfactual by the other arm's mean.
         boolean perEnd = !levels && !set.contains("mts");
         return perEnd ? identified + perEndExcess(population, n, set, mixture(ALPHA / 2))
                 : projectionWidth(strata, n, set, mixture(boxError));
