@@ -96,7 +96,7 @@ class MonitorCommandTest {
 
     /** The command line in this JVM (the runner of {@link CalcCommandTest} takes any subcommand). */
     private static CalcCommandTest.Run runInProcess(Path config) {
-        return CalcCommandTest.run("monitor", "--config", config.toString());
+        return CalcCommandTest.run("monitor", "--config", config.toString(), "--http-port", "0");
     }
 
     private static String runUntilProgressThenStop(Path config, Path log) throws IOException, InterruptedException {
