@@ -37,18 +37,18 @@ record ConfigKey<T>(String name, Type<T> type, boolean required, T fallback, Che
      * What a key holds and how it is read; {@code keys} are the keys of a nested mapping (or of
      * each mapping in a list), {@code null} for a plain value or an open mapping.
      */
-    record Type<T>(String name, Reader<T> reader, ConfigSection keys) {
+    record Type<T>(Reader<T> reader, ConfigSection keys) {
 
-        static final Type<String> TEXT = new Type<>("text", ConfigNode::text, null);
-        static final Type<Double> NUMBER = new Type<>("number", (n, f) -> n.isMissing() ? f : n.number(), null);
-        static final Type<Long> WHOLE = new Type<>("whole number > 0", ConfigNode::positiveLong, null);
-        static final Type<Duration> DURATION = new Type<>("duration", ConfigNode::duration, null);
+        static final Type<String> TEXT = new Type<>(ConfigNode::text, null);
+        static final Type<Double> NUMBER = new Type<>((n, f) -> n.isMissing() ? f : n.number(), null);
+        static final Type<Long> WHOLE = new Type<>(ConfigNode::positiveLong, null);
+        static final Type<Duration> DURATION = new Type<>(ConfigNode::duration, null);
         /** A list of free-form items (e.g. assumption sets), or a mapping passed on verbatim. */
-        static final Type<ConfigNode> FREE = new Type<>("free-form", (n, f) -> n, null);
+        static final Type<ConfigNode> FREE = new Type<>((n, f) -> n, null);
 
         /** A word read by {@code parse}; its complaint becomes an error at the value. */
-        static <T> Type<T> choice(String name, Function<String, T> parse) {
-            return new Type<>(name, (n, f) -> {
+        static <T> Type<T> choice(Function<String, T> parse) {
+            return new Type<>((n, f) -> {
                 if (n.isMissing()) {
                     return f;
                 }
@@ -62,17 +62,17 @@ record ConfigKey<T>(String name, Type<T> type, boolean required, T fallback, Che
 
         /** A mapping with the keys of {@code keys}; any other key is refused. */
         static Type<ConfigNode> mapping(ConfigSection keys) {
-            return new Type<>("mapping", (n, f) -> n.onlyKeys(keys.names()), keys);
+            return new Type<>((n, f) -> n.onlyKeys(keys.names()), keys);
         }
 
         /** A list of mappings with the keys of {@code keys}, each checked by its reader in turn. */
         static Type<ConfigNode> list(ConfigSection keys) {
-            return new Type<>("list", (n, f) -> n, keys);
+            return new Type<>((n, f) -> n, keys);
         }
 
         /** A mapping whose keys name its entries (alert rules); the reader checks the names. */
         static Type<ConfigNode> named(ConfigSection keys) {
-            return new Type<>("named mappings", (n, f) -> n, keys);
+            return new Type<>((n, f) -> n, keys);
         }
 
         T read(ConfigNode node, T fallback) {

@@ -41,7 +41,7 @@ final class ConfigKeys {
         static final ConfigKey<ConfigNode> WINDOWS = KEYS.key("windows", Type.list(Window.KEYS), null, "tumbling and sliding windows; cumulative is always kept");
         static final ConfigKey<Duration> GRACE = KEYS.key("grace", Type.DURATION, Duration.ofMinutes(5), d -> d.isNegative() ? "must not be negative" : null, "how late (event time) an event may be and still count in its window pane");
         static final ConfigKey<Double> BAND_LEVEL = KEYS.key("band-level", Type.NUMBER, 0.95, v -> v > 0 && v < 1 ? null : "must lie strictly between 0 and 1, e.g. 0.95", "confidence level of published bands");
-        static final ConfigKey<Set<BandMethod>> BANDS = KEYS.key("bands", Type.choice("both|fixed|anytime|none", BandMethod::parseChoice), BandMethod.parseChoice("both"), "which bands to publish");
+        static final ConfigKey<Set<BandMethod>> BANDS = KEYS.key("bands", Type.choice(BandMethod::parseChoice), BandMethod.parseChoice("both"), "which bands to publish: both, fixed, anytime or none");
         static final ConfigKey<Duration> COMMIT_INTERVAL = KEYS.key("commit-interval", Type.DURATION, Duration.ofSeconds(1), Check.positive(), "how often partial statistics and offsets are committed (one transaction)");
         static final ConfigKey<Duration> PUBLISH_INTERVAL = KEYS.key("publish-interval", Type.DURATION, Duration.ofMillis(500), Check.positive(), "least time between two published reports of one study");
         static final ConfigKey<Duration> PROGRESS_INTERVAL = KEYS.key("progress-interval", Type.DURATION, Duration.ofSeconds(10), Check.positive(), "how often the monitor prints a progress line");
@@ -77,7 +77,7 @@ final class ConfigKeys {
         static final ConfigSection KEYS = new ConfigSection();
         static final ConfigKey<String> ID = KEYS.required("id", Type.TEXT, "the study's name, unique");
         static final ConfigKey<ConfigNode> OUTCOME = KEYS.required("outcome", Type.mapping(Outcome.KEYS), "the declared range of the outcome");
-        static final ConfigKey<InstrumentAssumption> INSTRUMENT = KEYS.key("instrument", Type.choice("mean-independent|independent", InstrumentAssumption::parse), InstrumentAssumption.MEAN_INDEPENDENT, "what is assumed about the instrument levels");
+        static final ConfigKey<InstrumentAssumption> INSTRUMENT = KEYS.key("instrument", Type.choice(InstrumentAssumption::parse), InstrumentAssumption.MEAN_INDEPENDENT, "what is assumed about the instrument levels: mean-independent or independent (binary outcomes)");
         static final ConfigKey<ConfigNode> ASSUME = KEYS.key("assume", Type.FREE, null, "assumption sets, each a list or a comma-separated text (default: each single assumption)");
         static final ConfigKey<ConfigNode> ALERTS = KEYS.key("alerts", Type.mapping(StudyAlerts.KEYS), null, "the study's alert rules and where its alerts go");
     }
@@ -87,8 +87,8 @@ final class ConfigKeys {
         static final ConfigSection KEYS = new ConfigSection();
         static final ConfigKey<Double> MIN = KEYS.required("min", Type.NUMBER, "lowest possible outcome; declared, never estimated");
         static final ConfigKey<Double> MAX = KEYS.required("max", Type.NUMBER, "highest possible outcome; declared, never estimated");
-        static final ConfigKey<Direction> BETTER = KEYS.key("better", Type.choice("higher|lower", Direction::parse), Direction.HIGHER, "which outcomes are better");
-        static final ConfigKey<OutcomeKind> KIND = KEYS.key("kind", Type.choice("bounded|binary", OutcomeKind::parse), OutcomeKind.BOUNDED, "bounded (anywhere in [min, max]) or binary (only min or max)");
+        static final ConfigKey<Direction> BETTER = KEYS.key("better", Type.choice(Direction::parse), Direction.HIGHER, "which outcomes are better: higher or lower");
+        static final ConfigKey<OutcomeKind> KIND = KEYS.key("kind", Type.choice(OutcomeKind::parse), OutcomeKind.BOUNDED, "bounded (anywhere in [min, max]) or binary (only min or max)");
     }
 
     /** {@code inputs[]}. */
@@ -132,7 +132,7 @@ final class ConfigKeys {
     /** {@code studies[].alerts}. */
     static final class StudyAlerts {
         static final ConfigSection KEYS = new ConfigSection();
-        static final ConfigKey<BandMethod> BAND = KEYS.key("band", Type.choice("anytime|fixed", BandMethod::parse), StudyAlertConfig.defaults().band(), "the band the per-row rules judge");
+        static final ConfigKey<BandMethod> BAND = KEYS.key("band", Type.choice(BandMethod::parse), StudyAlertConfig.defaults().band(), "the band the per-row rules judge: anytime or fixed");
         static final ConfigKey<Long> MIN_PER_ARM = KEYS.key("min-per-arm", Type.WHOLE, StudyAlertConfig.DEFAULT_MIN_PER_ARM, "units per arm before any per-row rule may fire");
         static final ConfigKey<Long> CLEAR_AFTER = KEYS.key("clear-after", Type.WHOLE, (long) StudyAlertConfig.DEFAULT_CLEAR_AFTER, Check.atMost(1_000), "consecutive looks without the condition that resolve an alert");
         static final ConfigKey<ConfigNode> RULES = KEYS.key("rules", Type.named(Rules.KEYS), null, "rules by name (absent: sign-identified and assumptions-refuted; {} for none)");
@@ -193,7 +193,7 @@ final class ConfigKeys {
     /** {@code studies[].alerts.webhooks[]}. */
     static final class Webhook {
         static final ConfigSection KEYS = new ConfigSection();
-        static final ConfigKey<URI> URL = KEYS.required("url", Type.choice("URL", ConfigKeys::url), "the receiver");
+        static final ConfigKey<URI> URL = KEYS.required("url", Type.choice(ConfigKeys::url), "the receiver");
         static final ConfigKey<String> TOKEN_ENV = KEYS.key("token-env", Type.TEXT, null, "environment variable whose value is sent as Authorization: Bearer <value>");
         static final ConfigKey<Duration> TIMEOUT = KEYS.key("timeout", Type.DURATION, WebhookTarget.DEFAULT_TIMEOUT, "how long one request may take");
         static final ConfigKey<Duration> RETRY_FOR = KEYS.key("retry-for", Type.DURATION, WebhookTarget.DEFAULT_RETRY_FOR, "how long a transition is retried before it is dropped");
