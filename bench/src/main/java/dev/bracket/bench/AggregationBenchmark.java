@@ -7,7 +7,7 @@ import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import dev.bracket.stream.transaction.KafkaClients;
 import dev.bracket.app.Monitor;
 import dev.bracket.app.TopicSetup;

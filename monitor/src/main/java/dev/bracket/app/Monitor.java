@@ -8,7 +8,7 @@ import dev.bracket.stream.transaction.StreamMetrics;
 import dev.bracket.alerts.delivery.AlertService;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.apache.kafka.clients.admin.Admin;

@@ -1,6 +1,6 @@
 package dev.bracket.cli;
 
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 

@@ -12,69 +12,53 @@ import dev.bracket.alerts.StreamStalledRule;
 import dev.bracket.alerts.StudyAlertConfig;
 import dev.bracket.alerts.WebhookTarget;
 import dev.bracket.bands.BandMethod;
+import dev.bracket.config.ConfigKeys.Alerts;
+import dev.bracket.config.ConfigKeys.AssumptionsRefuted;
+import dev.bracket.config.ConfigKeys.DataQuality;
+import dev.bracket.config.ConfigKeys.IntervalNarrow;
+import dev.bracket.config.ConfigKeys.PracticalEquivalence;
+import dev.bracket.config.ConfigKeys.Rules;
+import dev.bracket.config.ConfigKeys.SignIdentified;
+import dev.bracket.config.ConfigKeys.StreamStalled;
+import dev.bracket.config.ConfigKeys.StudyAlerts;
+import dev.bracket.config.ConfigKeys.Webhook;
 
 import java.net.URI;
-import java.net.URISyntaxException;
-import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Optional;
-import java.util.Set;
 import java.util.function.Supplier;
 
 /**
  * Reads the alert sections: a study's {@code alerts} (rules, thresholds, band, webhooks) and the
- * top-level {@code alerts} (topic, check-interval, recent-transitions, restore-timeout). Keys:
- *
- * <pre>
- * studies[i].alerts:
- *   band: anytime | fixed      (default anytime)
- *   min-per-arm: 30                    units per arm before any per-row rule may fire
- *   clear-after: 3                     consecutive looks without the condition that resolve an alert
- *   rules:                             (absent: sign-identified and assumptions-refuted; {} for none)
- *     sign-identified: {clear-zero-margin}
- *     interval-narrow: {width, clear-extra-width}
- *     practical-equivalence: {lower, upper, clear-outside-by}
- *     assumptions-refuted: {clear-min-width}
- *     stream-stalled: {after}
- *     data-quality: {max-rejected-share, period (10m), min-events (100), clear-share-below}
- *   webhooks: [{url, token-env, timeout (5s), retry-for (15m), queue (1000), backoff-initial (500ms), backoff-max (60s)}]
- * alerts:
- *   topic: bracket-alerts   check-interval: 5s   recent-transitions: 200   restore-timeout: 30s
- * </pre>
+ * top-level {@code alerts} (topic, check-interval, recent-transitions, restore-timeout). The keys
+ * are defined in {@link ConfigKeys} ({@code StudyAlerts}, {@code Rules} and one class per rule,
+ * {@code Webhook}, {@code Alerts}).
  */
 final class AlertConfigReader {
-
-    private static final Set<String> STUDY_KEYS = Set.of("band", "min-per-arm", "clear-after", "rules", "webhooks");
-    private static final Set<String> WEBHOOK_KEYS =
-            Set.of("url", "token-env", "timeout", "retry-for", "queue", "backoff-initial", "backoff-max");
 
     private AlertConfigReader() {
     }
 
+    /** A study's alert settings from its {@code alerts} mapping (keys already checked), defaults when absent. */
     static StudyAlertConfig study(ConfigNode alerts) {
         StudyAlertConfig d = StudyAlertConfig.defaults();
         if (alerts.isMissing()) {
             return d;
         }
-        alerts.onlyKeys(STUDY_KEYS);
-        BandMethod band = alerts.get("band").isMissing() ? d.band() : bandMethod(alerts.get("band"));
-        long minPerArm = alerts.get("min-per-arm").positiveLong(d.minPerArm());
-        long clearAfter = alerts.get("clear-after").positiveLong(d.clearAfter());
-        if (clearAfter > 1_000) {
-            throw alerts.get("clear-after").fail("must be at most 1000");
-        }
+        BandMethod band = StudyAlerts.BAND.read(alerts);
+        long minPerArm = StudyAlerts.MIN_PER_ARM.read(alerts);
+        long clearAfter = StudyAlerts.CLEAR_AFTER.read(alerts);
         List<RowRule> rowRules = new ArrayList<>(d.rowRules());
         Optional<StreamStalledRule> stalled = d.stalled();
         Optional<DataQualityRule> quality = d.quality();
-        ConfigNode rules = alerts.get("rules");
+        ConfigNode rules = StudyAlerts.RULES.read(alerts);
         if (!rules.isMissing()) {
             if (!rules.isObject()) {
                 throw rules.fail("must be a mapping of rule names (" + AlertRule.knownIds() + ") to their settings");
             }
             rowRules.clear();
             for (String name : rules.keys()) {
-                ConfigNode r = rules.get(name);
                 AlertRule rule;
                 try {
                     rule = AlertRule.fromId(name);
@@ -82,27 +66,38 @@ final class AlertConfigReader {
                     throw rules.fail("names an unknown rule '" + name + "'; known: " + AlertRule.knownIds());
                 }
                 switch (rule) {
-                    case SIGN_IDENTIFIED -> rowRules.add(build(r.onlyKeys(Set.of("clear-zero-margin")),
-                            () -> new SignIdentifiedRule(number(r.get("clear-zero-margin"), 0))));
-                    case INTERVAL_NARROW -> rowRules.add(build(r.onlyKeys(Set.of("width", "clear-extra-width")),
-                            () -> new IntervalNarrowRule(r.require("width").number(), number(r.get("clear-extra-width"), 0))));
-                    case PRACTICAL_EQUIVALENCE -> rowRules.add(build(r.onlyKeys(Set.of("lower", "upper", "clear-outside-by")),
-                            () -> new PracticalEquivalenceRule(r.require("lower").number(), r.require("upper").number(),
-                                    number(r.get("clear-outside-by"), 0))));
-                    case ASSUMPTIONS_REFUTED -> rowRules.add(build(r.onlyKeys(Set.of("clear-min-width")),
-                            () -> new AssumptionsRefutedRule(number(r.get("clear-min-width"), 0))));
-                    case STREAM_STALLED -> stalled = Optional.of(build(r.onlyKeys(Set.of("after")),
-                            () -> new StreamStalledRule(r.require("after").duration(null))));
-                    case DATA_QUALITY -> quality = Optional.of(build(
-                            r.onlyKeys(Set.of("max-rejected-share", "period", "min-events", "clear-share-below")),
-                            () -> new DataQualityRule(r.require("max-rejected-share").number(),
-                                    r.get("period").duration(Duration.ofMinutes(10)), r.get("min-events").positiveLong(100),
-                                    number(r.get("clear-share-below"), 0))));
+                    case SIGN_IDENTIFIED -> {
+                        ConfigNode r = Rules.SIGN_IDENTIFIED.read(rules);
+                        rowRules.add(build(r, () -> new SignIdentifiedRule(SignIdentified.CLEAR_ZERO_MARGIN.read(r))));
+                    }
+                    case INTERVAL_NARROW -> {
+                        ConfigNode r = Rules.INTERVAL_NARROW.read(rules);
+                        rowRules.add(build(r, () -> new IntervalNarrowRule(IntervalNarrow.WIDTH.read(r),
+                                IntervalNarrow.CLEAR_EXTRA_WIDTH.read(r))));
+                    }
+                    case PRACTICAL_EQUIVALENCE -> {
+                        ConfigNode r = Rules.PRACTICAL_EQUIVALENCE.read(rules);
+                        rowRules.add(build(r, () -> new PracticalEquivalenceRule(PracticalEquivalence.LOWER.read(r),
+                                PracticalEquivalence.UPPER.read(r), PracticalEquivalence.CLEAR_OUTSIDE_BY.read(r))));
+                    }
+                    case ASSUMPTIONS_REFUTED -> {
+                        ConfigNode r = Rules.ASSUMPTIONS_REFUTED.read(rules);
+                        rowRules.add(build(r, () -> new AssumptionsRefutedRule(AssumptionsRefuted.CLEAR_MIN_WIDTH.read(r))));
+                    }
+                    case STREAM_STALLED -> {
+                        ConfigNode r = Rules.STREAM_STALLED.read(rules);
+                        stalled = Optional.of(build(r, () -> new StreamStalledRule(StreamStalled.AFTER.read(r))));
+                    }
+                    case DATA_QUALITY -> {
+                        ConfigNode r = Rules.DATA_QUALITY.read(rules);
+                        quality = Optional.of(build(r, () -> new DataQualityRule(DataQuality.MAX_REJECTED_SHARE.read(r),
+                                DataQuality.PERIOD.read(r), DataQuality.MIN_EVENTS.read(r), DataQuality.CLEAR_SHARE_BELOW.read(r))));
+                    }
                 }
             }
         }
         List<WebhookTarget> webhooks = new ArrayList<>();
-        for (ConfigNode w : alerts.get("webhooks").elements()) {
+        for (ConfigNode w : StudyAlerts.WEBHOOKS.read(alerts).elements()) {
             webhooks.add(webhook(w));
         }
         Optional<StreamStalledRule> stalledRule = stalled;
@@ -111,50 +106,22 @@ final class AlertConfigReader {
                 qualityRule, webhooks));
     }
 
+    /** The top-level {@code alerts} mapping (keys already checked), defaults when absent. */
     static AlertsConfig alertsConfig(ConfigNode node) {
-        AlertsConfig d = AlertsConfig.DEFAULTS;
         if (node.isMissing()) {
-            return d;
+            return AlertsConfig.DEFAULTS;
         }
-        node.onlyKeys(Set.of("topic", "check-interval", "recent-transitions", "restore-timeout"));
-        long recent = node.get("recent-transitions").positiveLong(d.recentTransitions());
-        if (recent > 100_000) {
-            throw node.get("recent-transitions").fail("must be at most 100000");
-        }
-        return build(node, () -> new AlertsConfig(node.get("topic").text(d.topic()), node.get("check-interval").duration(d.checkInterval()),
-                (int) recent, node.get("restore-timeout").duration(d.restoreTimeout())));
+        long recent = Alerts.RECENT_TRANSITIONS.read(node);
+        return build(node, () -> new AlertsConfig(Alerts.TOPIC.read(node), Alerts.CHECK_INTERVAL.read(node),
+                (int) recent, Alerts.RESTORE_TIMEOUT.read(node)));
     }
 
     private static WebhookTarget webhook(ConfigNode w) {
-        w.onlyKeys(WEBHOOK_KEYS);
-        ConfigNode urlNode = w.require("url");
-        URI url;
-        try {
-            url = new URI(urlNode.text());
-        } catch (URISyntaxException e) {
-            throw urlNode.fail("is not a URL (" + e.getMessage() + ")");
-        }
-        long queue = w.get("queue").positiveLong(WebhookTarget.DEFAULT_QUEUE);
-        if (queue > 1_000_000) {
-            throw w.get("queue").fail("must be at most 1000000");
-        }
-        return build(w, () -> new WebhookTarget(url, w.get("token-env").text(null),
-                w.get("timeout").duration(WebhookTarget.DEFAULT_TIMEOUT),
-                w.get("retry-for").duration(WebhookTarget.DEFAULT_RETRY_FOR), (int) queue,
-                w.get("backoff-initial").duration(WebhookTarget.DEFAULT_INITIAL_BACKOFF),
-                w.get("backoff-max").duration(WebhookTarget.DEFAULT_MAX_BACKOFF)));
-    }
-
-    private static BandMethod bandMethod(ConfigNode node) {
-        try {
-            return BandMethod.parse(node.text());
-        } catch (IllegalArgumentException e) {
-            throw node.fail(e.getMessage());
-        }
-    }
-
-    private static double number(ConfigNode node, double fallback) {
-        return node.isMissing() ? fallback : node.number();
+        Webhook.KEYS.check(w);
+        URI url = Webhook.URL.read(w);
+        long queue = Webhook.QUEUE.read(w);
+        return build(w, () -> new WebhookTarget(url, Webhook.TOKEN_ENV.read(w), Webhook.TIMEOUT.read(w),
+                Webhook.RETRY_FOR.read(w), (int) queue, Webhook.BACKOFF_INITIAL.read(w), Webhook.BACKOFF_MAX.read(w)));
     }
 
     /** Runs a constructor; its complaint about a value becomes an error located at {@code node}. */

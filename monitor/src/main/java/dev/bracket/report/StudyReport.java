@@ -12,7 +12,7 @@ import java.util.Map;
 
 /**
  * The bounds of one study for a list of assumption sets, with the pooled arms that produced
- * them. Built by {@link #of}; rendered by {@link ReportJson} and {@link ReportTable}.
+ * them. Built by {@link #of}; rendered by {@link dev.bracket.report.render.ReportJson} and {@link dev.bracket.report.render.ReportTable}.
  */
 public record StudyReport(OutcomeRange range, ObservedArms pooled, StudyCells cells, List<BoundRow> rows) {
 

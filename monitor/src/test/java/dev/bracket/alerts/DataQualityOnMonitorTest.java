@@ -3,7 +3,7 @@ package dev.bracket.alerts;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import dev.bracket.stream.ingest.EventParser;
 import dev.bracket.app.Monitor;
 import dev.bracket.stream.ingest.ParsedEvent;

@@ -14,7 +14,7 @@ import dev.bracket.stream.transaction.KafkaClients;
 
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;

@@ -10,7 +10,7 @@ import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.cli.BracketCommand;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.commons.math3.stat.descriptive.SummaryStatistics;
 import org.apache.kafka.clients.consumer.ConsumerRecord;

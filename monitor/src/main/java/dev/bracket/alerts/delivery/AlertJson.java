@@ -12,7 +12,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.bounds.AssumptionSet;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.render.ReportJson;
 
 import java.time.Duration;
 import java.time.Instant;

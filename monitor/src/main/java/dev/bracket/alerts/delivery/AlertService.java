@@ -8,7 +8,7 @@ import dev.bracket.alerts.BoundSnapshot;
 import dev.bracket.alerts.StudyAlertConfig;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.BoundRow;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 import io.micrometer.core.instrument.Gauge;
 import io.micrometer.core.instrument.MeterRegistry;
 import org.slf4j.Logger;

@@ -3,7 +3,7 @@ package dev.bracket.stream.publish;
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.render.ReportJson;
 
 import java.time.Instant;
 

@@ -15,7 +15,7 @@ import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 import dev.bracket.report.StudyReport;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.junit.jupiter.api.DisplayName;

@@ -1,4 +1,4 @@
-package dev.bracket.report;
+package dev.bracket.report.render;
 
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
@@ -7,6 +7,8 @@ import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.report.BoundRow;
+import dev.bracket.report.StudyReport;
 
 import java.util.TreeMap;
 

@@ -1,9 +1,12 @@
-package dev.bracket.report;
+package dev.bracket.report.render;
 
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeKind;
+import dev.bracket.report.BoundRow;
+import dev.bracket.report.Cautions;
+import dev.bracket.report.StudyReport;
 
 import java.util.LinkedHashSet;
 import java.util.Locale;

@@ -1,4 +1,6 @@
-package dev.bracket.report;
+package dev.bracket.report.store;
+
+import dev.bracket.report.StudyReport;
 
 import java.time.Instant;
 

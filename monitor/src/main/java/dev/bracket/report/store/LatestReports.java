@@ -1,4 +1,4 @@
-package dev.bracket.report;
+package dev.bracket.report.store;
 
 import java.util.Comparator;
 import java.util.List;
