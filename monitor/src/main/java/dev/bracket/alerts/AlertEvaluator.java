@@ -15,6 +15,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 
 /**
  * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
@@ -84,10 +85,15 @@ public final class AlertEvaluator {
     }
 
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
-    public synchronized List<AlertTransition> tick() {
+    public List<AlertTransition> tick() {
+        return tick(studies.keySet());
+    }
+
+    /** Judges the per-study rules of the given studies only (those this instance owns). */
+    public synchronized List<AlertTransition> tick(Set<String> judged) {
         Instant now = clock.instant();
         List<AlertTransition> out = new ArrayList<>();
-        studies.entrySet().stream().sorted(Map.Entry.comparingByKey()).forEach(e -> {
+        studies.entrySet().stream().filter(e -> judged.contains(e.getKey())).sorted(Map.Entry.comparingByKey()).forEach(e -> {
             String study = e.getKey();
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
@@ -117,6 +123,16 @@ public final class AlertEvaluator {
             }
             states.merge(s.key(), s, (mine, theirs) -> theirs.sequence() > mine.sequence() ? theirs : mine);
         }
+    }
+
+    /** The configured studies. */
+    public Set<String> studies() {
+        return studies.keySet();
+    }
+
+    /** Drops the states of {@code gone} (another instance judges them now and restores them from the alerts topic). */
+    public synchronized void forget(Set<String> gone) {
+        states.keySet().removeIf(k -> gone.contains(k.study()));
     }
 
     private boolean configured(AlertKey key) {

@@ -14,15 +14,22 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
+import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
 import java.util.concurrent.TimeUnit;
+import java.util.function.Function;
 
 /**
  * Alerting as the monitor runs it: the evaluator, its sinks and its clock. The bound updater
  * calls {@link #onReport} after each update, the event consumer {@link #recordEvents}; a
  * scheduler judges the per-study rules every {@link AlertOptions#tick()}. At start, state is
  * restored from the alerts topic, so a restart does not fire again what already fired.
+ *
+ * <p>When several instances share the studies ({@link #startShared}), this one judges only the
+ * studies it owns: {@link #take} restores their state from the alerts topic before the first
+ * judgement, {@link #release} stops judging them and drops their state.
  */
 public final class AlertService implements AutoCloseable {
 
@@ -32,12 +39,15 @@ public final class AlertService implements AutoCloseable {
     private final AlertDispatcher dispatcher;
     private final RecentAlerts recent;
     private final ScheduledExecutorService clockThread;
+    private final Set<String> owned = ConcurrentHashMap.newKeySet();
+    private Function<Set<String>, List<AlertState>> history = studies -> List.of();
 
     /** Wires given parts and starts the clock; {@link #start} builds the parts from configuration. */
     public AlertService(AlertEvaluator evaluator, AlertDispatcher dispatcher, RecentAlerts recent, AlertOptions options) {
         this.evaluator = evaluator;
         this.dispatcher = dispatcher;
         this.recent = recent;
+        this.owned.addAll(evaluator.studies());
         this.clockThread = Executors.newSingleThreadScheduledExecutor(r -> {
             Thread t = new Thread(r, "bracket-alerts-clock");
             t.setDaemon(true);
@@ -56,11 +66,31 @@ public final class AlertService implements AutoCloseable {
      */
     public static AlertService start(Map<String, StudyAlertConfig> studies, AlertOptions options,
                                      Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
+        AlertService service = build(studies, options, kafka, registry, clock);
+        service.take(studies.keySet());
+        return service;
+    }
+
+    /**
+     * Like {@link #start}, but owning no study until {@link #take} (instances sharing the studies
+     * through the updater group).
+     */
+    public static AlertService startShared(Map<String, StudyAlertConfig> studies, AlertOptions options,
+                                           Map<String, String> kafka, MeterRegistry registry, Clock clock) {
+        AlertService service = build(studies, options, Optional.of(kafka), registry, clock);
+        service.release(studies.keySet());
+        return service;
+    }
+
+    private static AlertService build(Map<String, StudyAlertConfig> studies, AlertOptions options,
+                                      Optional<Map<String, String>> kafka, MeterRegistry registry, Clock clock) {
         AlertEvaluator evaluator = new AlertEvaluator(studies, clock);
         RecentAlerts recent = new RecentAlerts(options.recent());
         List<AlertSink> common = new ArrayList<>(List.of(new LogAlertSink(), recent));
+        Function<Set<String>, List<AlertState>> history = owned -> List.of();
         if (kafka.isPresent()) {
-            evaluator.restore(AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout()));
+            history = owned -> AlertHistory.read(kafka.get(), options.topic(), options.restoreTimeout()).stream()
+                    .filter(s -> owned.contains(s.key().study())).toList();
             common.add(KafkaAlertSink.connect(kafka.get(), options.topic(), registry));
         } else {
             LOG.warn("no Kafka cluster for alerts: alert state is kept in memory only and a restart may fire alerts again");
@@ -70,7 +100,24 @@ public final class AlertService implements AutoCloseable {
         studies.forEach((study, config) -> config.webhooks().forEach(target -> byStudy
                 .computeIfAbsent(study, k -> new ArrayList<>())
                 .add(webhooks.computeIfAbsent(target, t -> new WebhookSink(t, registry)))));
-        return new AlertService(evaluator, new AlertDispatcher(common, byStudy, registry), recent, options);
+        AlertService service = new AlertService(evaluator, new AlertDispatcher(common, byStudy, registry), recent, options);
+        service.history = history;
+        return service;
+    }
+
+    /**
+     * Starts judging {@code studies}, after restoring their state from the alerts topic: what
+     * the previous owner fired stays fired, and is not announced again.
+     */
+    public synchronized void take(Set<String> studies) {
+        evaluator.restore(history.apply(studies));
+        owned.addAll(studies);
+    }
+
+    /** Stops judging {@code studies} and drops their state. */
+    public synchronized void release(Set<String> studies) {
+        owned.removeAll(studies);
+        evaluator.forget(studies);
     }
 
     /**
@@ -86,7 +133,9 @@ public final class AlertService implements AutoCloseable {
 
     /** Judges one snapshot; evaluation and hand-over are one step, so each key's transitions leave in order. */
     public synchronized void onSnapshot(BoundSnapshot snapshot) {
-        dispatcher.publish(evaluator.evaluate(snapshot));
+        if (owned.contains(snapshot.study())) {
+            dispatcher.publish(evaluator.evaluate(snapshot));
+        }
     }
 
     /** See {@link AlertEvaluator#recordEvents}. */
@@ -97,7 +146,7 @@ public final class AlertService implements AutoCloseable {
     /** Judges the per-study rules now (the scheduler calls it every tick). */
     public synchronized void tick() {
         try {
-            dispatcher.publish(evaluator.tick());
+            dispatcher.publish(evaluator.tick(owned));
         } catch (RuntimeException e) {
             LOG.error("alert tick failed; next tick will try again: {}", e.toString());
         }

@@ -7,6 +7,7 @@ import dev.bracket.config.WindowSpec;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
 import dev.bracket.report.ReportJson;
+import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
@@ -21,7 +22,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.Duration;
 import java.time.Instant;
-import java.util.ArrayList;
+import java.util.Collection;
 import java.util.HashMap;
 import java.util.LinkedHashSet;
 import java.util.List;
@@ -32,10 +33,20 @@ import java.util.concurrent.TimeUnit;
 import java.util.function.Consumer;
 
 /**
- * Reads the partials topic (committed records only), keeps the latest statistics of every
- * source partition per cell, and recomputes a study's reports when its numbers changed, at most
+ * Updates the bounds of the studies this instance owns. It is a member of the updater group
+ * ({@link KafkaClients#updaterConsumer}) on the partials topic, where all cells of a study lie in
+ * one partition ({@link PartialsCodec#partitionFor(String, int)}), so the group protocol gives
+ * each study to exactly one live instance and moves it when that instance leaves or dies.
+ *
+ * <p>On taking a partition it reads it from the beginning (committed records only) up to its end
+ * at that moment; only then are its studies handed to {@link StudyOwnership#taken} (alert state)
+ * and published, and the first report waits one publish interval, so a hand-over never puts two
+ * documents of a study within one interval. From then on it keeps the latest statistics of every
+ * source partition per cell and recomputes a study's reports when its numbers changed, at most
  * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
- * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on its own thread.
+ * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and
+ * into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on
+ * its own thread.
  */
 public final class BoundUpdater implements Runnable, AutoCloseable {
 
@@ -47,28 +58,46 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final LatestReports latest;
     private final int partialsPartitions;
     private final Clock clock;
-    private final MergedPartials merged = new MergedPartials();
+    private final Map<Integer, Owned> owned = new HashMap<>();
     private final Set<String> pending = new LinkedHashSet<>();
     private final Map<String, Long> lastPublishNanos = new HashMap<>();
     private final Map<String, Long> revisions = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     private final boolean windowed;
     private final Consumer<PublishedReport> listener;
+    private final StudyOwnership ownership;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
 
+    /** One partials partition this instance owns: its studies' merged numbers, and whether they are complete yet. */
+    private static final class Owned {
+        final MergedPartials merged = new MergedPartials();
+        final PartialsCodec.Sink sink;
+        final Set<String> studies;
+        final long catchUpTo;
+        boolean live;
+
+        Owned(TopicPartition tp, int partitions, Set<String> studies, long catchUpTo) {
+            this.sink = new PlacementCheck(tp.topic(), tp.partition(), partitions, merged);
+            this.studies = studies;
+            this.catchUpTo = catchUpTo;
+        }
+    }
+
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock) {
-        this(clients, metrics, latest, partialsPartitions, clock, report -> { });
+        this(clients, metrics, latest, partialsPartitions, clock, report -> { }, StudyOwnership.NONE);
     }
 
     /**
-     * @param listener told of every published report after it reached {@link LatestReports}
-     *                 (the alert evaluator); called on the updater's thread
+     * @param listener  told of every published report after it reached {@link LatestReports}
+     *                  (the alert evaluator); called on the updater's thread
+     * @param ownership told which studies this instance owns, before their first report
      */
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock,
-                        Consumer<PublishedReport> listener) {
+                        Consumer<PublishedReport> listener, StudyOwnership ownership) {
         this.config = clients.config();
         this.listener = listener;
+        this.ownership = ownership;
         this.clients = clients;
         this.metrics = metrics;
         this.latest = latest;
@@ -81,34 +110,38 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     public void run() {
         KafkaProducer<byte[], byte[]> producer = null;
         try {
-            consumer = clients.committedReader();
+            consumer = clients.updaterConsumer();
             producer = clients.plainProducer();
-            List<TopicPartition> tps = new ArrayList<>();
-            for (int p = 0; p < partialsPartitions; p++) {
-                tps.add(new TopicPartition(config.topics().partials(), p));
-            }
-            consumer.assign(tps);
-            consumer.seekToBeginning(tps);
+            consumer.subscribe(List.of(config.topics().partials()), new Rebalance());
             long interval = config.publishInterval().toNanos();
             while (running) {
                 try {
                     for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(100))) {
+                        Owned o = owned.get(r.partition());
+                        if (o == null) {
+                            continue; // revoked during this poll
+                        }
                         try {
-                            PartialsCodec.decode(r.key(), r.value(), merged);
+                            PartialsCodec.decode(r.key(), r.value(), o.sink);
                         } catch (IllegalArgumentException e) {
                             LOG.warn("skipping record {}-{}@{} of the partials topic: {}", r.topic(), r.partition(), r.offset(), e.getMessage());
                         }
                     }
+                    goLive();
                 } catch (WakeupException e) {
                     break;
                 } catch (KafkaException e) {
                     LOG.warn("reading partials failed, retrying: {}", e.toString());
                     continue;
                 }
-                MergedPartials.Changes changes = merged.takeChanges();
-                pending.addAll(changes.studies());
-                if (windowed && changes.watermarkMoved()) {
-                    config.studies().forEach(s -> pending.add(s.id()));
+                for (Owned o : owned.values()) {
+                    if (o.live) {
+                        MergedPartials.Changes changes = o.merged.takeChanges();
+                        pending.addAll(changes.studies());
+                        if (windowed && changes.watermarkMoved()) {
+                            pending.addAll(o.studies);
+                        }
+                    }
                 }
                 long now = System.nanoTime();
                 for (var it = pending.iterator(); it.hasNext(); ) {
@@ -132,11 +165,34 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         }
     }
 
+    /**
+     * Partitions read up to their end at assignment become live: alert state first, then the
+     * first report one interval from now (the previous owner may have published just now).
+     */
+    private void goLive() {
+        for (Map.Entry<Integer, Owned> e : owned.entrySet()) {
+            Owned o = e.getValue();
+            if (!o.live && consumer.position(new TopicPartition(config.topics().partials(), e.getKey())) >= o.catchUpTo) {
+                ownership.taken(o.studies);
+                o.live = true;
+                long now = System.nanoTime();
+                for (String study : o.studies) {
+                    lastPublishNanos.put(study, now);
+                    pending.add(study);
+                }
+                o.merged.takeChanges();
+                LOG.info("updating studies {} (partials partition {})", o.studies, e.getKey());
+            }
+        }
+    }
+
     private void publish(KafkaProducer<byte[], byte[]> producer, String studyId) {
         StudyConfig study = config.study(studyId).orElse(null);
-        if (study == null) {
-            return; // partials of a study no longer configured
+        Owned o = owned.get(PartialsCodec.partitionFor(studyId, partialsPartitions));
+        if (study == null || o == null) {
+            return; // partials of a study no longer configured, or no longer ours
         }
+        MergedPartials merged = o.merged;
         Instant now = clock.instant();
         for (WindowSpec window : config.windows()) {
             WindowReport report = WindowReport.current(study, window, merged, config.bands());
@@ -161,6 +217,52 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             }
         }
         metrics.published(study.id());
+    }
+
+    private final class Rebalance implements ConsumerRebalanceListener {
+        @Override
+        public void onPartitionsAssigned(Collection<TopicPartition> partitions) {
+            if (partitions.isEmpty()) {
+                return;
+            }
+            Map<TopicPartition, Long> ends = consumer.endOffsets(partitions);
+            consumer.seekToBeginning(partitions);
+            for (TopicPartition tp : partitions) {
+                Set<String> studies = new LinkedHashSet<>();
+                config.studies().stream().map(StudyConfig::id)
+                        .filter(id -> PartialsCodec.partitionFor(id, partialsPartitions) == tp.partition())
+                        .forEach(studies::add);
+                owned.put(tp.partition(), new Owned(tp, partialsPartitions, Set.copyOf(studies), ends.getOrDefault(tp, 0L)));
+            }
+        }
+
+        @Override
+        public void onPartitionsRevoked(Collection<TopicPartition> partitions) {
+            release(partitions);
+        }
+
+        @Override
+        public void onPartitionsLost(Collection<TopicPartition> partitions) {
+            release(partitions);
+        }
+
+        private void release(Collection<TopicPartition> partitions) {
+            for (TopicPartition tp : partitions) {
+                Owned o = owned.remove(tp.partition());
+                if (o == null) {
+                    continue;
+                }
+                pending.removeAll(o.studies);
+                o.studies.forEach(study -> {
+                    lastPublishNanos.remove(study);
+                    latest.forget(study);
+                });
+                if (o.live) {
+                    ownership.released(o.studies);
+                    LOG.info("no longer updating studies {} (partials partition {})", o.studies, tp.partition());
+                }
+            }
+        }
     }
 
     /** Stops the loop and waits for it. */

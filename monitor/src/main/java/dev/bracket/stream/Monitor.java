@@ -11,14 +11,16 @@ import java.time.Clock;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.Optional;
+import java.util.Set;
 import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.stream.Collectors;
 
 /**
  * A running monitor instance against a Kafka cluster: topic setup, {@code threads} aggregation
- * group members and one bound updater, each on its own thread, and the alert evaluator fed by
- * both (state restored from the alerts topic at start). Start with {@link #start}; stop with
+ * group members and one member of the updater group, each on its own thread, and the alert
+ * evaluator fed by both. Instances of one group share the studies: each study is updated and
+ * judged by the instance that owns its partials partition ({@link BoundUpdater}), whose alert
+ * state is restored from the alerts topic when it takes the study over. Start with {@link #start}; stop with
  * {@link #close} (final commits, then clients closed, then alert sinks drained).
  */
 public final class Monitor implements AutoCloseable {
@@ -58,15 +60,25 @@ public final class Monitor implements AutoCloseable {
             partials = TopicSetup.ensureTopics(admin, config);
         }
         StreamMetrics metrics = new StreamMetrics(registry);
-        AlertService alerts = AlertService.start(
+        AlertService alerts = AlertService.startShared(
                 config.studies().stream().collect(Collectors.toMap(StudyConfig::id, StudyConfig::alerts)),
-                config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
+                config.alerts(), config.kafka(), registry, Clock.systemUTC());
         List<StreamAggregator> aggregators = new ArrayList<>();
         for (int member = 0; member < config.threads(); member++) {
             aggregators.add(new StreamAggregator(clients, metrics, partials, member, alerts::recordEvents));
         }
         Monitor m = new Monitor(aggregators,
-                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport), metrics, alerts);
+                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport, new StudyOwnership() {
+                    @Override
+                    public void taken(Set<String> studies) {
+                        alerts.take(studies);
+                    }
+
+                    @Override
+                    public void released(Set<String> studies) {
+                        alerts.release(studies);
+                    }
+                }), metrics, alerts);
         m.threads.forEach(Thread::start);
         return m;
     }

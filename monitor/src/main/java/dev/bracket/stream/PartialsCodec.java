@@ -24,8 +24,11 @@ import java.util.Map;
  * </pre>
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
- * All records of one source partition go to the same partials partition ({@link #partitionFor}),
- * so restoring a source reads one partials partition only.
+ *
+ * <p>Placement: every cell record of one study goes to the partials partition chosen by the
+ * study alone ({@link #partitionFor(String, int)}), so the member of the updater group that owns
+ * that partition sees all of the study's numbers and nobody else does. A source's progress record
+ * concerns every study, so it is written to every partials partition.
  */
 public final class PartialsCodec {
 
@@ -41,9 +44,13 @@ public final class PartialsCodec {
     private PartialsCodec() {
     }
 
-    /** The partials partition holding {@code source}'s records (stable: String.hashCode is specified). */
-    public static int partitionFor(SourcePartition source, int partitions) {
-        return Math.floorMod(source.topic().hashCode() * 31 + source.partition(), partitions);
+    /**
+     * The partials partition holding every cell of {@code study}. Chosen here rather than by the
+     * producer's default partitioner, whose hash of the whole key would scatter one study's cells;
+     * String.hashCode is specified by the JDK, so every instance and version agrees.
+     */
+    public static int partitionFor(String study, int partitions) {
+        return Math.floorMod(study.hashCode(), partitions);
     }
 
     public static byte[] cellKey(SourcePartition s, CellKey k) {

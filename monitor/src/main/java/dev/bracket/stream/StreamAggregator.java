@@ -217,15 +217,19 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             String partials = config.topics().partials();
             for (PartitionState s : states.values()) {
                 SourcePartition src = s.source();
-                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
                 for (CellKey closed : s.evictClosed()) {
-                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.cellKey(src, closed), null));
+                    producer.send(new ProducerRecord<>(partials, PartialsCodec.partitionFor(closed.study(), partialsPartitions),
+                            PartialsCodec.cellKey(src, closed), null));
                 }
-                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,
+                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials,
+                        PartialsCodec.partitionFor(key.study(), partialsPartitions),
                         PartialsCodec.cellKey(src, key), PartialsCodec.cellValue(arms))));
                 if (s.progressChanged()) {
-                    producer.send(new ProducerRecord<>(partials, partition,
-                            PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
+                    byte[] key = PartialsCodec.progressKey(src);
+                    byte[] value = PartialsCodec.progressValue(s.progress());
+                    for (int partition = 0; partition < partialsPartitions; partition++) {
+                        producer.send(new ProducerRecord<>(partials, partition, key, value));
+                    }
                 }
             }
             if (!pendingOffsets.isEmpty()) {

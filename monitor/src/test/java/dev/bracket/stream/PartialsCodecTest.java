@@ -60,11 +60,14 @@ class PartialsCodecTest {
     }
 
     @Test
-    @DisplayName("one source partition always maps to the same partials partition")
-    void stablePartitioning() {
-        SourcePartition src = new SourcePartition("outcomes", 5);
-        int p = PartialsCodec.partitionFor(src, 3);
-        assertThat(p).isBetween(0, 2).isEqualTo(PartialsCodec.partitionFor(new SourcePartition("outcomes", 5), 3));
+    @DisplayName("a study's cells go to the partition given by the JDK's specified String hash, whatever the source")
+    void partitionByStudy() {
+        // String.hashCode is specified in the JDK javadoc as s[0]*31^(n-1) + ... + s[n-1]:
+        // "ab" -> 97*31 + 98 = 3105, and 3105 mod 4 = 1.
+        assertThat(PartialsCodec.partitionFor("ab", 4)).isEqualTo(1);
+        // A negative hash still gives a partition in range: "zzzzzz" -> -685785664 by the same
+        // formula in 32-bit arithmetic, and floor(-685785664 mod 5) = 1 (Java's % would give -4).
+        assertThat(PartialsCodec.partitionFor("zzzzzz", 5)).isEqualTo(1);
     }
 
     @Test
