@@ -22,6 +22,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Clock;
 import java.time.Duration;
 import java.time.Instant;
+import java.util.ArrayList;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.LinkedHashSet;
@@ -148,8 +149,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                     String study = it.next();
                     Long last = lastPublishNanos.get(study);
                     if (last == null || now - last >= interval) {
-                        publish(producer, study);
-                        lastPublishNanos.put(study, now);
+                        lastPublishNanos.put(study, publish(producer, study));
                         it.remove();
                     }
                 }
@@ -186,21 +186,30 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         }
     }
 
-    private void publish(KafkaProducer<byte[], byte[]> producer, String studyId) {
+    /**
+     * Publishes the study's reports of every window and returns when (System.nanoTime) they were
+     * handed to the producer; the documents carry the same moment as their record timestamp.
+     */
+    private long publish(KafkaProducer<byte[], byte[]> producer, String studyId) {
         StudyConfig study = config.study(studyId).orElse(null);
         Owned o = owned.get(PartialsCodec.partitionFor(studyId, partialsPartitions));
         if (study == null || o == null) {
-            return; // partials of a study no longer configured, or no longer ours
+            return System.nanoTime(); // partials of a study no longer configured, or no longer ours
         }
-        MergedPartials merged = o.merged;
-        Instant now = clock.instant();
+        List<WindowReport> reports = new ArrayList<>();
         for (WindowSpec window : config.windows()) {
-            WindowReport report = WindowReport.current(study, window, merged, config.bands());
-            String key = study.id() + "/" + window.name();
+            reports.add(WindowReport.current(study, window, o.merged, config.bands()));
+        }
+        // Taken after the computation, so the time between two documents is never shorter than the interval.
+        long sentNanos = System.nanoTime();
+        Instant now = clock.instant();
+        for (WindowReport report : reports) {
+            String key = study.id() + "/" + report.window().name();
             long revision = revisions.merge(key, 1L, Long::sum);
             try {
                 byte[] doc = ReportJson.mapper().writeValueAsBytes(ReportDocument.toJson(report, revision, now));
-                producer.send(new ProducerRecord<>(config.topics().bounds(), key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
+                producer.send(new ProducerRecord<>(config.topics().bounds(), null, now.toEpochMilli(),
+                        key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
                     if (e != null) {
                         LOG.warn("publishing {} failed: {}", key, e.toString());
                     }
@@ -208,15 +217,18 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             } catch (JsonProcessingException e) {
                 throw new IllegalStateException("cannot encode the report of " + key, e);
             }
-            PublishedReport published = new PublishedReport(study.id(), window.name(), now, report.report());
+        }
+        for (WindowReport report : reports) {
+            PublishedReport published = new PublishedReport(study.id(), report.window().name(), now, report.report());
             latest.put(published);
             try {
                 listener.accept(published);
             } catch (RuntimeException e) {
-                LOG.error("report listener failed on {}: {}", key, e.toString());
+                LOG.error("report listener failed on {}/{}: {}", study.id(), report.window().name(), e.toString());
             }
         }
         metrics.published(study.id());
+        return sentNanos;
     }
 
     private final class Rebalance implements ConsumerRebalanceListener {

@@ -19,9 +19,9 @@ import java.util.function.IntUnaryOperator;
  * (from 1) with the status {@code behaviour} gives for n, optionally after a delay, and records
  * every request as it arrived.
  */
-final class Receiver implements AutoCloseable {
+public final class Receiver implements AutoCloseable {
 
-    record Request(long arrivedNanos, String idempotencyKey, String authorization, String body, int status) {
+    public record Request(long arrivedNanos, String idempotencyKey, String authorization, String body, int status) {
     }
 
     private final int port;
@@ -31,7 +31,7 @@ final class Receiver implements AutoCloseable {
     private ExecutorService executor;
 
     /** Reserves a free port without listening on it yet: the receiver is "down" until {@link #start}. */
-    Receiver() {
+    public Receiver() {
         try (ServerSocket s = new ServerSocket(0, 1, java.net.InetAddress.getLoopbackAddress())) {
             port = s.getLocalPort();
         } catch (IOException e) {
@@ -39,7 +39,7 @@ final class Receiver implements AutoCloseable {
         }
     }
 
-    String url() {
+    public String url() {
         return "http://127.0.0.1:" + port + "/hook";
     }
 
@@ -69,11 +69,11 @@ final class Receiver implements AutoCloseable {
         server.start();
     }
 
-    void start(IntUnaryOperator behaviour) throws IOException {
+    public void start(IntUnaryOperator behaviour) throws IOException {
         start(behaviour, n -> 0);
     }
 
-    List<Request> requests() {
+    public List<Request> requests() {
         return List.copyOf(requests);
     }
 
