@@ -130,9 +130,15 @@ public final class AlertEvaluator {
         return studies.keySet();
     }
 
-    /** Drops the states of {@code gone} (another instance judges them now and restores them from the alerts topic). */
+    /**
+     * Drops the states and traffic of {@code gone}: another instance judges them now (and a later
+     * owner restores the states from the alerts topic).
+     */
     public synchronized void forget(Set<String> gone) {
         states.keySet().removeIf(k -> gone.contains(k.study()));
+        // Traffic restarts too: a study taken over later counts as silent from then, not from our start.
+        Instant now = clock.instant();
+        gone.forEach(study -> traffic.computeIfPresent(study, (s, old) -> new EventCounts(now, old.period())));
     }
 
     private boolean configured(AlertKey key) {

@@ -110,6 +110,7 @@ public final class AlertService implements AutoCloseable {
      * the previous owner fired stays fired, and is not announced again.
      */
     public synchronized void take(Set<String> studies) {
+        evaluator.forget(studies); // traffic counted from now: silence before the take-over is not ours to judge
         evaluator.restore(history.apply(studies));
         owned.addAll(studies);
     }

@@ -61,6 +61,10 @@ final class EventCounts {
         }
     }
 
+    Duration period() {
+        return period;
+    }
+
     Instant lastEventAt() {
         return lastEventAt;
     }

@@ -67,35 +67,38 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     private final boolean windowed;
     private final Consumer<PublishedReport> listener;
     private final StudyOwnership ownership;
+    private final StudyEventCounts traffic;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
 
     /** One partials partition this instance owns: its studies' merged numbers, and whether they are complete yet. */
     private static final class Owned {
         final MergedPartials merged = new MergedPartials();
-        final PartialsCodec.Sink sink;
+        final TrafficTap sink;
         final Set<String> studies;
         final long catchUpTo;
         boolean live;
 
-        Owned(TopicPartition tp, int partitions, Set<String> studies, long catchUpTo) {
-            this.sink = new PlacementCheck(tp.topic(), tp.partition(), partitions, merged);
+        Owned(TopicPartition tp, int partitions, Set<String> studies, long catchUpTo, StudyEventCounts traffic) {
+            this.sink = new TrafficTap(new PlacementCheck(tp.topic(), tp.partition(), partitions, merged), studies, traffic);
             this.studies = studies;
             this.catchUpTo = catchUpTo;
         }
     }
 
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock) {
-        this(clients, metrics, latest, partialsPartitions, clock, report -> { }, StudyOwnership.NONE);
+        this(clients, metrics, latest, partialsPartitions, clock, report -> { }, StudyOwnership.NONE, StudyEventCounts.NONE);
     }
 
     /**
      * @param listener  told of every published report after it reached {@link LatestReports}
      *                  (the alert evaluator); called on the updater's thread
      * @param ownership told which studies this instance owns, before their first report
+     * @param traffic   told of newly committed events of the studies this instance owns (stall and data-quality alerts)
      */
     public BoundUpdater(KafkaClients clients, StreamMetrics metrics, LatestReports latest, int partialsPartitions, Clock clock,
-                        Consumer<PublishedReport> listener, StudyOwnership ownership) {
+                        Consumer<PublishedReport> listener, StudyOwnership ownership, StudyEventCounts traffic) {
+        this.traffic = traffic;
         this.config = clients.config();
         this.listener = listener;
         this.ownership = ownership;
@@ -175,6 +178,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             if (!o.live && consumer.position(new TopicPartition(config.topics().partials(), e.getKey())) >= o.catchUpTo) {
                 ownership.taken(o.studies);
                 o.live = true;
+                o.sink.goLive();
                 long now = System.nanoTime();
                 for (String study : o.studies) {
                     lastPublishNanos.put(study, now);
@@ -244,7 +248,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                 config.studies().stream().map(StudyConfig::id)
                         .filter(id -> PartialsCodec.partitionFor(id, partialsPartitions) == tp.partition())
                         .forEach(studies::add);
-                owned.put(tp.partition(), new Owned(tp, partialsPartitions, Set.copyOf(studies), ends.getOrDefault(tp, 0L)));
+                owned.put(tp.partition(), new Owned(tp, partialsPartitions, Set.copyOf(studies), ends.getOrDefault(tp, 0L), traffic));
             }
         }
 

@@ -65,7 +65,7 @@ public final class Monitor implements AutoCloseable {
                 config.alerts(), config.kafka(), registry, Clock.systemUTC());
         List<StreamAggregator> aggregators = new ArrayList<>();
         for (int member = 0; member < config.threads(); member++) {
-            aggregators.add(new StreamAggregator(clients, metrics, partials, member, alerts::recordEvents));
+            aggregators.add(new StreamAggregator(clients, metrics, partials, member));
         }
         Monitor m = new Monitor(aggregators,
                 new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport, new StudyOwnership() {
@@ -78,7 +78,7 @@ public final class Monitor implements AutoCloseable {
                     public void released(Set<String> studies) {
                         alerts.release(studies);
                     }
-                }), metrics, alerts);
+                }, alerts::recordEvents), metrics, alerts);
         m.threads.forEach(Thread::start);
         return m;
     }

@@ -20,7 +20,8 @@ import java.util.Map;
  * key   ["cell", topic, partition, study, stratum, level, window, paneStart]
  * value {"treated": {"n", "mean", "m2", "min", "max"}, "control": {...}}
  * key   ["progress", topic, partition]
- * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}]}
+ * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}],
+ *        "traffic": [{"study", "accepted", "rejected", "outOfRange"}]}   (traffic absent in older records)
  * </pre>
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
@@ -79,6 +80,9 @@ public final class PartialsCodec {
         }
         ArrayNode late = o.putArray("late");
         p.late().forEach((k, n) -> late.addObject().put("study", k.study()).put("window", k.window()).put("n", n));
+        ArrayNode traffic = o.putArray("traffic");
+        p.traffic().forEach((study, t) -> traffic.addObject().put("study", study)
+                .put("accepted", t.accepted()).put("rejected", t.rejected()).put("outOfRange", t.outOfRange()));
         return bytes(o);
     }
 
@@ -122,8 +126,14 @@ public final class PartialsCodec {
                     JsonNode v = MAPPER.readTree(value);
                     Map<LateKey, Long> late = new HashMap<>();
                     v.get("late").forEach(l -> late.put(new LateKey(l.get("study").asText(), l.get("window").asText()), l.get("n").asLong()));
+                    Map<String, StudyTraffic> traffic = new HashMap<>();
+                    JsonNode counted = v.get("traffic");
+                    if (counted != null) {
+                        counted.forEach(c -> traffic.put(c.get("study").asText(), new StudyTraffic(
+                                c.get("accepted").asLong(), c.get("rejected").asLong(), c.get("outOfRange").asLong())));
+                    }
                     JsonNode t = v.get("streamTime");
-                    sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late));
+                    sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late, traffic));
                 }
                 default -> throw new IllegalArgumentException("unknown partials record kind '" + k.get(0).asText() + "'");
             }

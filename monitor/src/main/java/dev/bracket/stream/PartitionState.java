@@ -35,6 +35,7 @@ public final class PartitionState {
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
     private final Map<CellKey, CellAccumulator> cells = new HashMap<>();
     private final Map<LateKey, Long> late = new HashMap<>();
+    private final Map<String, StudyTraffic> traffic = new HashMap<>();
     // A direct-mapped cache in front of the cell map. Events repeat a few cells, and their
     // strings are the parser's canonical instances, so comparing by identity finds most cells
     // without making a key and looking it up. A miss (or an equal string that is another
@@ -167,8 +168,15 @@ public final class PartitionState {
         return out;
     }
 
+    /** Adds a batch of a study's events to its traffic counts (once per poll, not per event). */
+    public void countTraffic(String study, long accepted, long rejected, long outOfRange) {
+        traffic.merge(study, StudyTraffic.NONE.plus(accepted, rejected, outOfRange),
+                (a, b) -> a.plus(b.accepted(), b.rejected(), b.outOfRange()));
+        progressDirty = true;
+    }
+
     public SourceProgress progress() {
-        return new SourceProgress(streamTime, late);
+        return new SourceProgress(streamTime, late, traffic);
     }
 
     /** Puts back a cell read from the partials topic (not marked as changed). */
@@ -179,10 +187,12 @@ public final class PartitionState {
         clearCache();
     }
 
-    /** Puts back the stream time and late counts read from the partials topic. */
+    /** Puts back the stream time, late counts and traffic read from the partials topic. */
     public void restoreProgress(SourceProgress progress) {
         streamTime = progress.streamTime();
         late.clear();
         late.putAll(progress.late());
+        traffic.clear();
+        traffic.putAll(progress.traffic());
     }
 }

@@ -62,11 +62,10 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
-    private final StudyEventCounts eventCounts;
     private final int member;
     private int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
-    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
+    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per partition of a poll. */
     private final long[][] studyCounts;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
@@ -81,11 +80,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /**
      * @param member      this member's number within the instance (0 for the first); part of its transactional id
-     * @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality)
      */
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member,
-                            StudyEventCounts eventCounts) {
-        this.eventCounts = eventCounts;
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member) {
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
@@ -179,12 +175,12 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 pendingOffsets.put(tp, next);
             }
             accepted.increment(used);
-        }
-        for (int i = 0; i < studyCounts.length; i++) {
-            long[] c = studyCounts[i];
-            if (c[0] + c[1] > 0) {
-                eventCounts.counted(config.studies().get(i).id(), c[0], c[1], c[2]);
-                Arrays.fill(c, 0);
+            for (int i = 0; i < studyCounts.length; i++) {
+                long[] c = studyCounts[i];
+                if (c[0] + c[1] > 0) {
+                    state.countTraffic(config.studies().get(i).id(), c[0], c[1], c[2]);
+                    Arrays.fill(c, 0);
+                }
             }
         }
     }

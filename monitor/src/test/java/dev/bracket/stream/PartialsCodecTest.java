@@ -46,13 +46,14 @@ class PartialsCodecTest {
     }
 
     @Test
-    @DisplayName("a null value deletes a cell; progress keeps stream time and late counts")
+    @DisplayName("a null value deletes a cell; progress keeps stream time, late counts and traffic")
     void tombstonesAndProgress() {
         SourcePartition src = new SourcePartition("t", 0);
         CellKey key = new CellKey("s", "", "", "hourly", 3_600_000);
         PartialsCodec.decode(PartialsCodec.cellKey(src, key), null, sink);
         assertThat(seen.get(0)[2]).isNull();
-        SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L));
+        SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L),
+                Map.of("s", new StudyTraffic(10, 3, 1)));
         PartialsCodec.decode(PartialsCodec.progressKey(src), PartialsCodec.progressValue(p), sink);
         assertThat(seen.get(1)[1]).isEqualTo(p);
         PartialsCodec.decode(PartialsCodec.progressKey(src), PartialsCodec.progressValue(SourceProgress.NONE), sink);
