@@ -7,6 +7,8 @@ import java.util.HashMap;
 import java.util.HashSet;
 import java.util.Map;
 import java.util.Set;
+import java.util.SortedSet;
+import java.util.TreeSet;
 import java.util.function.LongPredicate;
 
 /**
@@ -73,6 +75,17 @@ public final class MergedPartials implements PartialsCodec.Sink {
     public long late(String study, String window) {
         LateKey key = new LateKey(study, window);
         return progress.values().stream().mapToLong(p -> p.late().getOrDefault(key, 0L)).sum();
+    }
+
+    /** Start times of the study's panes of one window that hold cells, in order. */
+    public SortedSet<Long> paneStarts(String study, String window) {
+        SortedSet<Long> out = new TreeSet<>();
+        for (CellKey k : byStudy.getOrDefault(study, Map.of()).keySet()) {
+            if (k.window().equals(window)) {
+                out.add(k.paneStart());
+            }
+        }
+        return out;
     }
 
     /** The study's cells of one window whose pane start passes {@code panes}, summed over sources. */
