@@ -20,21 +20,23 @@ import java.util.function.LongPredicate;
  */
 public final class MergedPartials implements PartialsCodec.Sink {
 
-    private final Map<String, Map<CellKey, Map<SourcePartition, ObservedArms>>> byStudy = new HashMap<>();
+    private final Map<String, Map<CellKey, CellSources>> byStudy = new HashMap<>();
     private final Map<SourcePartition, SourceProgress> progress = new HashMap<>();
     private final Set<String> changed = new HashSet<>();
     private boolean watermarkChanged;
 
     @Override
     public void cell(SourcePartition source, CellKey key, ObservedArms arms) {
-        Map<CellKey, Map<SourcePartition, ObservedArms>> cells = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+        Map<CellKey, CellSources> cells = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+        CellSources sources = cells.get(key);
         if (arms == null) {
-            Map<SourcePartition, ObservedArms> sources = cells.get(key);
-            if (sources != null && sources.remove(source) != null && sources.isEmpty()) {
+            if (sources != null && sources.remove(source)) {
                 cells.remove(key);
             }
+        } else if (sources == null) {
+            cells.put(key, new CellSources(source, arms));
         } else {
-            cells.computeIfAbsent(key, k -> new HashMap<>()).put(source, arms);
+            sources.put(source, arms);
         }
         changed.add(key.study());
     }
@@ -91,14 +93,10 @@ public final class MergedPartials implements PartialsCodec.Sink {
     /** The study's cells of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
         StudyCells out = StudyCells.empty();
-        for (Map.Entry<CellKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
+        for (Map.Entry<CellKey, CellSources> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
             CellKey k = e.getKey();
             if (k.window().equals(window) && panes.test(k.paneStart())) {
-                ObservedArms sum = ObservedArms.empty();
-                for (ObservedArms a : e.getValue().values()) {
-                    sum = sum.merge(a);
-                }
-                out = out.with(k.stratum(), k.level(), sum);
+                out = out.with(k.stratum(), k.level(), e.getValue().sum());
             }
         }
         return out;
