@@ -15,11 +15,12 @@ final class CellSources {
     /** Per source: treated count, mean, m2, min, max, then the same for control. */
     private static final int FIELDS = 10;
 
-    private SourcePartition[] sources;
+    /** The sources in the order of {@link #stats}: the one source itself (the usual case, no array), else an array. */
+    private Object sources;
     private double[] stats;
 
     CellSources(SourcePartition source, ObservedArms arms) {
-        sources = new SourcePartition[] {source};
+        sources = source;
         stats = new double[FIELDS];
         write(0, arms);
     }
@@ -28,10 +29,12 @@ final class CellSources {
     void put(SourcePartition source, ObservedArms arms) {
         int i = indexOf(source);
         if (i < 0) {
-            i = sources.length;
-            sources = Arrays.copyOf(sources, i + 1);
+            SourcePartition[] all = all();
+            i = all.length;
+            all = Arrays.copyOf(all, i + 1);
+            all[i] = source;
+            sources = all;
             stats = Arrays.copyOf(stats, (i + 1) * FIELDS);
-            sources[i] = source;
         }
         write(i, arms);
     }
@@ -40,27 +43,36 @@ final class CellSources {
     boolean remove(SourcePartition source) {
         int i = indexOf(source);
         if (i >= 0) {
-            int last = sources.length - 1;
-            sources[i] = sources[last];
+            SourcePartition[] all = all();
+            int last = all.length - 1;
+            all[i] = all[last];
             System.arraycopy(stats, last * FIELDS, stats, i * FIELDS, FIELDS);
-            sources = Arrays.copyOf(sources, last);
+            sources = last == 1 ? all[0] : Arrays.copyOf(all, last);
             stats = Arrays.copyOf(stats, last * FIELDS);
         }
-        return sources.length == 0;
+        return stats.length == 0;
     }
 
     /** The sum over sources ({@link ObservedArms#merge}). */
     ObservedArms sum() {
         ObservedArms sum = ObservedArms.empty();
-        for (int i = 0; i < sources.length; i++) {
-            sum = sum.merge(new ObservedArms(arm(i * FIELDS), arm(i * FIELDS + FIELDS / 2)));
+        for (int at = 0; at < stats.length; at += FIELDS) {
+            sum = sum.merge(new ObservedArms(arm(at), arm(at + FIELDS / 2)));
         }
         return sum;
     }
 
+    private SourcePartition[] all() {
+        return sources instanceof SourcePartition one ? new SourcePartition[] {one} : ((SourcePartition[]) sources).clone();
+    }
+
     private int indexOf(SourcePartition source) {
-        for (int i = 0; i < sources.length; i++) {
-            if (sources[i].equals(source)) {
+        if (sources instanceof SourcePartition one) {
+            return one.equals(source) ? 0 : -1;
+        }
+        SourcePartition[] all = (SourcePartition[]) sources;
+        for (int i = 0; i < all.length; i++) {
+            if (all[i].equals(source)) {
                 return i;
             }
         }
