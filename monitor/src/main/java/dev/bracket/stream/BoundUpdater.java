@@ -272,6 +272,8 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                 o.studies.forEach(study -> {
                     lastPublishNanos.remove(study);
                     latest.forget(study);
+                    // Revisions count per owner: should the study come back here, it starts again at 1.
+                    config.windows().forEach(w -> revisions.remove(study + "/" + w.name()));
                 });
                 if (o.live) {
                     ownership.released(o.studies);
