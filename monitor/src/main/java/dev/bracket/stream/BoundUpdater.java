@@ -176,7 +176,13 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         for (Map.Entry<Integer, Owned> e : owned.entrySet()) {
             Owned o = e.getValue();
             if (!o.live && consumer.position(new TopicPartition(config.topics().partials(), e.getKey())) >= o.catchUpTo) {
-                ownership.taken(o.studies);
+                try {
+                    ownership.taken(o.studies);
+                } catch (RuntimeException ex) {
+                    // Judging without the alert state could fire again what already fired: stay silent, retry.
+                    LOG.error("cannot take over studies {} yet, retrying: {}", o.studies, ex.getMessage());
+                    continue;
+                }
                 o.live = true;
                 o.sink.goLive();
                 long now = System.nanoTime();
