@@ -5,9 +5,9 @@ import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.report.LatestReports;
-import dev.bracket.stream.KafkaClients;
-import dev.bracket.stream.Monitor;
-import dev.bracket.stream.TopicSetup;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.Monitor;
+import dev.bracket.app.TopicSetup;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
@@ -48,7 +48,7 @@ import java.util.concurrent.TimeUnit;
  *       RocksDB store, same commit interval;</li>
  *   <li><b>monitor</b>: Bracket's {@link Monitor} (aggregator with Kafka transactions, bound
  *       updater and alert evaluator running) with its default settings, in a fresh consumer group;</li>
- *   <li><b>monitor x2</b>: the same with {@code threads: 2}, two aggregation members sharing the
+ *   <li><b>monitor x2</b>: the same with {@code group-members: 2}, two aggregation members sharing the
  *       three partitions (on a 2-core machine they also share the cores with the broker).</li>
  * </ol>
  *
@@ -150,7 +150,7 @@ public final class AggregationBenchmark {
         return config(broker, group, 1);
     }
 
-    private static BracketConfig config(EmbeddedBroker broker, String group, int threads) {
+    private static BracketConfig config(EmbeddedBroker broker, String group, int members) {
         return BracketConfig.parse("bench.yaml", BenchEvents.STUDIES + """
                 inputs:
                   - topic: %s
@@ -158,12 +158,12 @@ public final class AggregationBenchmark {
                 alerts: {topic: %s-alerts}
                 windows:
                   - {name: hourly, kind: tumbling, size: 1h}
-                threads: %d
+                group-members: %d
                 group: %s
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(TOPIC, group, group, group, threads, group, group, broker.bootstrapServers()));
+                """.formatted(TOPIC, group, group, group, members, group, group, broker.bootstrapServers()));
     }
 
     private static long produce(EmbeddedBroker broker, int events) {
@@ -246,8 +246,8 @@ public final class AggregationBenchmark {
     }
 
     /** Bracket's monitor in a fresh consumer group. */
-    private static double monitor(EmbeddedBroker broker, int events, String group, int threads) throws Exception {
-        BracketConfig config = config(broker, group, threads);
+    private static double monitor(EmbeddedBroker broker, int events, String group, int members) throws Exception {
+        BracketConfig config = config(broker, group, members);
         try (Admin admin = new KafkaClients(config).admin();
              Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports())) {
             Deadline.await(Duration.ofSeconds(60), "the monitor's partition assignment", () -> monitor.assignedPartitions() >= 3);

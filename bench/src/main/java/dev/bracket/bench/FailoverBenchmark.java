@@ -3,9 +3,9 @@ package dev.bracket.bench;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.stream.KafkaClients;
-import dev.bracket.stream.PartialsCodec;
-import dev.bracket.stream.TopicSetup;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.PartialsCodec;
+import dev.bracket.app.TopicSetup;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.ConsumerGroupDescription;
 import org.apache.kafka.clients.admin.MemberDescription;
@@ -135,7 +135,7 @@ public final class FailoverBenchmark {
         Files.writeString(config, yaml.replace("INSTANCE", instance));
         String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
         return new ProcessBuilder(java, "-Xmx384m", "-cp", System.getProperty("java.class.path"), "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
+                "monitor", "--config", config.toString(), "--http-port", "0")
                 .redirectErrorStream(true)
                 .redirectOutput(dir.resolve(instance + ".log").toFile())
                 .start();

@@ -16,9 +16,10 @@ import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.Set;
+import java.util.TreeMap;
 
 /**
- * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
+ * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-row rules are
  * judged on each bound update ({@link #evaluate}); per-study rules on a clock ({@link #tick}),
  * which is injected so tests control time. Pure logic: the transitions it returns go to the sinks
  * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
@@ -32,6 +33,7 @@ public final class AlertEvaluator {
 
     private final Map<String, StudyAlertConfig> studies;
     private final Clock clock;
+    private final Instant upSince;
     private final Map<AlertKey, AlertState> states = new HashMap<>();
     private final Map<String, EventCounts> traffic = new HashMap<>();
 
@@ -42,13 +44,13 @@ public final class AlertEvaluator {
     public AlertEvaluator(Map<String, StudyAlertConfig> studies, Clock clock) {
         this.studies = Map.copyOf(studies);
         this.clock = clock;
-        Instant start = clock.instant();
+        this.upSince = clock.instant();
         this.studies.forEach((study, config) -> traffic.put(study,
-                new EventCounts(start, config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
+                new EventCounts(config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
     }
 
     /**
-     * Judges the per-cell rules of the snapshot's study. Nothing is judged (and no state
+     * Judges the per-row rules of the snapshot's study. Nothing is judged (and no state
      * changes) while either arm has fewer than the study's min-per-arm units, the interval
      * lacks data, or the configured band is missing.
      *
@@ -63,8 +65,8 @@ public final class AlertEvaluator {
             return List.of();
         }
         List<AlertTransition> out = new ArrayList<>();
-        for (CellRule rule : config.cellRules()) {
-            AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
+        for (RowRule rule : config.rowRules()) {
+            AlertKey key = AlertKey.perRow(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
             Verdict verdict = rule.judge(snapshot.interval(), band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
             apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
@@ -84,6 +86,46 @@ public final class AlertEvaluator {
         }
     }
 
+    /**
+     * Counts rejected records whose study could not be read against {@code study}'s data quality
+     * (at the clock's time): they may be any study's, so the caller tells every study it judges.
+     */
+    public synchronized void recordUnattributed(String study, long rejected) {
+        EventCounts counts = traffic.get(study);
+        if (counts != null) {
+            counts.recordUnattributed(clock.instant(), rejected);
+        }
+    }
+
+    /**
+     * Takes over when each study's last event arrived before a restart, so that a stall is judged
+     * from it rather than from this start. Call before any event is recorded.
+     */
+    public synchronized void restoreLastEvents(Map<String, Instant> lastEvents) {
+        lastEvents.forEach((study, at) -> {
+            EventCounts counts = traffic.get(study);
+            if (counts != null) {
+                counts.restoreLastEvent(at);
+            }
+        });
+    }
+
+    /**
+     * When each configured study's last event arrived; this evaluator's start when none has and
+     * none was restored (so that after a restart a study that never sent counts as silent since
+     * the first start).
+     */
+    public synchronized Map<String, Instant> lastEvents() {
+        Map<String, Instant> out = new TreeMap<>();
+        traffic.forEach((study, counts) -> out.put(study, counts.lastEventAt().orElse(upSince)));
+        return out;
+    }
+
+    /** The time on the evaluator's clock. */
+    public Instant now() {
+        return clock.instant();
+    }
+
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
     public List<AlertTransition> tick() {
         return tick(studies.keySet());
@@ -98,7 +140,7 @@ public final class AlertEvaluator {
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
             config.stalled().ifPresent(rule -> apply(AlertKey.perStudy(study, AlertRule.STREAM_STALLED),
-                    rule.judge(counts.lastEventAt(), now), rule.evidence(counts.lastEventAt(), now), now,
+                    rule.judge(counts.lastEventAt(), upSince, now), rule.evidence(counts.lastEventAt(), upSince, now), now,
                     config.clearAfter(), "", out));
             config.quality().ifPresent(rule -> {
                 Evidence.OfQuality q = counts.within(now, rule.maxShare());
@@ -132,13 +174,12 @@ public final class AlertEvaluator {
 
     /**
      * Drops the states and traffic of {@code gone}: another instance judges them now (and a later
-     * owner restores the states from the alerts topic).
+     * owner restores the states from the alerts topic and the last event times from the ledger,
+     * {@link #restoreLastEvents}).
      */
     public synchronized void forget(Set<String> gone) {
         states.keySet().removeIf(k -> gone.contains(k.study()));
-        // Traffic restarts too: a study taken over later counts as silent from then, not from our start.
-        Instant now = clock.instant();
-        gone.forEach(study -> traffic.computeIfPresent(study, (s, old) -> new EventCounts(now, old.period())));
+        gone.forEach(study -> traffic.computeIfPresent(study, (s, old) -> new EventCounts(old.period())));
     }
 
     private boolean configured(AlertKey key) {
@@ -149,7 +190,7 @@ public final class AlertEvaluator {
         return switch (key.rule()) {
             case STREAM_STALLED -> c.stalled().isPresent();
             case DATA_QUALITY -> c.quality().isPresent();
-            default -> c.cellRules().stream().anyMatch(r -> r.rule() == key.rule());
+            default -> c.rowRules().stream().anyMatch(r -> r.rule() == key.rule());
         };
     }
 
@@ -168,7 +209,7 @@ public final class AlertEvaluator {
                        List<AlertTransition> out) {
         AlertState.Step step = state(key).next(verdict, evidence, at, clearAfter, meaning);
         if (step.state().sequence() == 0) {
-            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with cells
+            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with rows
         } else {
             states.put(key, step.state());
         }

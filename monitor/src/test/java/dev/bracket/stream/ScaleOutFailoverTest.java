@@ -2,8 +2,12 @@ package dev.bracket.stream;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
-import dev.bracket.alerts.Receiver;
+import dev.bracket.alerts.delivery.Receiver;
 import dev.bracket.broker.BrokerPerClass;
+import dev.bracket.broker.ChildMonitor;
+import dev.bracket.app.TopicSetup;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.PartialsCodec;
 import dev.bracket.config.BracketConfig;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
@@ -208,7 +212,7 @@ class ScaleOutFailoverTest {
                           min-per-arm: 30
                           clear-after: 3
                           rules:
-                            sign-identified: {clear-margin: 0.005}
+                            sign-identified: {clear-zero-margin: 0.005}
                           webhooks:
                             - url: %s
                     """.formatted(s, hookUrl));
@@ -223,7 +227,7 @@ class ScaleOutFailoverTest {
                 progress-interval: 5s
                 group: so
                 instance: %s
-                alerts: {topic: so-alerts, tick: 1s}
+                alerts: {topic: so-alerts, check-interval: 1s}
                 kafka:
                   bootstrap.servers: %s
                   session.timeout.ms: 6000
@@ -233,12 +237,6 @@ class ScaleOutFailoverTest {
     }
 
     private static Process startChild(Path config, int n) throws IOException {
-        String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-        String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
-        return new ProcessBuilder(java, "-Xmx256m", "-XX:TieredStopAtLevel=1", "-cp", classpath, "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
-                .redirectErrorStream(true)
-                .redirectOutput(dir.resolve("so-" + n + ".log").toFile())
-                .start();
+        return ChildMonitor.start(config, dir.resolve("so-" + n + ".log"), "256m"); // with --http-port 0
     }
 }
