@@ -43,7 +43,7 @@ import java.util.function.Consumer;
 
 /**
  * Updates the bounds of the studies this instance owns. It is a member of the updater group
- * ({@link KafkaClients#updaterConsumer}) on the partials topic, where all cells of a study lie in
+ * ({@link KafkaClients#updaterConsumer}) on the partials topic, where all panes of a study lie in
  * one partition ({@link PartialsCodec#partitionFor(String, int)}), so the group protocol gives
  * each study to exactly one live instance and moves it when that instance leaves or dies.
  *
@@ -51,7 +51,7 @@ import java.util.function.Consumer;
  * at that moment; only then are its studies handed to {@link StudyOwnership#taken} (alert state)
  * and published, and the first report waits one publish interval, so a hand-over never puts two
  * documents of a study within one interval. From then on it keeps the latest statistics of every
- * source partition per cell and recomputes a study's reports when its numbers changed, at most
+ * source partition per pane and recomputes a study's reports when its numbers changed, at most
  * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
  * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and
  * into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on

@@ -32,7 +32,7 @@ import java.util.Map;
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
  *
- * <p>Placement: every cell record of one study goes to the partials partition chosen by the
+ * <p>Placement: every pane record of one study goes to the partials partition chosen by the
  * study alone ({@link #partitionFor(String, int)}), so the member of the updater group that owns
  * that partition sees all of the study's numbers and nobody else does. A source's progress record
  * concerns every study, so it is written to every partials partition.
@@ -52,8 +52,8 @@ public final class PartialsCodec {
     }
 
     /**
-     * The partials partition holding every cell of {@code study}. Chosen here rather than by the
-     * producer's default partitioner, whose hash of the whole key would scatter one study's cells;
+     * The partials partition holding every pane of {@code study}. Chosen here rather than by the
+     * producer's default partitioner, whose hash of the whole key would scatter one study's panes;
      * String.hashCode is specified by the JDK, so every instance and version agrees.
      */
     public static int partitionFor(String study, int partitions) {

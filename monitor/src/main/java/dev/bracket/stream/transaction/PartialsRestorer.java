@@ -29,7 +29,7 @@ import java.util.concurrent.TimeoutException;
 /**
  * Rebuilds source partitions' panes from the partials topic, reading committed records only.
  *
- * <p>It reads every partials partition (cells are placed by study, not by source) from the beginning up to its high watermark
+ * <p>It reads every partials partition (panes are placed by study, not by source) from the beginning up to its high watermark
  * taken BEFORE reading (not the last stable offset): a transaction of another instance that is
  * still open would otherwise hide records committed after it started. The read_committed
  * consumer waits at that open transaction until it ends, then skips aborted records, so when it
