@@ -30,8 +30,8 @@ import java.util.concurrent.Callable;
 @Command(name = "replay",
         mixinStandardHelpOptions = true,
         description = {
-                "Computes the bounds the monitor would publish, from files of JSON events (one per line), for every",
-                "window that holds events (each hour of a day, say), not only the newest.",
+                "Computes the bounds the monitor would publish, from files of JSON events (one per line).",
+                "Reports every window that holds events (each hour of a day, say), not only the newest.",
                 "Each file counts as one partition read in order; '-' reads standard input. --partition declares",
                 "files that are one partition, read one after the other (order matters for late events).",
                 "Unusable lines are counted and listed on standard error, as the monitor sends them to its rejected topic."},
