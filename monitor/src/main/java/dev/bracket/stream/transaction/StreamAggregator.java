@@ -6,7 +6,6 @@ import dev.bracket.stream.ingest.ParsedEvent;
 import dev.bracket.stream.ingest.PartitionState;
 import dev.bracket.stream.ingest.RejectReason;
 import dev.bracket.stream.ingest.SourcePartition;
-import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import dev.bracket.retry.Backoff;
@@ -61,14 +60,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
-    private final StudyEventCounts eventCounts;
     private final int member;
     private volatile int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final RejectedCopies rejectedCopies;
-    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
+    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per partition of a poll. */
     private final long[][] studyCounts;
-    /** Rejected records without a readable study, per poll. */
+    /** Rejected records without a readable study, per partition of a poll. */
     private long unattributed;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
@@ -96,11 +94,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /**
      * @param member      this member's number within the instance (0 for the first); part of its transactional id
-     * @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality)
      */
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member,
-                            StudyEventCounts eventCounts) {
-        this.eventCounts = eventCounts;
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member) {
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
@@ -213,17 +208,17 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 pendingOffsets.put(tp, next);
             }
             accepted.increment(used);
-        }
-        for (int i = 0; i < studyCounts.length; i++) {
-            long[] c = studyCounts[i];
-            if (c[0] + c[1] > 0) {
-                eventCounts.counted(config.studies().get(i).id(), c[0], c[1], c[2]);
-                Arrays.fill(c, 0);
+            for (int i = 0; i < studyCounts.length; i++) {
+                long[] c = studyCounts[i];
+                if (c[0] + c[1] > 0) {
+                    state.countTraffic(config.studies().get(i).id(), c[0], c[1], c[2]);
+                    Arrays.fill(c, 0);
+                }
             }
-        }
-        if (unattributed > 0) {
-            eventCounts.unattributed(unattributed);
-            unattributed = 0;
+            if (unattributed > 0) {
+                state.countUnattributed(unattributed);
+                unattributed = 0;
+            }
         }
     }
 
@@ -256,15 +251,19 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             String partials = config.topics().partials();
             for (PartitionState s : states.values()) {
                 SourcePartition src = s.source();
-                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
                 for (PaneKey closed : s.evictClosed()) {
-                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.paneKey(src, closed), null));
+                    producer.send(new ProducerRecord<>(partials, PartialsCodec.partitionFor(closed.study(), partialsPartitions),
+                            PartialsCodec.paneKey(src, closed), null));
                 }
-                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,
+                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials,
+                        PartialsCodec.partitionFor(key.study(), partialsPartitions),
                         PartialsCodec.paneKey(src, key), PartialsCodec.paneValue(arms))));
                 if (s.progressChanged()) {
-                    producer.send(new ProducerRecord<>(partials, partition,
-                            PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
+                    byte[] key = PartialsCodec.progressKey(src);
+                    byte[] value = PartialsCodec.progressValue(s.progress());
+                    for (int partition = 0; partition < partialsPartitions; partition++) {
+                        producer.send(new ProducerRecord<>(partials, partition, key, value));
+                    }
                 }
             }
             if (!pendingOffsets.isEmpty()) {
