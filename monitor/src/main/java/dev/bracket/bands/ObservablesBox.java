@@ -1,5 +1,6 @@
 package dev.bracket.bands;
 
+import dev.bracket.bounds.MeanVertices;
 import dev.bracket.bounds.OutcomeRange;
 
 /**
@@ -26,29 +27,8 @@ record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu1High, 
                 Math.max(range.min(), mu0 - mu0Radius), Math.min(range.max(), mu0 + mu0Radius));
     }
 
-    /**
-     * The (mu1, mu0) pairs where an end of the interval can take its extreme value over the box:
-     * the four corners, and the points where the diagonal {@code mu1 = mu0} crosses the box's
-     * edges. Every constraint of every assumption compares an unobserved mean with a, b, mu1 or mu0
-     * (see {@code Assumption}), so for fixed p the ends are linear on each side of the diagonal
-     * within [a, b]^2, and the assumptions are refuted exactly on one side of it, on both sides,
-     * or nowhere. The extremes over the box, and over its part compatible with the assumptions,
-     * are therefore attained among these points.
-     */
+    /** The (mu1, mu0) pairs where an end can take its extreme over the box: see {@link MeanVertices}. */
     double[][] meanVertices() {
-        double[][] out = new double[8][];
-        int k = 0;
-        out[k++] = new double[] {mu1Low, mu0Low};
-        out[k++] = new double[] {mu1Low, mu0High};
-        out[k++] = new double[] {mu1High, mu0Low};
-        out[k++] = new double[] {mu1High, mu0High};
-        double from = Math.max(mu1Low, mu0Low);
-        double to = Math.min(mu1High, mu0High);
-        for (double m : new double[] {mu1Low, mu1High, mu0Low, mu0High}) {
-            if (m >= from && m <= to) {
-                out[k++] = new double[] {m, m};
-            }
-        }
-        return java.util.Arrays.copyOf(out, k);
+        return MeanVertices.of(mu1Low, mu1High, mu0Low, mu0High);
     }
 }
