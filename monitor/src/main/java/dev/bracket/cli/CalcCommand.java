@@ -41,7 +41,13 @@ import java.util.concurrent.Callable;
                 "the data are looked at (the one to act on)."},
         footer = {"",
                 "Assumptions: worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,",
-                "optimizing-selection, sorting-on-gains. Join several with commas to assume them together.",
+                "optimizing-selection, sorting-on-gains, missing-at-random. Join several with commas",
+                "to assume them together.",
+                "",
+                "Pending outcomes (--treated-pending, --control-pending or the pending column):",
+                "units that entered an arm but whose outcome has not arrived. Each is bounded by",
+                "[A, B] unless missing-at-random is assumed (pending outcomes like the observed",
+                "ones in the same arm). --treated-n and --control-n count units with an outcome.",
                 "",
                 "Standard deviations (--treated-sd, --control-sd or the sd column) stand in",
                 "for the spread of each arm's outcomes in the fixed-horizon band's standard",
@@ -69,8 +75,12 @@ public final class CalcCommand implements Callable<Integer> {
             description = "Which outcomes are better; matters for optimizing-selection and sorting-on-gains (default: ${DEFAULT-VALUE}).")
     String better;
 
-    @Option(names = "--treated-n", paramLabel = "N1", description = "Units that received treatment.")
+    @Option(names = "--treated-n", paramLabel = "N1", description = "Treated units with an observed outcome.")
     Long treatedN;
+
+    @Option(names = "--treated-pending", paramLabel = "P1", defaultValue = "0",
+            description = "Treated units whose outcome has not arrived yet (default: ${DEFAULT-VALUE}).")
+    long treatedPending;
 
     @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
     Double treatedMean;
@@ -78,8 +88,12 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed-horizon band).")
     Double treatedSd;
 
-    @Option(names = "--control-n", paramLabel = "N0", description = "Units that did not receive treatment.")
+    @Option(names = "--control-n", paramLabel = "N0", description = "Untreated units with an observed outcome.")
     Long controlN;
+
+    @Option(names = "--control-pending", paramLabel = "P0", defaultValue = "0",
+            description = "Untreated units whose outcome has not arrived yet (default: ${DEFAULT-VALUE}).")
+    long controlPending;
 
     @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
     Double controlMean;
@@ -88,7 +102,7 @@ public final class CalcCommand implements Callable<Integer> {
     Double controlSd;
 
     @Option(names = "--cells", paramLabel = "FILE",
-            description = "CSV with a header: arm,n,mean[,sd][,stratum][,instrument]; one row per arm and cell ('-' reads standard input).")
+            description = "CSV with a header: arm,n,mean[,sd][,pending][,stratum][,instrument]; one row per arm and cell ('-' reads standard input).")
     String cellsFile;
 
     @Option(names = "--assume", paramLabel = "SET",
@@ -170,14 +184,15 @@ public final class CalcCommand implements Callable<Integer> {
         requireFlag(controlN, "--control-n");
         requireFlag(controlMean, "--control-mean");
         ObservedArms arms = new ObservedArms(
-                CalcInput.arm(treatedN, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
-                CalcInput.arm(controlN, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
+                CalcInput.arm(treatedN, treatedPending, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
+                CalcInput.arm(controlN, controlPending, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
         boolean everySdGiven = (treatedSd != null || treatedN < 2) && (controlSd != null || controlN < 2);
         return new CalcInput.Cells(StudyCells.single(arms), everySdGiven);
     }
 
     private CalcInput.Cells cellsFromFile(OutcomeRange range) throws IOException {
-        for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd}) {
+        for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd,
+                treatedPending == 0 ? null : treatedPending, controlPending == 0 ? null : controlPending}) {
             if (flag != null) {
                 throw new InputError("--cells cannot be combined with --treated-* or --control-*; put every arm in the file");
             }

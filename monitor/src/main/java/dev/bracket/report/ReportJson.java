@@ -53,15 +53,24 @@ public final class ReportJson {
         o.set("treated", arm(report.pooled().treated()));
         o.set("control", arm(report.pooled().control()));
         number(o, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
+        o.put("exposuresReported", PendingOutcomes.exposuresReported(report.pooled()));
+        o.put("pendingNote", PendingOutcomes.note(report.pooled()));
         return o;
     }
 
-    /** One arm: n, mean and sd (null where they do not exist). */
+    /**
+     * One arm: n (units with an outcome), mean and sd of those outcomes (null where they do not
+     * exist), exposed units, pending units and their share of the arm's units.
+     */
     public static ObjectNode arm(ArmStatistics s) {
         ObjectNode o = MAPPER.createObjectNode();
         o.put("n", s.count());
         number(o, "mean", s.isEmpty() ? Double.NaN : s.mean());
         number(o, "sd", s.count() < 2 ? Double.NaN : s.sd());
+        o.put("exposed", s.exposed());
+        o.put("pending", s.pending());
+        number(o, "pendingShare", s.units() == 0 ? Double.NaN : (double) s.pending() / s.units());
+        o.put("excessOutcomes", s.excessOutcomes());
         return o;
     }
 
@@ -71,6 +80,7 @@ public final class ReportJson {
         ArrayNode ids = o.putArray("assumptions");
         row.assumptions().ids().forEach(ids::add);
         o.put("meaning", row.assumptions().meaning());
+        o.put("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
         interval(o, row.interval());
         o.put("sign", row.sign());
         if (!row.perStratum().isEmpty()) {

@@ -44,6 +44,7 @@ public final class ReportTable {
         for (BoundRow row : report.rows()) {
             out.append(String.format(Locale.ROOT, "%s: %s%n", row.assumptions(), row.assumptions().meaning()));
         }
+        out.append(PendingOutcomes.note(report.pooled())).append(System.lineSeparator());
         appendBandNotes(out, report);
         out.append(System.lineSeparator()).append(Cautions.TEXT).append(System.lineSeparator());
         return out.toString();
@@ -98,8 +99,9 @@ public final class ReportTable {
     }
 
     private static String armLine(String name, ArmStatistics s) {
-        return String.format(Locale.ROOT, "  %-8s n=%d%s%n", name, s.count(),
-                s.isEmpty() ? "" : ", mean=" + num(s.mean()) + (s.m2() > 0 ? ", sd=" + num(s.sd()) : ""));
+        return String.format(Locale.ROOT, "  %-8s n=%d%s%s%n", name, s.count(),
+                s.isEmpty() ? "" : ", mean=" + num(s.mean()) + (s.m2() > 0 ? ", sd=" + num(s.sd()) : ""),
+                s.exposed() == 0 ? "" : ", pending=" + s.pending() + " of " + s.units() + " exposed");
     }
 
     /** Six significant decimals, without trailing noise. */
