@@ -30,7 +30,9 @@ import java.util.Optional;
  *
  * <p>Inputs are the per-arm count and mean of each cell ({@code count * mean} is the arm's sum):
  * statistics that merge across partitions, with no observation history and no dependence on the
- * order of arrival; the outcome spread is not used (the range bounds it). The boundary's tuning
+ * order of arrival; the outcome spread is not used (the range bounds it). With pending outcomes
+ * the sequences for an arm run on the ends of its {@link dev.bracket.bounds.ArmMeanRange} (each
+ * pending unit counted at a or at b), over the arm's exposed units. The boundary's tuning
  * parameter is fixed by {@code plannedCount}, chosen before the data are seen.
  *
  * <p>Immutable and thread-safe; build one per configured level and reuse it.
@@ -82,7 +84,7 @@ public final class AnytimeBand {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         NormalMixtureBoundary boundary = k == 1 ? singleCellBoundary : boundary(k);
-        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, boundary)), basis);
+        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, assumptions, boundary)), basis);
     }
 
     /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
@@ -90,7 +92,7 @@ public final class AnytimeBand {
         if (arms.hasEmptyArm()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, singleCellBasis);
         }
-        return band(BoxProjection.cell(box(arms, range, singleCellBoundary), range, assumptions), singleCellBasis);
+        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBoundary), range, assumptions), singleCellBasis);
     }
 
     /** The sequence each of the {@code 3 * cells} quantities gets. */
@@ -98,16 +100,11 @@ public final class AnytimeBand {
         return NormalMixtureBoundary.tunedFor((1 - level) / (3.0 * cells), plannedCount);
     }
 
-    /** The cell's box: confidence sequences for p, mu1 and mu0 at the given boundary. */
-    static ObservablesBox box(ObservedArms arms, OutcomeRange range, NormalMixtureBoundary boundary) {
-        ArmStatistics t = arms.treated();
-        ArmStatistics c = arms.control();
+    /** The cell's box: confidence sequences for p (over all units) and the ends of each arm's mean range. */
+    static ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, NormalMixtureBoundary boundary) {
         double width = range.width();
-        return ObservablesBox.around(
-                arms.treatedShare(), boundary.radius(arms.total()),
-                t.isEmpty() ? range.min() : t.mean(), width * boundary.radius(t.count()),
-                c.isEmpty() ? range.min() : c.mean(), width * boundary.radius(c.count()),
-                range);
+        return ObservablesBox.of(arms, range, assumptions, arms.treatedShare(), boundary.radius(arms.total()),
+                arm -> width * boundary.radius(arm.count()));
     }
 
     private ConfidenceBand band(Optional<BoxProjection.Ends> ends, String basis) {

@@ -38,8 +38,13 @@ import java.util.Optional;
  *       is compatible with the assumptions (a test at level alpha), and otherwise spans the
  *       intervals compatible with the data.</li>
  * </ol>
- * Insufficient data when an arm of any cell has a single unit, or the interval itself is
- * insufficient data.
+ * Pending outcomes (exposed units without an outcome yet) take case 2's route as well: each
+ * arm's box runs from the low end of its arm-mean range minus a normal radius to the high end
+ * plus one, the ends being means of per-unit quantities with a pending unit at a or b
+ * (see {@link ObservablesBox#of}).
+ *
+ * <p>Insufficient data when an arm of any cell has a single observed outcome, or the interval
+ * itself is insufficient data.
  */
 public final class FixedHorizonBand {
 
@@ -55,7 +60,8 @@ public final class FixedHorizonBand {
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
-        if (estimate.isBounded() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
+        if (estimate.isBounded() && cells.pooled().pending() == 0
+                && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
             Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
             if (band.isPresent()) {
                 return band.get();
@@ -71,7 +77,7 @@ public final class FixedHorizonBand {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
         IdentifiedInterval estimate = BoundCalculator.interval(arms, range, assumptions);
-        Optional<EndpointStandardErrors> se = estimate.isBounded()
+        Optional<EndpointStandardErrors> se = estimate.isBounded() && arms.pending() == 0
                 ? EndpointStandardErrors.of(arms, range, assumptions, variance) : Optional.empty();
         if (se.isPresent()) {
             return imbensManski(estimate.lower(), estimate.upper(), se.get().lower(), se.get().upper(), arms.total(),
@@ -121,28 +127,23 @@ public final class FixedHorizonBand {
         double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (6.0 * k));
         String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
                 + k + (k == 1 ? " cell" : " cells") + " (conservative), using " + variance.description();
-        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, z, variance))
+        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, assumptions, z, variance))
                 .map(e -> ConfidenceBand.of(BandMethod.FIXED_HORIZON, level, e.lower(), e.upper(), basis))
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.FIXED_HORIZON, level, basis));
     }
 
     /** Wilson score interval for p and normal intervals for the means, each two-sided with quantile z. */
-    static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, double z, VarianceBasis variance) {
+    static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double z, VarianceBasis variance) {
         double n = arms.total();
         double p = arms.treatedShare();
         double z2n = z * z / n;
         double centre = (p + z2n / 2) / (1 + z2n);
         double half = z / (1 + z2n) * Math.sqrt(p * (1 - p) / n + z2n / (4 * n));
-        ArmStatistics t = arms.treated();
-        ArmStatistics c = arms.control();
-        return ObservablesBox.around(centre, half,
-                t.isEmpty() ? range.min() : t.mean(), meanRadius(t, range, z, variance),
-                c.isEmpty() ? range.min() : c.mean(), meanRadius(c, range, z, variance),
-                range);
+        return ObservablesBox.of(arms, range, assumptions, centre, half, arm -> meanRadius(arm, range, z, variance));
     }
 
     private static double meanRadius(ArmStatistics arm, OutcomeRange range, double z, VarianceBasis variance) {
-        return arm.isEmpty() ? Double.POSITIVE_INFINITY : z * Math.sqrt(variance.variance(arm, range) / arm.count());
+        return z * Math.sqrt(variance.variance(arm, range) / arm.count());
     }
 
     private static boolean hasSingleUnitArm(StudyCells cells) {

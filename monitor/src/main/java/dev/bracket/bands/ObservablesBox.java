@@ -1,7 +1,13 @@
 package dev.bracket.bands;
 
+import dev.bracket.bounds.ArmMeanRange;
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.MeanVertices;
+import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
+
+import java.util.function.ToDoubleFunction;
 
 /**
  * A box of plausible values for one cell's observable quantities: the treated share
@@ -18,13 +24,30 @@ record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu1High, 
         }
     }
 
-    /** The box around estimates with the given half-widths, clipped to [0, 1] and the outcome range. */
-    static ObservablesBox around(double p, double pRadius, double mu1, double mu1Radius, double mu0, double mu0Radius,
-                                 OutcomeRange range) {
-        return new ObservablesBox(
-                Math.max(0, p - pRadius), Math.min(1, p + pRadius),
-                Math.max(range.min(), mu1 - mu1Radius), Math.min(range.max(), mu1 + mu1Radius),
-                Math.max(range.min(), mu0 - mu0Radius), Math.min(range.max(), mu0 + mu0Radius));
+    /**
+     * A cell's box: the treated share's interval (over all units, pending ones included) and, per
+     * arm, from the low end of its {@link ArmMeanRange} minus that end's radius to the high end plus
+     * its radius, clipped to [0, 1] and the outcome range. Each end of an arm-mean range is itself
+     * the mean of bounded per-unit quantities (the observed outcome, or a or b for a pending unit;
+     * Horowitz &amp; Manski 2000, JASA 95(449)), so its radius comes from the same bounds as a plain
+     * arm mean; without pending units both ends are the arm mean. An end with no units gives the
+     * whole range.
+     */
+    static ObservablesBox of(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double p, double pRadius,
+                             ToDoubleFunction<ArmStatistics> meanRadius) {
+        ArmMeanRange t = ArmMeanRange.of(arms.treated(), range, assumptions);
+        ArmMeanRange c = ArmMeanRange.of(arms.control(), range, assumptions);
+        return new ObservablesBox(Math.max(0, p - pRadius), Math.min(1, p + pRadius),
+                lowEnd(t.low(), range, meanRadius), highEnd(t.high(), range, meanRadius),
+                lowEnd(c.low(), range, meanRadius), highEnd(c.high(), range, meanRadius));
+    }
+
+    private static double lowEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
+        return arm.isEmpty() ? range.min() : Math.max(range.min(), arm.mean() - radius.applyAsDouble(arm));
+    }
+
+    private static double highEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
+        return arm.isEmpty() ? range.max() : Math.min(range.max(), arm.mean() + radius.applyAsDouble(arm));
     }
 
     /** The (mu1, mu0) pairs where an end can take its extreme over the box: see {@link MeanVertices}. */
