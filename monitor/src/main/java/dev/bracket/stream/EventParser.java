@@ -27,11 +27,23 @@ import java.util.Map;
  * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
  * {@code unit} and {@code id} strings or numbers. One parser per thread.
  *
+ * <p>Exposure events: {@code "kind": "exposure"} says a unit entered the study in an arm
+ * (study, unit, treated, time; no outcome, any outcome field is ignored). {@code "kind": "outcome"}
+ * or no {@code kind} is an outcome event as before. An outcome event may carry
+ * {@code "exposed"}: when its unit was exposed (epoch milliseconds or ISO-8601, like time), so
+ * windows count the outcome in the window of its exposure; without it the outcome counts in the
+ * window of its own time. The names {@code kind} and {@code exposed} are fixed (not mapped).
+ *
  * <p>Events of the usual shape are read by {@link FlatEventScanner} straight from the bytes;
  * the others by Jackson's streaming parser (no tree, no data binding), whose messages name
  * what is wrong.
  */
 public final class EventParser {
+
+    /** Field saying what an event reports: {@code exposure} or {@code outcome} (the default). */
+    public static final String KIND_FIELD = "kind";
+    /** Optional field of an outcome event: when its unit was exposed. */
+    public static final String EXPOSED_FIELD = "exposed";
 
     // FastDoubleParser rounds exactly like Double.parseDouble, only faster.
     private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER).build();
@@ -149,6 +161,22 @@ public final class EventParser {
                     return wrongType(e, fields.instrument(), "a string or whole number", t);
                 }
                 e.instrument = text(p);
+            } else if (name.equals(KIND_FIELD)) {
+                String kind = t == JsonToken.VALUE_STRING ? p.getText() : null;
+                if (!"exposure".equals(kind) && !"outcome".equals(kind)) {
+                    return e.reject(RejectReason.WRONG_TYPE, "field '" + KIND_FIELD + "' must be \"exposure\" or \"outcome\", was "
+                            + (kind == null ? describe(t) : "'" + clip(kind) + "'"));
+                }
+                e.exposure = kind.equals("exposure");
+            } else if (name.equals(EXPOSED_FIELD)) {
+                long parsed = t == JsonToken.VALUE_NUMBER_INT ? p.getLongValue()
+                        : t == JsonToken.VALUE_STRING ? IsoTime.parseMillis(p.getTextCharacters(), p.getTextOffset(), p.getTextLength())
+                        : IsoTime.INVALID;
+                if (parsed == IsoTime.INVALID) {
+                    return e.reject(RejectReason.WRONG_TYPE, "field '" + EXPOSED_FIELD
+                            + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z");
+                }
+                e.exposedTime = parsed;
             } else if (name.equals(fields.id())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
                     return wrongType(e, fields.id(), "a string or whole number", t);
@@ -174,7 +202,7 @@ public final class EventParser {
         if (!hasTreated) {
             return missing(e, fields.treated());
         }
-        if (!hasOutcome) {
+        if (!hasOutcome && !e.exposure) {
             return missing(e, fields.outcome());
         }
         Integer index = studyIndex.get(studyId);
@@ -185,7 +213,9 @@ public final class EventParser {
         e.study = study;
         e.studyIndex = index;
         OutcomeRange range = study.range();
-        if (!range.contains(e.outcome)) {
+        if (e.exposure) {
+            e.outcome = Double.NaN; // an exposure has no outcome yet
+        } else if (!range.contains(e.outcome)) {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "
                     + range.max() + "] declared for study '" + study.id() + "'");
         }

@@ -65,9 +65,13 @@ public final class PartitionState {
         return source;
     }
 
-    /** Folds a usable event into its cells, one per window. */
+    /**
+     * Folds a usable event into its cells, one per window: an exposure counts a unit in its arm,
+     * an outcome adds to the arm's statistics. An outcome carrying its exposure time is placed in
+     * the panes of that time (the unit's window), otherwise in those of its own time.
+     */
     public void add(ParsedEvent e) {
-        long t = e.time();
+        long t = e.exposedTime() != Long.MIN_VALUE ? e.exposedTime() : e.time();
         if (t > streamTime) {
             streamTime = t;
             progressDirty = true;
@@ -81,7 +85,12 @@ public final class PartitionState {
                 onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            cell(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
+            CellAccumulator cell = cell(study, e.stratum(), e.instrument(), windows[w].name(), pane);
+            if (e.isExposure()) {
+                cell.addExposure(e.treated());
+            } else {
+                cell.add(e.treated(), e.outcome());
+            }
         }
     }
 
