@@ -6,6 +6,7 @@ import dev.bracket.alerts.AssumptionsRefutedRule;
 import dev.bracket.alerts.CellRule;
 import dev.bracket.alerts.DataQualityRule;
 import dev.bracket.alerts.IntervalNarrowRule;
+import dev.bracket.alerts.PendingShareRule;
 import dev.bracket.alerts.PracticalEquivalenceRule;
 import dev.bracket.alerts.SignIdentifiedRule;
 import dev.bracket.alerts.StreamStalledRule;
@@ -38,6 +39,7 @@ import java.util.stream.Collectors;
  *     interval-narrow: {width, clear-margin}
  *     practical-equivalence: {lower, upper, clear-margin}
  *     assumptions-refuted: {clear-margin}
+ *     pending-share: {max-share, clear-margin}
  *     stream-stalled: {after}
  *     data-quality: {max-rejected-share, period (10m), min-events (100), clear-margin}
  *   webhooks: [{url, token-env, timeout (5s), retry-for (15m), queue (1000), backoff-initial (500ms), backoff-max (60s)}]
@@ -93,6 +95,8 @@ final class AlertSettings {
                                     number(r.get("clear-margin"), 0))));
                     case ASSUMPTIONS_REFUTED -> cellRules.add(build(r.onlyKeys(Set.of("clear-margin")),
                             () -> new AssumptionsRefutedRule(number(r.get("clear-margin"), 0))));
+                    case PENDING_SHARE -> cellRules.add(build(r.onlyKeys(Set.of("max-share", "clear-margin")),
+                            () -> new PendingShareRule(r.require("max-share").number(), number(r.get("clear-margin"), 0))));
                     case STREAM_STALLED -> stalled = Optional.of(build(r.onlyKeys(Set.of("after")),
                             () -> new StreamStalledRule(r.require("after").duration(null))));
                     case DATA_QUALITY -> quality = Optional.of(build(
