@@ -16,6 +16,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 import java.util.Locale;
 import java.util.Random;
 
@@ -194,5 +195,31 @@ class PartitionStateTest {
         }
         assertThat(copy.cells()).isEqualTo(original.cells());
         assertThat(copy.progress()).isEqualTo(original.progress());
+    }
+
+    @Test
+    @DisplayName("an outcome carrying its exposure time counts in the exposure's pane; without it, in its own")
+    void outcomesFollowTheirExposureTime() {
+        PartitionState s = state(0);
+        String exposure = "{\"kind\":\"exposure\",\"study\":\"s\",\"unit\":\"u1\",\"treated\":true,\"time\":1000}";
+        String withExposed = "{\"study\":\"s\",\"unit\":\"u1\",\"treated\":true,\"outcome\":4,\"time\":61000,\"exposed\":1000}";
+        String withoutExposed = "{\"study\":\"s\",\"unit\":\"u2\",\"treated\":true,\"outcome\":6,\"time\":62000}";
+        for (String json : List.of(exposure, withExposed, withoutExposed)) {
+            ParsedEvent e = parser.parse(json.getBytes(StandardCharsets.UTF_8), 0);
+            assertThat(e.isUsable()).as(e.detail()).isTrue();
+            s.add(e);
+        }
+        Map<CellKey, ObservedArms> cells = s.cells();
+        ObservedArms firstMinute = cells.get(new CellKey("s", "", "", "minute", 0));
+        ObservedArms secondMinute = cells.get(new CellKey("s", "", "", "minute", 60_000));
+        assertThat(firstMinute.treated().exposed()).isEqualTo(1);
+        assertThat(firstMinute.treated().count()).isEqualTo(1);
+        assertThat(firstMinute.treated().mean()).isEqualTo(4.0);
+        assertThat(firstMinute.pending()).isZero();
+        assertThat(secondMinute.treated().count()).isEqualTo(1);
+        assertThat(secondMinute.treated().exposed()).isZero();
+        ObservedArms cumulative = cells.get(new CellKey("s", "", "", "cumulative", 0));
+        assertThat(cumulative.treated().count()).isEqualTo(2);
+        assertThat(cumulative.treated().excessOutcomes()).isEqualTo(1);
     }
 }
