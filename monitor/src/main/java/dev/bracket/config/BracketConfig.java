@@ -201,7 +201,7 @@ public record BracketConfig(
         List<StudyConfig> out = new ArrayList<>();
         Set<String> seen = new HashSet<>();
         for (ConfigNode s : items) {
-            s.onlyKeys(Set.of("id", "outcome", "assume", "alerts"));
+            s.onlyKeys(Set.of("id", "outcome", "assume", "alerts", "follow-up"));
             ConfigNode idNode = s.require("id");
             String id = idNode.text();
             if (!seen.add(id)) {
@@ -219,8 +219,13 @@ public record BracketConfig(
             } catch (IllegalArgumentException e) {
                 throw outcome.get("better").fail(e.getMessage());
             }
+            ConfigNode followUp = s.get("follow-up");
+            Duration horizon = followUp.isMissing() ? null : followUp.duration(null);
+            if (horizon != null && (horizon.isZero() || horizon.isNegative())) {
+                throw followUp.fail("must be a positive duration such as 30d or 12h");
+            }
             out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume")),
-                    AlertSettings.study(s.get("alerts"))));
+                    AlertSettings.study(s.get("alerts")), horizon));
         }
         return out;
     }

@@ -4,6 +4,7 @@ import dev.bracket.bounds.ObservedArms;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 
+import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.HashMap;
@@ -71,11 +72,11 @@ public final class PartitionState {
      * the panes of that time (the unit's window), otherwise in those of its own time.
      */
     public void add(ParsedEvent e) {
-        long t = e.exposedTime() != Long.MIN_VALUE ? e.exposedTime() : e.time();
-        if (t > streamTime) {
-            streamTime = t;
+        if (e.time() > streamTime) {
+            streamTime = e.time(); // stream time follows the events' own times, whatever window they count in
             progressDirty = true;
         }
+        long t = e.exposedTime() != Long.MIN_VALUE ? e.exposedTime() : e.time();
         String study = e.study().id();
         for (int w = 0; w < windows.length; w++) {
             long pane = WindowSpec.paneStart(t, paneMillis[w]);
@@ -85,12 +86,21 @@ public final class PartitionState {
                 onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            CellAccumulator cell = cell(study, e.stratum(), e.instrument(), windows[w].name(), pane);
-            if (e.isExposure()) {
-                cell.addExposure(e.treated());
-            } else {
-                cell.add(e.treated(), e.outcome());
-            }
+            fold(cell(study, e.stratum(), e.instrument(), windows[w].name(), pane), e);
+        }
+        Duration horizon = e.study().followUp();
+        if (horizon != null && (e.isExposure() || e.exposedTime() != Long.MIN_VALUE)) {
+            // Follow-up cells: by exposure-time bucket, never late, never evicted (see LostToFollowUp).
+            fold(cell(study, e.stratum(), e.instrument(), LostToFollowUp.WINDOW,
+                    WindowSpec.paneStart(t, LostToFollowUp.bucketMillis(horizon))), e);
+        }
+    }
+
+    private static void fold(CellAccumulator cell, ParsedEvent e) {
+        if (e.isExposure()) {
+            cell.addExposure(e.treated());
+        } else {
+            cell.add(e.treated(), e.outcome());
         }
     }
 
