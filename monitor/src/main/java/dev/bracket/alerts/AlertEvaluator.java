@@ -15,9 +15,10 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.TreeMap;
 
 /**
- * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
+ * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-row rules are
  * judged on each bound update ({@link #evaluate}); per-study rules on a clock ({@link #tick}),
  * which is injected so tests control time. Pure logic: the transitions it returns go to the sinks
  * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
@@ -31,6 +32,7 @@ public final class AlertEvaluator {
 
     private final Map<String, StudyAlertConfig> studies;
     private final Clock clock;
+    private final Instant upSince;
     private final Map<AlertKey, AlertState> states = new HashMap<>();
     private final Map<String, EventCounts> traffic = new HashMap<>();
 
@@ -41,13 +43,13 @@ public final class AlertEvaluator {
     public AlertEvaluator(Map<String, StudyAlertConfig> studies, Clock clock) {
         this.studies = Map.copyOf(studies);
         this.clock = clock;
-        Instant start = clock.instant();
+        this.upSince = clock.instant();
         this.studies.forEach((study, config) -> traffic.put(study,
-                new EventCounts(start, config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
+                new EventCounts(config.quality().map(DataQualityRule::period).orElse(IDLE_PERIOD))));
     }
 
     /**
-     * Judges the per-cell rules of the snapshot's study. Nothing is judged (and no state
+     * Judges the per-row rules of the snapshot's study. Nothing is judged (and no state
      * changes) while either arm has fewer than the study's min-per-arm units, the interval
      * lacks data, or the configured band is missing.
      *
@@ -62,8 +64,8 @@ public final class AlertEvaluator {
             return List.of();
         }
         List<AlertTransition> out = new ArrayList<>();
-        for (CellRule rule : config.cellRules()) {
-            AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
+        for (RowRule rule : config.rowRules()) {
+            AlertKey key = AlertKey.perRow(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
             Verdict verdict = rule.judge(snapshot, band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
             apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
@@ -83,6 +85,44 @@ public final class AlertEvaluator {
         }
     }
 
+    /**
+     * Counts rejected records whose study could not be read (at the clock's time): they count
+     * against every study's data quality, since they may be any study's.
+     */
+    public synchronized void recordUnattributed(long rejected) {
+        Instant now = clock.instant();
+        traffic.values().forEach(counts -> counts.recordUnattributed(now, rejected));
+    }
+
+    /**
+     * Takes over when each study's last event arrived before a restart, so that a stall is judged
+     * from it rather than from this start. Call before any event is recorded.
+     */
+    public synchronized void restoreLastEvents(Map<String, Instant> lastEvents) {
+        lastEvents.forEach((study, at) -> {
+            EventCounts counts = traffic.get(study);
+            if (counts != null) {
+                counts.restoreLastEvent(at);
+            }
+        });
+    }
+
+    /**
+     * When each configured study's last event arrived; this evaluator's start when none has and
+     * none was restored (so that after a restart a study that never sent counts as silent since
+     * the first start).
+     */
+    public synchronized Map<String, Instant> lastEvents() {
+        Map<String, Instant> out = new TreeMap<>();
+        traffic.forEach((study, counts) -> out.put(study, counts.lastEventAt().orElse(upSince)));
+        return out;
+    }
+
+    /** The time on the evaluator's clock. */
+    public Instant now() {
+        return clock.instant();
+    }
+
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
     public synchronized List<AlertTransition> tick() {
         Instant now = clock.instant();
@@ -92,7 +132,7 @@ public final class AlertEvaluator {
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
             config.stalled().ifPresent(rule -> apply(AlertKey.perStudy(study, AlertRule.STREAM_STALLED),
-                    rule.judge(counts.lastEventAt(), now), rule.evidence(counts.lastEventAt(), now), now,
+                    rule.judge(counts.lastEventAt(), upSince, now), rule.evidence(counts.lastEventAt(), upSince, now), now,
                     config.clearAfter(), "", out));
             config.quality().ifPresent(rule -> {
                 Evidence.OfQuality q = counts.within(now, rule.maxShare());
@@ -127,7 +167,7 @@ public final class AlertEvaluator {
         return switch (key.rule()) {
             case STREAM_STALLED -> c.stalled().isPresent();
             case DATA_QUALITY -> c.quality().isPresent();
-            default -> c.cellRules().stream().anyMatch(r -> r.rule() == key.rule());
+            default -> c.rowRules().stream().anyMatch(r -> r.rule() == key.rule());
         };
     }
 
@@ -146,7 +186,7 @@ public final class AlertEvaluator {
                        List<AlertTransition> out) {
         AlertState.Step step = state(key).next(verdict, evidence, at, clearAfter, meaning);
         if (step.state().sequence() == 0) {
-            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with cells
+            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with rows
         } else {
             states.put(key, step.state());
         }

@@ -3,17 +3,20 @@ package dev.bracket.alerts;
 import java.time.Duration;
 
 /**
- * Fires when the share of rejected events (malformed, unknown arm, outcome outside the declared
- * range, …) among all events of a study within the last {@code period} exceeds {@code maxShare}.
+ * Fires when the share of rejected records among all records of a study within the last
+ * {@code period} exceeds {@code maxShare}. Counted: the study's accepted events, its rejected
+ * events of any reason (wrong type, missing field, outcome outside the declared range, …), and
+ * the records no study could be read from (unparseable lines and the like), which count against
+ * every study because they may be any study's.
  *
  * @param maxShare    the largest acceptable rejected share, in [0, 1)
  * @param period      how far back events are counted
  * @param minEvents   fewer events than this in the period judge nothing (a single bad event out of
  *                    three is not a data-quality finding)
- * @param clearMargin a firing alert resolves at once when the share falls to {@code maxShare - clearMargin}
+ * @param clearShareBelow a firing alert resolves at once when the share falls to {@code maxShare - clearShareBelow}
  *                    or below; 0 disables the margin
  */
-public record DataQualityRule(double maxShare, Duration period, long minEvents, double clearMargin) {
+public record DataQualityRule(double maxShare, Duration period, long minEvents, double clearShareBelow) {
 
     public DataQualityRule {
         if (!(maxShare >= 0 && maxShare < 1)) {
@@ -25,15 +28,16 @@ public record DataQualityRule(double maxShare, Duration period, long minEvents, 
         if (minEvents < 1) {
             throw new IllegalArgumentException("data-quality min-events must be at least 1, was " + minEvents);
         }
-        if (!(clearMargin >= 0 && clearMargin <= maxShare)) {
-            throw new IllegalArgumentException("data-quality clear-margin must lie in [0, max-rejected-share], was " + clearMargin);
+        if (!(clearShareBelow >= 0 && clearShareBelow <= maxShare)) {
+            throw new IllegalArgumentException("data-quality clear-share-below must lie in [0, max-rejected-share], was " + clearShareBelow);
         }
     }
 
     public Verdict judge(Evidence.OfQuality counts) {
-        long total = counts.accepted() + counts.rejected();
-        String seen = counts.rejected() + " of " + total + " events rejected in the last " + AlertText.duration(period)
-                + " (" + counts.outOfRange() + " out of range), share " + AlertText.num(counts.rejectedShare())
+        long total = counts.total();
+        String seen = (counts.rejected() + counts.unattributed()) + " of " + total + " records rejected in the last "
+                + AlertText.duration(period) + " (" + counts.outOfRange() + " out of range, " + counts.unattributed()
+                + " without a readable study), share " + AlertText.num(counts.rejectedShare())
                 + ", limit " + AlertText.num(maxShare);
         if (total < minEvents) {
             return Verdict.unknown(seen + "; fewer than " + minEvents + " events");
@@ -41,8 +45,8 @@ public record DataQualityRule(double maxShare, Duration period, long minEvents, 
         if (counts.rejectedShare() > maxShare) {
             return Verdict.met("", seen);
         }
-        if (clearMargin > 0 && counts.rejectedShare() <= maxShare - clearMargin) {
-            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearMargin));
+        if (clearShareBelow > 0 && counts.rejectedShare() <= maxShare - clearShareBelow) {
+            return Verdict.clear(seen + ", below the limit by clear-share-below " + AlertText.num(clearShareBelow));
         }
         return Verdict.unmet(seen);
     }

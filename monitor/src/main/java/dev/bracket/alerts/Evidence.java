@@ -14,7 +14,7 @@ import java.util.Map;
 public sealed interface Evidence {
 
     /**
-     * For per-cell rules: the pooled arms, the estimated identified interval, the band that was
+     * For per-row rules: the pooled arms, the estimated identified interval, the band that was
      * judged and the rule's configured limits by name (e.g. {@code width}).
      */
     record OfBand(ObservedArms arms, IdentifiedInterval interval, ConfidenceBand band, Map<String, Double> limits)
@@ -29,16 +29,23 @@ public sealed interface Evidence {
     }
 
     /**
-     * For {@link AlertRule#DATA_QUALITY}: event counts over the period ending now. {@code rejected}
-     * counts every rejected event; {@code outOfRange} is the part of it rejected because the
-     * outcome lay outside the study's declared range.
+     * For {@link AlertRule#DATA_QUALITY}: record counts over the period ending now. {@code rejected}
+     * counts every rejected event that names the study (any reason); {@code outOfRange} is the
+     * part of it rejected because the outcome lay outside the study's declared range;
+     * {@code unattributed} counts the rejected records of the input topics no study could be read
+     * from (not JSON, no study field, unknown study, too large), which may be any study's.
      */
-    record OfQuality(Duration period, long accepted, long rejected, long outOfRange, double maxShare)
+    record OfQuality(Duration period, long accepted, long rejected, long outOfRange, long unattributed, double maxShare)
             implements Evidence {
-        /** Rejected share of all events in the period; 0 when there were none. */
+        /** All records counted: accepted, rejected and unattributed. */
+        public long total() {
+            return accepted + rejected + unattributed;
+        }
+
+        /** Rejected share (unattributed records included) of all records in the period; 0 when there were none. */
         public double rejectedShare() {
-            long total = accepted + rejected;
-            return total == 0 ? 0.0 : (double) rejected / total;
+            long total = total();
+            return total == 0 ? 0.0 : (double) (rejected + unattributed) / total;
         }
     }
 }

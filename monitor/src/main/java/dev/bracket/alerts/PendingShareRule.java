@@ -15,17 +15,17 @@ import java.util.Map;
  * it is wide because of them. Without exposure events nothing is pending and it never fires.
  *
  * @param maxShare    the largest acceptable pending share, in [0, 1)
- * @param clearMargin a firing alert resolves at once when both shares fall to {@code maxShare - clearMargin}
+ * @param clearShareBelow a firing alert resolves at once when both shares fall to {@code maxShare - clearShareBelow}
  *                    or below; 0 disables the margin
  */
-public record PendingShareRule(double maxShare, double clearMargin) implements CellRule {
+public record PendingShareRule(double maxShare, double clearShareBelow) implements RowRule {
 
     public PendingShareRule {
         if (!(maxShare >= 0 && maxShare < 1)) {
             throw new IllegalArgumentException("pending-share max-share must lie in [0, 1), was " + maxShare);
         }
-        if (!(clearMargin >= 0 && clearMargin <= maxShare)) {
-            throw new IllegalArgumentException("pending-share clear-margin must lie in [0, max-share], was " + clearMargin);
+        if (!(clearShareBelow >= 0 && clearShareBelow <= maxShare)) {
+            throw new IllegalArgumentException("pending-share clear-share-below must lie in [0, max-share], was " + clearShareBelow);
         }
     }
 
@@ -53,8 +53,8 @@ public record PendingShareRule(double maxShare, double clearMargin) implements C
         if (worst > maxShare) {
             return Verdict.met("", seen);
         }
-        if (clearMargin > 0 && worst <= maxShare - clearMargin) {
-            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearMargin));
+        if (clearShareBelow > 0 && worst <= maxShare - clearShareBelow) {
+            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearShareBelow));
         }
         return Verdict.unmet(seen);
     }
@@ -67,7 +67,7 @@ public record PendingShareRule(double maxShare, double clearMargin) implements C
     public Map<String, Double> limits() {
         Map<String, Double> m = new LinkedHashMap<>();
         m.put("maxShare", maxShare);
-        m.put("clearMargin", clearMargin);
+        m.put("clearShareBelow", clearShareBelow);
         return m;
     }
 }

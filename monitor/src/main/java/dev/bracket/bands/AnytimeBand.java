@@ -1,8 +1,10 @@
 package dev.bracket.bands;
 
-import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.Assumption;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
@@ -13,59 +15,89 @@ import java.util.Optional;
 
 /**
  * The anytime-valid band: with probability at least {@code level}, at every look at once, the
- * band holds the whole identified set. Looking after every event, stopping when a result looks
- * interesting, or continuing when it does not, all keep this guarantee; it is the band alerts use.
+ * band holds the whole identified set of the population. Looking after every event, stopping when
+ * a result looks interesting, or continuing when it does not, all keep this guarantee; it is the
+ * band alerts use.
  *
- * <p>Construction (DESIGN.md §3). In each cell (stratum × instrument level) three confidence
- * sequences run at once, each at error {@code alpha / (3 K)} for K cells (Bonferroni): one for the
- * treated share p over all of the cell's units, and one for each arm's mean over that arm's
- * units alone, all from {@link NormalMixtureBoundary} (Howard et al. 2021, Ann. Statist. 49(2))
- * on outcomes rescaled to [0, 1] by the declared range. With probability at least 1 - alpha every
- * true (p, mu1, mu0) stays in its box forever; {@link BoxProjection} turns the boxes into the band.
- * For one cell this is DESIGN.md's corner rule (lower end: mu1 low, mu0 high; upper end: mu1 high,
- * mu0 low; p at either end), extended to the points where the box meets {@code mu1 = mu0} so
- * that corners where the assumptions are refuted are handled. Strata are weighted by their
- * observed shares, as in {@link StratifiedBounds}: the band covers the ATE of a population with
- * the observed stratum mix (sampling variation of the shares is not included).
+ * <p>Every sequence is an {@link EmpiricalBernsteinBoundary} (Howard, Ramdas, McAuliffe &amp;
+ * Sekhon 2021, Ann. Statist. 49(2), Thm 4, with Fan et al.'s 2015 inequality): finite-sample
+ * valid for any law in the declared range, and as narrow as the data's spread allows. Two
+ * constructions:
+ * <ol>
+ *   <li>One sequence per end. When each end is the mean of a per-unit quantity
+ *       ({@link EndQuantities}: worst case, monotone response, optimizing selection and their
+ *       combinations, without instrument levels), a lower bound for the lower end's quantity and
+ *       an upper bound for the upper end's, each at error {@code alpha / 2}, on all units pooled.
+ *       Pooling is exact for strata: the quantity is the same in every stratum, so its pooled
+ *       mean is the population-share-weighted sum of the stratum ends.</li>
+ *   <li>Otherwise a box per cell (stratum × instrument level): two-sided sequences for the
+ *       treated share and each arm's mean, and one per stratum share when there are several
+ *       strata, each at error {@code alpha / (3 K + S)} for K cells and S shares (Bonferroni);
+ *       {@link BoxProjection} turns the boxes into the band, and says "refuted" when no point
+ *       of some box is compatible with the assumptions.</li>
+ * </ol>
+ * In both cases, if every sequence holds its truth, the band holds the identified set, so the
+ * chance that it ever misses is at most {@code 1 - level}.
  *
- * <p>Inputs are the per-arm count and mean of each cell ({@code count * mean} is the arm's sum):
- * statistics that merge across partitions, with no observation history and no dependence on the
- * order of arrival; the outcome spread is not used (the range bounds it). With pending outcomes
- * the sequences for an arm run on the ends of its {@link dev.bracket.bounds.ArmMeanRange} (each
- * pending unit counted at a or at b), over the arm's exposed units. The boundary's tuning
- * parameter is fixed by {@code plannedCount}, chosen before the data are seen.
+ * <p>Inputs are each arm's count, mean and sum of squared deviations (M2): statistics that merge
+ * across partitions, with no observation history and no dependence on the order of arrival. With
+ * {@link VarianceBasis#RANGE_BOUND} (no standard deviation known) M2 is replaced by its largest
+ * value for outcomes in the declared range. The boundary's tuning is fixed by
+ * {@code plannedCount}, chosen before the data are seen.
+ *
+ * <p>Pending outcomes (exposed units whose outcome has not arrived): the identified set is the
+ * union over each arm's {@link dev.bracket.bounds.ArmMeanRange} (Horowitz &amp; Manski 2000, JASA
+ * 95(449)). In route 1 an end is linear in every unit's outcome, so its extreme over the pending
+ * outcomes puts each pending unit at the range end where that end's quantity is smallest (lower
+ * end) or largest (upper end); that unit's quantity is then a known bounded number and the
+ * sequence runs over all units ({@link EndQuantities.PerUnit#filled}). In route 2 each arm's box
+ * runs from the low end of its arm-mean range (pending units at a) to the high end (at b), each a
+ * mean of bounded per-unit quantities. Under {@code missing-at-random} a pending unit's quantity
+ * is not known at all, so pending outcomes then take route 2, whose arm boxes come from the
+ * observed outcomes alone and the treated share from all units.
  *
  * <p>Immutable and thread-safe; build one per configured level and reuse it.
  */
 public final class AnytimeBand {
 
-    /** Default tuning: tightest around ten thousand observations per sequence (a choice, no source). */
+    /** Default tuning: weights peak around ten thousand observations per sequence (a choice, no source). */
     public static final long DEFAULT_PLANNED_COUNT = 10_000;
 
     private final double level;
     private final long plannedCount;
-    private final NormalMixtureBoundary singleCellBoundary;
-    private final String singleCellBasis;
+    private final VarianceBasis variance;
+    private final EmpiricalBernsteinBoundary perEnd;
+    private final EmpiricalBernsteinBoundary singleCellBox;
+    private final String perEndBasis;
+    private final String singleCellBoxBasis;
 
     /**
      * @param level        confidence level 1 - alpha, in (0, 1)
      * @param plannedCount number of observations per sequence at which the boundary is tightest
+     * @param variance     where each arm's spread comes from
      */
-    public AnytimeBand(double level, long plannedCount) {
+    public AnytimeBand(double level, long plannedCount, VarianceBasis variance) {
         if (!(level > 0 && level < 1)) {
             throw new IllegalArgumentException("level must lie strictly between 0 and 1, was " + level);
         }
         if (plannedCount < 1) {
             throw new IllegalArgumentException("planned count must be >= 1, was " + plannedCount);
         }
+        if (variance == null) {
+            throw new IllegalArgumentException("variance basis is required");
+        }
         this.level = level;
         this.plannedCount = plannedCount;
-        this.singleCellBoundary = boundary(1);
-        this.singleCellBasis = basis(1);
+        this.variance = variance;
+        this.perEnd = new EmpiricalBernsteinBoundary((1 - level) / 2, plannedCount);
+        this.singleCellBox = boxBoundary(3);
+        this.perEndBasis = basis(true, false, 2);
+        this.singleCellBoxBasis = basis(false, false, 3);
     }
 
+    /** The band from observed spreads, tuned for {@link #DEFAULT_PLANNED_COUNT}. */
     public AnytimeBand(double level) {
-        this(level, DEFAULT_PLANNED_COUNT);
+        this(level, DEFAULT_PLANNED_COUNT, VarianceBasis.SAMPLE);
     }
 
     public double level() {
@@ -76,35 +108,90 @@ public final class AnytimeBand {
         return plannedCount;
     }
 
-    /** The band of a whole study (strata and instrument levels by Bonferroni over cells). */
+    /** The band of a whole study. */
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions) {
-        int k = Math.max(1, BoxProjection.cellCount(cells));
-        String basis = k == 1 ? singleCellBasis : basis(k);
-        if (StratifiedBounds.interval(cells, range, assumptions).overall().status() == BoundStatus.INSUFFICIENT_DATA) {
+        return of(cells, range, assumptions, StratifiedBounds.interval(cells, range, assumptions).overall());
+    }
+
+    /** The same, given the study's estimated interval (to spare computing it again). */
+    public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
+        boolean levels = cells.byStratum().values().stream().anyMatch(l -> l.size() > 1);
+        Optional<EndQuantities> ends = levels || unknownPendingQuantities(cells, assumptions)
+                ? Optional.empty() : EndQuantities.of(range, assumptions);
+        int shares = BoxProjection.shareCount(cells);
+        int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
+        String basis = ends.isPresent() ? perEndBasis
+                : sequences == 3 ? singleCellBoxBasis : basis(false, shares > 0, sequences);
+        // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
-        NormalMixtureBoundary boundary = k == 1 ? singleCellBoundary : boundary(k);
-        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, assumptions, boundary)), basis);
+        if (ends.isPresent()) {
+            return perEnd(cells, range, ends.get(), basis);
+        }
+        EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundary(sequences);
+        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, assumptions, boundary),
+                (units, all) -> share(units, all, boundary)), basis);
     }
 
     /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
     public ConfidenceBand ofCell(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
+        Optional<EndQuantities> ends = unknownPendingQuantities(StudyCells.single(arms), assumptions)
+                ? Optional.empty() : EndQuantities.of(range, assumptions);
+        String basis = ends.isPresent() ? perEndBasis : singleCellBoxBasis;
         if (arms.hasEmptyArm()) {
-            return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, singleCellBasis);
+            return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
-        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBoundary), range, assumptions), singleCellBasis);
+        if (ends.isPresent()) {
+            return perEnd(StudyCells.single(arms), range, ends.get(), basis);
+        }
+        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBox), range, assumptions), basis);
     }
 
-    /** The sequence each of the {@code 3 * cells} quantities gets. */
-    NormalMixtureBoundary boundary(int cells) {
-        return NormalMixtureBoundary.tunedFor((1 - level) / (3.0 * cells), plannedCount);
+    /** Missing-at-random with pending outcomes: a pending unit's per-unit quantity is unknown (route 2). */
+    private static boolean unknownPendingQuantities(StudyCells cells, AssumptionSet assumptions) {
+        return assumptions.contains(Assumption.MISSING_AT_RANDOM) && cells.hasPending();
     }
 
-    /** The cell's box: confidence sequences for p (over all units) and the ends of each arm's mean range. */
-    static ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, NormalMixtureBoundary boundary) {
+    /**
+     * Lower bound of the lower end's quantity, upper bound of the upper end's, on the pooled units,
+     * each cell's pending units filled in at that end's extreme before pooling.
+     */
+    private ConfidenceBand perEnd(StudyCells cells, OutcomeRange range, EndQuantities ends, String basis) {
+        EndQuantities.Summary lo = ends.lower().over(filled(cells, ends.lower(), range, false), range, variance);
+        EndQuantities.Summary hi = ends.upper().over(filled(cells, ends.upper(), range, true), range, variance);
+        double loMin = ends.lower().min(range);
+        double hiMax = ends.upper().max(range);
+        double lower = lo.mean() - perEnd.radius(lo.count(), lo.m2(), ends.lower().max(range) - loMin, lo.mean() - loMin);
+        double upper = hi.mean() + perEnd.radius(hi.count(), hi.m2(), hiMax - ends.upper().min(range), hiMax - hi.mean());
+        return ConfidenceBand.of(BandMethod.ANYTIME, level, lower, Math.max(lower, upper), basis);
+    }
+
+    /** Each two-sided sequence of the box route: two one-sided bounds at {@code alpha / (2 sequences)}. */
+    private EmpiricalBernsteinBoundary boxBoundary(int sequences) {
+        return new EmpiricalBernsteinBoundary((1 - level) / (2.0 * sequences), plannedCount);
+    }
+
+    /** The cell's box: sequences for p (treated indicators, all units) and for the ends of each arm's mean range. */
+    private ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, EmpiricalBernsteinBoundary boundary) {
+        long n = arms.total();
         double width = range.width();
-        return ObservablesBox.of(arms, range, assumptions, arms.treatedShare(), boundary.radius(arms.total()),
-                arm -> width * boundary.radius(arm.count()));
+        double pRadius = boundary.radius(n, (double) arms.treated().units() * arms.control().units() / n, 1, 1);
+        return ObservablesBox.of(arms, range, assumptions, arms.treatedShare(), pRadius,
+                arm -> boundary.radius(arm.count(), variance.m2(arm, range), width, width));
+    }
+
+    private static ObservedArms filled(StudyCells cells, EndQuantities.PerUnit quantity, OutcomeRange range, boolean highest) {
+        return cells.byStratum().values().stream().flatMap(levels -> levels.values().stream())
+                .map(arms -> quantity.filled(arms, range, highest))
+                .reduce(ObservedArms.empty(), ObservedArms::merge);
+    }
+
+    /** A stratum share's sequence, on the indicators of belonging to the stratum. */
+    private static double[] share(long units, long all, EmpiricalBernsteinBoundary boundary) {
+        double w = (double) units / all;
+        double r = boundary.radius(all, (double) units * (all - units) / all, 1, 1);
+        return new double[] {w - r, w + r};
     }
 
     private ConfidenceBand band(Optional<BoxProjection.Ends> ends, String basis) {
@@ -112,11 +199,14 @@ public final class AnytimeBand {
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.ANYTIME, level, basis));
     }
 
-    private String basis(int cells) {
+    private String basis(boolean perEnd, boolean shares, int sequences) {
+        String what = perEnd
+                ? "one for each end of the interval, on that end's per-unit quantity over all units"
+                : "for the treated share and each arm's mean in every cell" + (shares ? " and the stratum shares" : "");
         return String.format(Locale.ROOT,
-                "time-uniform confidence sequences (sub-Gaussian normal mixture, Howard et al. 2021) for the treated share "
-                        + "and each arm's mean, from counts, means and the declared range only (no standard deviation needed); "
-                        + "error split over %d sequences; tuned for %d observations",
-                3 * cells, plannedCount);
+                "time-uniform empirical-Bernstein confidence sequences (Howard et al. 2021), %s; from counts, means, "
+                        + "%s and the declared range; error split over %d sequences; tuned for %d observations",
+                what, variance == VarianceBasis.SAMPLE ? "observed spreads" : "the largest spreads the range allows",
+                sequences, plannedCount);
     }
 }

@@ -3,11 +3,17 @@ package dev.bracket.bands;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.IndependentInstrumentBounds;
+import dev.bracket.bounds.InstrumentAssumption;
 import dev.bracket.bounds.InstrumentBounds;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 
+import java.util.ArrayList;
+import java.util.Comparator;
+import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.function.Function;
@@ -31,9 +37,19 @@ import java.util.function.Function;
  * the assumptions when {@code max_z min L1_z > min_z max U1_z} (or the same for Y0): valid because
  * the true L1_z is at least min L1_z for every z and the true U1_w at most max U1_w.
  *
- * <p>Strata: the band is the stratum bands weighted by the observed stratum shares, the same
- * weights {@link dev.bracket.bounds.StratifiedBounds} uses; it covers the ATE of the population
- * with the observed stratum mix.
+ * <p>Independent instrument (binary outcome, see {@link IndependentInstrumentBounds}): the linear
+ * programs over response types are solved once with every level's box as interval constraints,
+ * which gives the lowest lower and highest upper sharp bound over all points of the boxes at
+ * once (and refuted when no point is compatible); beyond
+ * {@link IndependentInstrumentBounds#MAX_LEVELS} levels the mean-independence projection above.
+ *
+ * <p>Strata: the study's ends are the stratum ends weighted by the population stratum shares,
+ * which the sample only estimates. Each stratum's share gets its own confidence interval
+ * ({@link ShareInterval}, part of the same error budget), and the band takes the lowest (highest)
+ * weighted sum of the stratum bands' lower (upper) ends over all share vectors in those intervals
+ * that sum to one: start every share at its low end and hand the rest to the strata with the
+ * smallest (largest) ends first. If every share and every box holds its truth, the population
+ * interval lies in the band.
  */
 final class BoxProjection {
 
@@ -42,6 +58,11 @@ final class BoxProjection {
 
     /** Lower and upper end of a band. */
     record Ends(double lower, double upper) {
+    }
+
+    /** A confidence interval {low, high} for a stratum's population share, from its units and all units. */
+    interface ShareInterval {
+        double[] of(long stratumUnits, long allUnits);
     }
 
     /** Number of cells (stratum × instrument level) with units: the Bonferroni divisor, three sequences each. */
@@ -57,12 +78,18 @@ final class BoxProjection {
         return k;
     }
 
-    /** The band of a study from one box per cell; empty when the boxes refute the assumptions. */
+    /** Strata with units whose shares need intervals: none when a single stratum has all units. */
+    static int shareCount(StudyCells cells) {
+        long strata = cells.byStratum().keySet().stream().filter(s -> cells.pooled(s).total() > 0).count();
+        return strata > 1 ? (int) strata : 0;
+    }
+
+    /** The band of a study from one box per cell and an interval per stratum share; empty when the boxes refute the assumptions. */
     static Optional<Ends> study(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
-                                Function<ObservedArms, ObservablesBox> boxOf) {
+                                Function<ObservedArms, ObservablesBox> boxOf, ShareInterval shares) {
         long total = cells.pooled().total();
-        double lower = 0;
-        double upper = 0;
+        boolean oneStratum = shareCount(cells) == 0;
+        List<double[]> strata = new ArrayList<>(); // {share low, share high, lower end, upper end}
         for (Map.Entry<String, Map<String, ObservedArms>> e : cells.byStratum().entrySet()) {
             Map<String, ObservedArms> levels = e.getValue();
             long stratumTotal = cells.pooled(e.getKey()).total();
@@ -75,11 +102,32 @@ final class BoxProjection {
             if (stratum.isEmpty()) {
                 return Optional.empty();
             }
-            double w = (double) stratumTotal / total;
-            lower += w * stratum.get().lower();
-            upper += w * stratum.get().upper();
+            double[] share = oneStratum ? new double[] {1, 1} : shares.of(stratumTotal, total);
+            strata.add(new double[] {Math.max(0, share[0]), Math.min(1, share[1]), stratum.get().lower(), stratum.get().upper()});
         }
-        return Optional.of(new Ends(lower, upper));
+        return Optional.of(new Ends(weighted(strata, 2, true), weighted(strata, 3, false)));
+    }
+
+    /**
+     * The smallest (or largest) {@code sum w_s e_s} over {@code low_s <= w_s <= high_s},
+     * {@code sum w_s = 1}, with e in column {@code end}: a linear program over a box cut by one
+     * equation, solved greedily (the shares left over go to the most extreme ends first).
+     */
+    private static double weighted(List<double[]> strata, int end, boolean lowest) {
+        List<double[]> order = new ArrayList<>(strata);
+        order.sort(Comparator.comparingDouble(s -> lowest ? s[end] : -s[end]));
+        double left = 1;
+        double sum = 0;
+        for (double[] s : order) {
+            left -= s[0];
+            sum += s[0] * s[end];
+        }
+        for (double[] s : order) {
+            double more = Math.max(0, Math.min(s[1] - s[0], left));
+            sum += more * s[end];
+            left -= more;
+        }
+        return sum;
     }
 
     /** Lowest lower end and highest upper end over one cell's box; empty when every point is refuted. */
@@ -100,6 +148,14 @@ final class BoxProjection {
 
     private static Optional<Ends> instrument(Map<String, ObservedArms> levels, OutcomeRange range, AssumptionSet assumptions,
                                              Function<ObservedArms, ObservablesBox> boxOf) {
+        if (assumptions.instrument() == InstrumentAssumption.INDEPENDENT) {
+            List<ObservablesBox> boxes = new ArrayList<>();
+            levels.values().stream().filter(arms -> arms.total() > 0).forEach(arms -> boxes.add(boxOf.apply(arms)));
+            if (boxes.size() <= IndependentInstrumentBounds.MAX_LEVELS) {
+                IdentifiedInterval band = IndependentInstrumentBounds.overBoxes(boxes, range, assumptions);
+                return band.isBounded() ? Optional.of(new Ends(band.lower(), band.upper())) : Optional.empty();
+            }
+        }
         double l1 = Double.NEGATIVE_INFINITY;
         double u1 = Double.POSITIVE_INFINITY;
         double l0 = Double.NEGATIVE_INFINITY;

@@ -5,12 +5,15 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 import org.apache.commons.math3.distribution.NormalDistribution;
 
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 
@@ -24,14 +27,20 @@ import java.util.Optional;
  *   <li>One cell, or strata without instrument levels, with an estimated interval compatible
  *       with the assumptions: {@link ImbensManski} (with Stoye's pre-test) around the estimated
  *       interval, with {@link EndpointStandardErrors}. For strata the ends are the share-weighted
- *       sums of the stratum ends (as in {@link StratifiedBounds}), so their variances are the
- *       weighted sums of the stratum variances (independent cells, weights held at the observed
- *       shares).</li>
+ *       sums of the stratum ends (as in {@link StratifiedBounds}) with shares estimated from the
+ *       same sample, so by the delta method (van der Vaart 1998, Thm 3.1; multinomial shares,
+ *       stratum estimates independent given the counts) each end {@code L = sum w_s L_s} has
+ *       <pre>
+ *   Var(L^) = sum_s w_s^2 se(L_s)^2 + sum_s w_s (L_s - L)^2 / n
+ *       </pre>
+ *       the second term being the sampling of the shares: the variance of the per-unit stratum
+ *       end, which ignoring would leave the band too short whenever stratum intervals differ.</li>
  *   <li>Instrument levels: the intersection over levels is a max/min of noisy cells, which is
  *       not smooth and is biased towards narrow intervals. Instead every cell gets a Wald box for
- *       (p, mu1, mu0) at error {@code alpha / (3 K)} each (Bonferroni over K cells) — Wilson
- *       (1927, JASA 22(158)) score interval for p, normal intervals for the means — and
- *       {@link BoxProjection} gives the band. Conservative: it covers the whole identified set.</li>
+ *       (p, mu1, mu0) and every stratum share (when there are several strata) an interval, at
+ *       error {@code alpha / (3 K + S)} each (Bonferroni over K cells and S shares) — Wilson
+ *       (1927, JASA 22(158)) score intervals for p and the shares, normal intervals for the means
+ *       — and {@link BoxProjection} gives the band. Conservative: it covers the whole identified set.</li>
  *   <li>The estimate itself refutes the assumptions (for example {@code mu1^ < mu0^} under
  *       {@code mtr-positive,mts-positive}): there are no estimated ends to centre on, so the
  *       Wald-box projection is used as in case 2; the band is refuted when no point of the boxes
@@ -56,11 +65,17 @@ public final class FixedHorizonBand {
     /** The band of a whole study. */
     public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                     VarianceBasis variance) {
-        IdentifiedInterval estimate = StratifiedBounds.interval(cells, range, assumptions).overall();
-        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells)) {
+        return of(cells, range, assumptions, level, variance, StratifiedBounds.interval(cells, range, assumptions).overall());
+    }
+
+    /** The same, given the study's estimated interval (to spare computing it again). */
+    public static ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
+                                    VarianceBasis variance, IdentifiedInterval estimate) {
+        // A stratum seen in one arm only has no sampling model here for its missing mean: no band yet.
+        if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells) || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
-        if (estimate.isBounded() && cells.pooled().pending() == 0
+        if (estimate.isBounded() && !cells.hasPending()
                 && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
             Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
             if (band.isPresent()) {
@@ -94,6 +109,7 @@ public final class FixedHorizonBand {
         double upper = 0;
         double varLower = 0;
         double varUpper = 0;
+        List<double[]> strata = new ArrayList<>(); // {weight, lower end, upper end}
         for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
             ObservedArms arms = levels.values().iterator().next();
             if (arms.total() == 0) {
@@ -109,6 +125,11 @@ public final class FixedHorizonBand {
             upper += w * iv.upper();
             varLower += w * w * se.get().lower() * se.get().lower();
             varUpper += w * w * se.get().upper() * se.get().upper();
+            strata.add(new double[] {w, iv.lower(), iv.upper()});
+        }
+        for (double[] s : strata) { // the shares' own sampling variance
+            varLower += s[0] * (s[1] - lower) * (s[1] - lower) / total;
+            varUpper += s[0] * (s[2] - upper) * (s[2] - upper) / total;
         }
         return Optional.of(imbensManski(lower, upper, Math.sqrt(varLower), Math.sqrt(varUpper), total, range, level, variance));
     }
@@ -124,22 +145,30 @@ public final class FixedHorizonBand {
     private static ConfidenceBand projection(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                              VarianceBasis variance) {
         int k = BoxProjection.cellCount(cells);
-        double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (6.0 * k));
+        int shares = BoxProjection.shareCount(cells);
+        double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (2.0 * (3 * k + shares)));
         String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
-                + k + (k == 1 ? " cell" : " cells") + " (conservative), using " + variance.description();
-        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, assumptions, z, variance))
+                + k + (k == 1 ? " cell" : " cells") + (shares > 0 ? " and the " + shares + " stratum shares" : "")
+                + " (conservative), using " + variance.description();
+        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, assumptions, z, variance),
+                        (units, all) -> wilson((double) units / all, all, z))
                 .map(e -> ConfidenceBand.of(BandMethod.FIXED_HORIZON, level, e.lower(), e.upper(), basis))
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.FIXED_HORIZON, level, basis));
     }
 
     /** Wilson score interval for p and normal intervals for the means, each two-sided with quantile z. */
     static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double z, VarianceBasis variance) {
-        double n = arms.total();
-        double p = arms.treatedShare();
+        double[] p = wilson(arms.treatedShare(), arms.total(), z);
+        return ObservablesBox.of(arms, range, assumptions, (p[0] + p[1]) / 2, (p[1] - p[0]) / 2,
+                arm -> meanRadius(arm, range, z, variance));
+    }
+
+    /** Wilson's score interval {low, high} for a proportion {@code p} of {@code n}, two-sided with quantile z. */
+    private static double[] wilson(double p, double n, double z) {
         double z2n = z * z / n;
         double centre = (p + z2n / 2) / (1 + z2n);
         double half = z / (1 + z2n) * Math.sqrt(p * (1 - p) / n + z2n / (4 * n));
-        return ObservablesBox.of(arms, range, assumptions, centre, half, arm -> meanRadius(arm, range, z, variance));
+        return new double[] {centre - half, centre + half};
     }
 
     private static double meanRadius(ArmStatistics arm, OutcomeRange range, double z, VarianceBasis variance) {

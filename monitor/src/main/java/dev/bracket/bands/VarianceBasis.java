@@ -4,8 +4,8 @@ import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.OutcomeRange;
 
 /**
- * Where the fixed-horizon band takes each arm's outcome variance from. The anytime band needs
- * no variance: it uses only the declared outcome range.
+ * Where the bands take each arm's outcome spread from: the observed spread, or, when no standard
+ * deviation is known, the largest spread outcomes in the declared range allow.
  */
 public enum VarianceBasis {
     /**
@@ -37,6 +37,19 @@ public enum VarianceBasis {
             return arm.variance();
         }
         return rangeBound(range);
+    }
+
+    /**
+     * The arm's sum of squared deviations from its mean, M2, for the anytime band. Without a known
+     * spread: the Bhatia–Davis bound {@code M2 <= n (mean - a)(b - mean)} (Bhatia &amp; Davis 2000,
+     * "A better bound on the variance", Amer. Math. Monthly 107(4)), applied to the sample's own
+     * distribution, which never falls below the true M2 of outcomes in [a, b].
+     */
+    double m2(ArmStatistics arm, OutcomeRange range) {
+        if (this == SAMPLE || arm.isEmpty()) {
+            return arm.m2();
+        }
+        return arm.count() * Math.max(0, arm.mean() - range.min()) * Math.max(0, range.max() - arm.mean());
     }
 
     /** Popoviciu's bound {@code (b - a)^2 / 4}. */

@@ -2,6 +2,7 @@ package dev.bracket.bounds;
 
 import java.util.Collection;
 import java.util.Collections;
+import java.util.ArrayList;
 import java.util.EnumSet;
 import java.util.List;
 import java.util.Set;
@@ -10,14 +11,22 @@ import java.util.stream.Collectors;
 /**
  * A set of assumptions held jointly: their constraints are intersected. Written as
  * comma-separated identifiers, e.g. {@code mtr-positive,mts-positive}; the canonical order is
- * the declaration order of {@link Assumption}.
+ * the declaration order of {@link Assumption}. The set also says what is assumed about an
+ * instrument when the data carry instrument levels ({@link InstrumentAssumption}, by default
+ * mean independence); it is chosen per study, not written in the identifiers.
  */
 public final class AssumptionSet {
 
     private final Set<Assumption> members;
+    private final InstrumentAssumption instrument;
+
+    private AssumptionSet(Set<Assumption> members, InstrumentAssumption instrument) {
+        this.members = Collections.unmodifiableSet(members);
+        this.instrument = instrument;
+    }
 
     private AssumptionSet(Set<Assumption> members) {
-        this.members = Collections.unmodifiableSet(members);
+        this(members, InstrumentAssumption.MEAN_INDEPENDENT);
     }
 
     public static AssumptionSet of(Assumption first, Assumption... rest) {
@@ -51,12 +60,58 @@ public final class AssumptionSet {
         return EnumSet.allOf(Assumption.class).stream().map(AssumptionSet::of).collect(Collectors.toList());
     }
 
+    /**
+     * A list of sets, each written as {@link #parse} takes it; an empty list means
+     * {@link #eachSingle}. A bad entry throws {@link BadEntry}, which says which one.
+     */
+    public static List<AssumptionSet> parseAll(List<String> texts) {
+        if (texts.isEmpty()) {
+            return eachSingle();
+        }
+        List<AssumptionSet> sets = new ArrayList<>(texts.size());
+        for (int i = 0; i < texts.size(); i++) {
+            try {
+                sets.add(parse(texts.get(i)));
+            } catch (IllegalArgumentException e) {
+                throw new BadEntry(i, e.getMessage());
+            }
+        }
+        return sets;
+    }
+
+    /** A list entry that is not an assumption set; {@code index} counts from 0. */
+    public static final class BadEntry extends IllegalArgumentException {
+        private final int index;
+
+        BadEntry(int index, String message) {
+            super(message);
+            this.index = index;
+        }
+
+        public int index() {
+            return index;
+        }
+    }
+
     public Set<Assumption> members() {
         return members;
     }
 
     public boolean contains(Assumption a) {
         return members.contains(a);
+    }
+
+    /** What is assumed about an instrument, when the data have instrument levels. */
+    public InstrumentAssumption instrument() {
+        return instrument;
+    }
+
+    /** The same assumptions with the given instrument assumption. */
+    public AssumptionSet withInstrument(InstrumentAssumption assumption) {
+        if (assumption == null) {
+            throw new IllegalArgumentException("instrument assumption is required");
+        }
+        return new AssumptionSet(EnumSet.copyOf(members), assumption);
     }
 
     /** The identifiers in canonical order. */
@@ -80,15 +135,15 @@ public final class AssumptionSet {
 
     @Override
     public boolean equals(Object o) {
-        return o instanceof AssumptionSet other && members.equals(other.members);
+        return o instanceof AssumptionSet other && members.equals(other.members) && instrument == other.instrument;
     }
 
     @Override
     public int hashCode() {
-        return members.hashCode();
+        return 31 * members.hashCode() + instrument.hashCode();
     }
 
-    /** Canonical comma-separated identifiers. */
+    /** Canonical comma-separated identifiers (the instrument assumption is not part of them). */
     @Override
     public String toString() {
         return String.join(",", ids());

@@ -1,11 +1,12 @@
 package dev.bracket.bounds;
 
 /**
- * The declared range [min, max] of the outcome and which end is better. The range is a
+ * The declared range [min, max] of the outcome, which end is better, and whether outcomes can
+ * lie anywhere in the range or only at its two ends ({@link OutcomeKind}). The range is a
  * modelling declaration made per study (it is never estimated from the data): every bound in
  * this package is only valid if no outcome can fall outside it.
  */
-public record OutcomeRange(double min, double max, Direction better) {
+public record OutcomeRange(double min, double max, Direction better, OutcomeKind kind) {
 
     public OutcomeRange {
         if (!Double.isFinite(min) || !Double.isFinite(max)) {
@@ -14,13 +15,23 @@ public record OutcomeRange(double min, double max, Direction better) {
         if (!(min < max)) {
             throw new IllegalArgumentException("outcome range needs min < max (min=" + min + ", max=" + max + ")");
         }
-        if (better == null) {
-            throw new IllegalArgumentException("outcome direction is required");
+        if (better == null || kind == null) {
+            throw new IllegalArgumentException("outcome direction and kind are required");
         }
+    }
+
+    /** A range of {@link OutcomeKind#BOUNDED} outcomes. */
+    public OutcomeRange(double min, double max, Direction better) {
+        this(min, max, better, OutcomeKind.BOUNDED);
     }
 
     public OutcomeRange(double min, double max) {
         this(min, max, Direction.HIGHER);
+    }
+
+    /** The same range with outcomes of the given kind. */
+    public OutcomeRange withKind(OutcomeKind newKind) {
+        return new OutcomeRange(min, max, better, newKind);
     }
 
     /** {@code max - min}: the width of every worst-case interval. */
@@ -31,6 +42,16 @@ public record OutcomeRange(double min, double max, Direction better) {
     /** True when {@code y} lies in [min, max]. */
     public boolean contains(double y) {
         return y >= min && y <= max;
+    }
+
+    /** True when {@code y} is a possible outcome: in [min, max], and for binary outcomes equal to min or max. */
+    public boolean admits(double y) {
+        return kind == OutcomeKind.BINARY ? y == min || y == max : contains(y);
+    }
+
+    /** {@code (y - min) / (max - min)}: the outcome on the unit scale, 0 at min and 1 at max. */
+    public double toUnit(double y) {
+        return (y - min) / width();
     }
 
     /**

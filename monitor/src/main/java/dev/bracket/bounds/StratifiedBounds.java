@@ -2,12 +2,14 @@ package dev.bracket.bounds;
 
 import java.util.Collections;
 import java.util.LinkedHashMap;
+import java.util.List;
 import java.util.Map;
 
 /**
  * Bounds for a study whose units fall into strata (sites, regions, risk groups). Within a
- * stratum the cell's bounds come from {@link BoundCalculator}, or from {@link InstrumentBounds}
- * when the stratum has instrument levels. The population ATE is the share-weighted sum of the
+ * stratum the cell's bounds come from {@link BoundCalculator}, or, when the stratum has instrument
+ * levels, from the bounds of the set's {@link InstrumentAssumption} ({@link InstrumentBounds} or
+ * {@link IndependentInstrumentBounds}). The population ATE is the share-weighted sum of the
  * stratum ATEs, so its identified set is the share-weighted sum of the stratum intervals:
  *
  * <pre>
@@ -16,8 +18,21 @@ import java.util.Map;
  *
  * (Minkowski sum of intervals scaled by the known stratum shares; each stratum's
  * unobserved means are free of the others', so the sum is sharp when every stratum's interval
- * is.) If any stratum is refuted the study is refuted; if any lacks data the overall interval is
- * insufficient data, since a missing stratum's contribution cannot be bounded without it.
+ * is.) If any stratum is refuted the study is refuted.
+ *
+ * <p>A stratum whose units all fall in one arm still has an interval: the missing arm's mean is
+ * only known to lie in the outcome range {@code [a, b]}, which is Manski's (1990) worst-case
+ * bound with treated share {@code p = 1} or {@code p = 0}:
+ *
+ * <pre>
+ *   only treated units:   [ mu1 - b ,  mu1 - a ]
+ *   only untreated units: [ a - mu0 ,  b - mu0 ]
+ * </pre>
+ *
+ * It is used whatever the assumptions (valid under all of them, sharp only for
+ * {@code worst-case}): with one arm missing, the assumptions that compare the arms have nothing
+ * to compare. {@link #oneArmed} names such strata so callers can warn about them. While the
+ * whole study lacks an arm its interval is insufficient data.
  */
 public final class StratifiedBounds {
 
@@ -43,9 +58,10 @@ public final class StratifiedBounds {
             if (study.pooled(e.getKey()).total() == 0) {
                 continue; // a stratum with no units has weight zero
             }
-            IdentifiedInterval interval = levels.size() == 1
-                    ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
-                    : InstrumentBounds.interval(levels, range, assumptions);
+            ObservedArms pooled = study.pooled(e.getKey());
+            IdentifiedInterval interval = pooled.hasEmptyArm() && !study.pooled().hasEmptyArm() ? oneArmWorstCase(pooled, range)
+                    : levels.size() == 1 ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
+                    : assumptions.instrument().interval(levels, range, assumptions);
             perStratum.put(e.getKey(), interval);
             switch (interval.status()) {
                 case REFUTED -> refuted = true;
@@ -61,5 +77,24 @@ public final class StratifiedBounds {
                 : insufficient ? IdentifiedInterval.insufficientData()
                 : IdentifiedInterval.of(lower, upper);
         return new Result(overall, perStratum);
+    }
+
+    /** The strata that have units in only one arm, whose intervals are the worst case above. */
+    public static List<String> oneArmed(StudyCells study) {
+        if (study.pooled().hasEmptyArm()) {
+            return List.of();
+        }
+        return study.byStratum().keySet().stream()
+                .filter(s -> study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()).toList();
+    }
+
+    /** Manski (1990) worst case with {@code p} equal to 1 (no untreated units) or 0 (no treated units). */
+    private static IdentifiedInterval oneArmWorstCase(ObservedArms arms, OutcomeRange range) {
+        if (arms.control().isEmpty()) {
+            double mu1 = arms.treated().mean();
+            return IdentifiedInterval.of(mu1 - range.max(), mu1 - range.min());
+        }
+        double mu0 = arms.control().mean();
+        return IdentifiedInterval.of(range.min() - mu0, range.max() - mu0);
     }
 }

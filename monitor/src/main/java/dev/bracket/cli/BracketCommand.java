@@ -7,6 +7,7 @@ import picocli.CommandLine;
 import picocli.CommandLine.Command;
 
 import java.io.PrintWriter;
+import java.util.concurrent.Callable;
 
 /** The {@code bracket} launcher: subcommands for calculation, monitoring, replay and the demo. */
 @Command(name = "bracket",
@@ -17,14 +18,18 @@ import java.io.PrintWriter;
                 Cautions.TEXT},
         subcommands = {CalcCommand.class, MonitorCommand.class, ReplayCommand.class, DemoCommand.class,
                 DemoProducerCommand.class, CommandLine.HelpCommand.class})
-public final class BracketCommand implements Runnable {
+public final class BracketCommand implements Callable<Integer> {
 
     @CommandLine.Spec
     CommandLine.Model.CommandSpec spec;
 
+    /** Without a command there is nothing to do: say so, show the commands, exit as for bad arguments. */
     @Override
-    public void run() {
-        spec.commandLine().usage(spec.commandLine().getOut());
+    public Integer call() {
+        PrintWriter err = spec.commandLine().getErr();
+        err.println("bracket: a command is required, e.g. 'bracket demo'; 'bracket COMMAND --help' tells more");
+        spec.commandLine().usage(err);
+        return CommandLine.ExitCode.USAGE;
     }
 
     /**
@@ -74,7 +79,7 @@ public final class BracketCommand implements Runnable {
         return CommandLine.ExitCode.SOFTWARE;
     }
 
-    /** Version from the jar manifest when packaged. */
+    /** Version from the jar manifest ({@code Implementation-Version}, the pom's version) when packaged. */
     static final class Version implements CommandLine.IVersionProvider {
         @Override
         public String[] getVersion() {

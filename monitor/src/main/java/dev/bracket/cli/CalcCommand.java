@@ -1,13 +1,16 @@
 package dev.bracket.cli;
 
+import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.Cautions;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.InstrumentAssumption;
 import dev.bracket.bounds.ObservedArms;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 import dev.bracket.report.ReportJson;
@@ -24,9 +27,8 @@ import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.List;
-import java.util.Locale;
+import java.util.Set;
 import java.util.concurrent.Callable;
 
 /** {@code bracket calc}: intervals from summary statistics, without a stream. */
@@ -36,7 +38,7 @@ import java.util.concurrent.Callable;
                 "Bounds on the average treatment effect from per-arm summary statistics.",
                 "Give the two arms with --treated-* and --control-*, or many cells (strata, instrument levels) with --cells.",
                 "Without --assume every single assumption is reported.",
-                "Each interval gets confidence bands (--band): a fixed-horizon band, valid",
+                "Each interval gets confidence bands (--bands): a fixed band, valid",
                 "for one look planned in advance, and an anytime band, valid however often",
                 "the data are looked at (the one to act on)."},
         footer = {"",
@@ -48,6 +50,12 @@ import java.util.concurrent.Callable;
                 "units that entered an arm but whose outcome has not arrived. Each is bounded by",
                 "[A, B] unless missing-at-random is assumed (pending outcomes like the observed",
                 "ones in the same arm). --treated-n and --control-n count units with an outcome.",
+                "",
+                "Instrument levels (the instrument column of --cells): --instrument mean-independent",
+                "intersects each level's bounds (any outcome); --instrument independent gives the",
+                "sharp bounds when the instrument is independent of how units would take treatment",
+                "and of their potential outcomes (a randomised assignment or lottery), by linear",
+                "programming; it needs --outcome-kind binary. Refuted means the data contradict it.",
                 "",
                 "Standard deviations (--treated-sd, --control-sd or the sd column) stand in",
                 "for the spread of each arm's outcomes in the fixed-horizon band's standard",
@@ -75,6 +83,14 @@ public final class CalcCommand implements Callable<Integer> {
             description = "Which outcomes are better; matters for optimizing-selection and sorting-on-gains (default: ${DEFAULT-VALUE}).")
     String better;
 
+    @Option(names = "--outcome-kind", paramLabel = "bounded|binary", defaultValue = "bounded",
+            description = "bounded: outcomes anywhere in [A, B]; binary: every outcome equals A or B (default: ${DEFAULT-VALUE}).")
+    String outcomeKind;
+
+    @Option(names = "--instrument", paramLabel = "mean-independent|independent", defaultValue = "mean-independent",
+            description = "What is assumed about the instrument levels of --cells (default: ${DEFAULT-VALUE}); independent needs --outcome-kind binary.")
+    String instrument;
+
     @Option(names = "--treated-n", paramLabel = "N1", description = "Treated units with an observed outcome.")
     Long treatedN;
 
@@ -85,7 +101,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
     Double treatedMean;
 
-    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed-horizon band).")
+    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed band).")
     Double treatedSd;
 
     @Option(names = "--control-n", paramLabel = "N0", description = "Untreated units with an observed outcome.")
@@ -98,7 +114,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
     Double controlMean;
 
-    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional; used by the fixed-horizon band).")
+    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional; used by the fixed band).")
     Double controlSd;
 
     @Option(names = "--cells", paramLabel = "FILE",
@@ -112,25 +128,27 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--json", description = "Print the versioned JSON document instead of the table.")
     boolean json;
 
-    @Option(names = "--level", paramLabel = "L", defaultValue = "0.95",
+    @Option(names = "--band-level", paramLabel = "L", defaultValue = "0.95",
             description = "Confidence level of the bands, strictly between 0 and 1 (default: ${DEFAULT-VALUE}).")
-    double level;
+    double bandLevel;
 
-    @Option(names = "--band", paramLabel = "fixed|anytime|both", defaultValue = "both",
+    @Option(names = "--bands", paramLabel = "both|fixed|anytime|none", defaultValue = "both",
             description = "Which confidence bands to show (default: ${DEFAULT-VALUE}).")
-    String band;
+    String bands;
 
     @Override
     public Integer call() throws IOException {
         OutcomeRange range = range();
-        List<AssumptionSet> sets = sets();
-        BandSettings bands = bands();
+        InstrumentAssumption instrumentAssumption = instrument(range);
+        List<AssumptionSet> sets = sets().stream().map(set -> set.withInstrument(instrumentAssumption)).toList();
+        BandConfig bands = bandConfig();
         CalcInput.Cells input = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
         StudyReport report = StudyReport.of(input.cells(), range, sets,
                 bands.withVariance(input.everySdGiven() ? VarianceBasis.SAMPLE : VarianceBasis.RANGE_BOUND));
         if (json) {
-            spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter()
-                    .writeValueAsString(ReportJson.toJson(report)));
+            ObjectNode doc = ReportJson.toJson(report);
+            forgetUngivenSds((ObjectNode) doc.get("arms"), input.everySdGiven());
+            spec.commandLine().getOut().println(ReportJson.mapper().writerWithDefaultPrettyPrinter().writeValueAsString(doc));
         } else {
             spec.commandLine().getOut().print(ReportTable.render(report));
         }
@@ -138,44 +156,72 @@ public final class CalcCommand implements Callable<Integer> {
         return 0;
     }
 
+    /**
+     * An SD that was not given is unknown, not 0 (the arms hold 0 in its place): null in JSON.
+     * From a file, an arm's pooled SD needs every cell's SD, so without them both are null.
+     */
+    private void forgetUngivenSds(ObjectNode arms, boolean everySdGiven) {
+        boolean fromFile = cellsFile != null;
+        if (fromFile ? !everySdGiven : treatedSd == null) {
+            ((ObjectNode) arms.get("treated")).putNull("sd");
+        }
+        if (fromFile ? !everySdGiven : controlSd == null) {
+            ((ObjectNode) arms.get("control")).putNull("sd");
+        }
+    }
+
     private OutcomeRange range() {
         if (!Double.isFinite(min) || !Double.isFinite(max) || !(min < max)) {
             throw new InputError("--min and --max must be finite numbers with --min < --max, were "
                     + CalcInput.fmt(min) + " and " + CalcInput.fmt(max));
         }
+        Direction direction;
         try {
-            return new OutcomeRange(min, max, Direction.parse(better));
+            direction = Direction.parse(better);
         } catch (IllegalArgumentException e) {
             throw new InputError("--better " + e.getMessage());
         }
+        try {
+            return new OutcomeRange(min, max, direction, OutcomeKind.parse(outcomeKind));
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--outcome-kind " + e.getMessage());
+        }
+    }
+
+    private InstrumentAssumption instrument(OutcomeRange range) {
+        InstrumentAssumption assumption;
+        try {
+            assumption = InstrumentAssumption.parse(instrument);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--instrument " + e.getMessage());
+        }
+        if (!assumption.supports(range.kind())) {
+            throw new InputError("--instrument independent needs --outcome-kind binary (every outcome equal to --min or --max); "
+                    + "for outcomes anywhere in the range use --instrument mean-independent");
+        }
+        return assumption;
     }
 
     private List<AssumptionSet> sets() {
-        if (assume.isEmpty()) {
-            return AssumptionSet.eachSingle();
+        try {
+            return AssumptionSet.parseAll(assume);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--assume " + e.getMessage());
         }
-        List<AssumptionSet> sets = new ArrayList<>();
-        for (String text : assume) {
-            try {
-                sets.add(AssumptionSet.parse(text));
-            } catch (IllegalArgumentException e) {
-                throw new InputError("--assume " + e.getMessage());
-            }
-        }
-        return sets;
     }
 
-    private BandSettings bands() {
-        if (!(level > 0 && level < 1)) {
-            throw new InputError("--level must lie strictly between 0 and 1 (for example 0.95), was " + CalcInput.fmt(level));
+    private BandConfig bandConfig() {
+        if (!(bandLevel > 0 && bandLevel < 1)) {
+            throw new InputError("--band-level must lie strictly between 0 and 1 (for example 0.95), was "
+                    + CalcInput.fmt(bandLevel));
         }
-        EnumSet<BandMethod> methods = switch (band.trim().toLowerCase(Locale.ROOT)) {
-            case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
-            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
-            default -> throw new InputError("--band must be fixed, anytime or both, was '" + band + "'");
-        };
-        return new BandSettings(level, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        Set<BandMethod> methods;
+        try {
+            methods = BandMethod.parseChoice(bands);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--bands " + e.getMessage());
+        }
+        return new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
     }
 
     private CalcInput.Cells cellsFromFlags(OutcomeRange range) {
@@ -183,10 +229,12 @@ public final class CalcCommand implements Callable<Integer> {
         requireFlag(treatedMean, "--treated-mean");
         requireFlag(controlN, "--control-n");
         requireFlag(controlMean, "--control-mean");
+        Double sd1 = CalcInput.knownSd(treatedSd, treatedN, treatedMean, range);
+        Double sd0 = CalcInput.knownSd(controlSd, controlN, controlMean, range);
         ObservedArms arms = new ObservedArms(
-                CalcInput.arm(treatedN, treatedPending, treatedMean, treatedSd == null ? 0.0 : treatedSd, range, "--treated-"),
-                CalcInput.arm(controlN, controlPending, controlMean, controlSd == null ? 0.0 : controlSd, range, "--control-"));
-        boolean everySdGiven = (treatedSd != null || treatedN < 2) && (controlSd != null || controlN < 2);
+                CalcInput.arm(treatedN, treatedPending, treatedMean, sd1 == null ? 0.0 : sd1, range, "--treated-"),
+                CalcInput.arm(controlN, controlPending, controlMean, sd0 == null ? 0.0 : sd0, range, "--control-"));
+        boolean everySdGiven = (sd1 != null || treatedN < 2) && (sd0 != null || controlN < 2);
         return new CalcInput.Cells(StudyCells.single(arms), everySdGiven);
     }
 

@@ -1,6 +1,7 @@
 package dev.bracket.cli;
 
 import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 
@@ -54,6 +55,19 @@ final class CalcInput {
                     + " (at most " + fmt(limit) + "); check the summary and the range");
         }
         return ArmStatistics.ofSummary(n, mean, sd).withExposures(exposed);
+    }
+
+    /**
+     * The arm's standard deviation when known: the one given, or for binary outcomes the one the
+     * mean implies, {@code (b - a) sqrt(u (1 - u) n / (n - 1))} with {@code u = (mean - a) / (b - a)}
+     * the share at b; null when neither (then the fixed-horizon band bounds it by the range).
+     */
+    static Double knownSd(Double given, long n, double mean, OutcomeRange range) {
+        if (given != null || range.kind() != OutcomeKind.BINARY || n < 2) {
+            return given;
+        }
+        double u = Math.min(1, Math.max(0, range.toUnit(mean)));
+        return range.width() * Math.sqrt(u * (1 - u) * n / (n - 1));
     }
 
     static String fmt(double v) {

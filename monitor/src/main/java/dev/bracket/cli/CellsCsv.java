@@ -54,9 +54,9 @@ final class CellsCsv {
                 double mean = number(row.get("mean"), "mean", where);
                 String sdText = row.getOrDefault("sd", "");
                 boolean sdGiven = sdText != null && !sdText.isEmpty();
-                everySdGiven &= sdGiven || n < 2;
-                double sd = sdGiven ? number(sdText, "sd", where) : 0.0;
-                ArmStatistics stats = CalcInput.arm(n, pending, mean, sd, range, where + ": ");
+                Double sd = CalcInput.knownSd(sdGiven ? number(sdText, "sd", where) : null, n, mean, range);
+                everySdGiven &= sd != null || n < 2;
+                ArmStatistics stats = CalcInput.arm(n, pending, mean, sd == null ? 0.0 : sd, range, where + ": ");
                 ObservedArms arms = treated
                         ? new ObservedArms(stats, ArmStatistics.empty())
                         : new ObservedArms(ArmStatistics.empty(), stats);

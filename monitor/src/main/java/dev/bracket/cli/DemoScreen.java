@@ -81,7 +81,7 @@ final class DemoScreen {
                 .map(b -> String.format(Locale.ROOT, "%.0f%% anytime band", 100 * b.level())).orElse("");
         // the band column is left out while the reports carry no bands
         String format = "%-" + width + "s  %9s  %9s  %8s  %-27s  " + (bandHeader.isEmpty() ? "%s" : "%-19s  ") + "%s%n";
-        out.append(String.format(Locale.ROOT, format, "assumptions", "lower", "upper", "width", "sign of the interval",
+        out.append(String.format(Locale.ROOT, format, "assumptions", "lower", "upper", "width", "sign of effect",
                 bandHeader, "true ATE inside?"));
         for (BoundRow row : rows) {
             IdentifiedInterval iv = row.interval();

@@ -1,29 +1,31 @@
 package dev.bracket.config;
 
-import dev.bracket.alerts.AlertOptions;
+import dev.bracket.alerts.AlertsConfig;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.InstrumentAssumption;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 
 import java.io.IOException;
+import java.net.InetAddress;
+import java.net.UnknownHostException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.time.Duration;
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
 import java.util.Set;
-import java.util.UUID;
 import java.util.regex.Pattern;
 
 /**
@@ -31,7 +33,8 @@ import java.util.regex.Pattern;
  * one is reported with file, line and column; see {@link #parse}. Key names:
  *
  * <pre>
- * studies:            list of {id, outcome: {min, max, better}, assume: [[ids...], "id,id", ...]}
+ * studies:            list of {id, outcome: {min, max, better, kind: bounded|binary},
+ *                     instrument: mean-independent|independent, assume: [[ids...], "id,id", ...]}
  * inputs:             list of {topic, fields: {study, unit, treated, outcome, time, stratum, instrument, id}}
  * topics:             {rejected, partials, bounds, partitions, replication}
  * windows:            list of {name, kind: tumbling|sliding, size, step}; "cumulative" is always kept
@@ -42,11 +45,12 @@ import java.util.regex.Pattern;
  * publish-interval:   least time between two published reports of one study
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
- * threads:            aggregation group members this instance runs (each its own consumer and transactions)
- * group, instance:    consumer group id; a stable name for this instance (transactional id)
+ * max-clock-skew:     event times further ahead of the record timestamp or the clock are rejected
+ * group-members:      aggregation group members this instance runs (each its own consumer and transactions)
+ * group, instance:    consumer group id; a stable name for this instance (transactional id; default <group>-<host name>)
  * kafka:              client properties passed to every Kafka client verbatim
  * broker:             {data-dir, port} of the embedded broker used when kafka.bootstrap.servers is absent
- * alerts:             {topic, tick, recent, restore-timeout}; each study's own alerts: see {@link AlertSettings}
+ * alerts:             {topic, check-interval, recent-transitions, restore-timeout}; each study's own alerts: see {@link AlertConfigReader}
  * </pre>
  */
 public record BracketConfig(
@@ -56,18 +60,19 @@ public record BracketConfig(
         TopicNames topics,
         List<WindowSpec> windows,
         Duration grace,
-        BandSettings bands,
+        BandConfig bands,
         Duration commitInterval,
         Duration publishInterval,
         Duration progressInterval,
         int maxEventBytes,
-        int threads,
+        Duration maxClockSkew,
+        int groupMembers,
         String group,
         String instance,
         Map<String, String> kafka,
         Path brokerDataDir,
         int brokerPort,
-        AlertOptions alerts) {
+        AlertsConfig alerts) {
 
     public static final String BOOTSTRAP_SERVERS = "bootstrap.servers";
 
@@ -75,7 +80,7 @@ public record BracketConfig(
     private static final int MAX_PARTITIONS = 10_000;
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "threads", "group", "instance", "kafka", "broker",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew", "group-members", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -123,18 +128,18 @@ public record BracketConfig(
         if (!(bandLevel > 0 && bandLevel < 1)) {
             throw root.get("band-level").fail("must lie strictly between 0 and 1, e.g. 0.95");
         }
-        Set<BandMethod> methods = switch (root.get("bands").text("both")) {
-            case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
-            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
-            case "none" -> EnumSet.noneOf(BandMethod.class);
-            default -> throw root.get("bands").fail("must be both, fixed, anytime or none");
-        };
-        BandSettings bands = new BandSettings(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        Set<BandMethod> methods;
+        try {
+            methods = BandMethod.parseChoice(root.get("bands").text("both"));
+        } catch (IllegalArgumentException e) {
+            throw root.get("bands").fail(e.getMessage());
+        }
+        BandConfig bands = new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = root.get("max-event-bytes").positiveLong(65_536);
         if (maxBytes > 16 * 1024 * 1024) {
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
         }
+        Duration skew = positive(root.get("max-clock-skew"), Duration.ofHours(1));
         Duration commit = positive(root.get("commit-interval"), Duration.ofSeconds(1));
         Duration publish = positive(root.get("publish-interval"), Duration.ofMillis(500));
         Duration progress = positive(root.get("progress-interval"), Duration.ofSeconds(10));
@@ -142,22 +147,23 @@ public record BracketConfig(
         if (grace.isNegative()) {
             throw root.get("grace").fail("must not be negative");
         }
-        long threads = root.get("threads").positiveLong(1);
-        if (threads > 64) {
-            throw root.get("threads").fail("must be at most 64");
+        long groupMembers = root.get("group-members").positiveLong(1);
+        if (groupMembers > 64) {
+            throw root.get("group-members").fail("must be at most 64");
         }
         ConfigNode broker = root.get("broker").onlyKeys(Set.of("data-dir", "port"));
         long port = broker.get("port").isMissing() ? 0 : broker.get("port").positiveLong(0);
         if (port > 65_535) {
             throw broker.get("port").fail("must be a TCP port number (1-65535)");
         }
+        String group = name(root.get("group"), "bracket");
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes, (int) threads,
-                name(root.get("group"), "bracket"),
-                name(root.get("instance"), "instance-" + UUID.randomUUID()),
+                bands, commit, publish, progress, (int) maxBytes, skew, (int) groupMembers,
+                group,
+                name(root.get("instance"), defaultInstance(group)),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
-                (int) port, AlertSettings.options(root.get("alerts")));
+                (int) port, AlertConfigReader.alertsConfig(root.get("alerts")));
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -170,7 +176,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, maxClockSkew, groupMembers, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */
@@ -201,13 +207,13 @@ public record BracketConfig(
         List<StudyConfig> out = new ArrayList<>();
         Set<String> seen = new HashSet<>();
         for (ConfigNode s : items) {
-            s.onlyKeys(Set.of("id", "outcome", "assume", "alerts", "follow-up"));
+            s.onlyKeys(Set.of("id", "outcome", "instrument", "assume", "alerts", "follow-up"));
             ConfigNode idNode = s.require("id");
             String id = idNode.text();
             if (!seen.add(id)) {
                 throw idNode.fail("repeats the study id '" + id + "'; ids must be unique");
             }
-            ConfigNode outcome = s.require("outcome").onlyKeys(Set.of("min", "max", "better"));
+            ConfigNode outcome = s.require("outcome").onlyKeys(Set.of("min", "max", "better", "kind"));
             double min = outcome.require("min").number();
             double max = outcome.require("max").number();
             if (!(min < max)) {
@@ -219,36 +225,55 @@ public record BracketConfig(
             } catch (IllegalArgumentException e) {
                 throw outcome.get("better").fail(e.getMessage());
             }
+            OutcomeKind kind;
+            try {
+                kind = OutcomeKind.parse(outcome.get("kind").text("bounded"));
+            } catch (IllegalArgumentException e) {
+                throw outcome.get("kind").fail(e.getMessage());
+            }
+            InstrumentAssumption instrument = instrument(s.get("instrument"), kind);
+            List<AssumptionSet> sets = assumptions(s.get("assume")).stream().map(set -> set.withInstrument(instrument)).toList();
             ConfigNode followUp = s.get("follow-up");
             Duration horizon = followUp.isMissing() ? null : followUp.duration(null);
             if (horizon != null && (horizon.isZero() || horizon.isNegative())) {
                 throw followUp.fail("must be a positive duration such as 30d or 12h");
             }
-            out.add(new StudyConfig(id, new OutcomeRange(min, max, better), assumptions(s.get("assume")),
-                    AlertSettings.study(s.get("alerts")), horizon));
+            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertConfigReader.study(s.get("alerts")),
+                    horizon));
         }
         return out;
+    }
+
+    private static InstrumentAssumption instrument(ConfigNode node, OutcomeKind kind) {
+        InstrumentAssumption instrument;
+        try {
+            instrument = InstrumentAssumption.parse(node.text(InstrumentAssumption.MEAN_INDEPENDENT.id()));
+        } catch (IllegalArgumentException e) {
+            throw node.fail(e.getMessage());
+        }
+        if (!instrument.supports(kind)) {
+            throw node.fail("independent needs a binary outcome: add kind: binary to the study's outcome (every outcome equal to min or max), "
+                    + "or use mean-independent");
+        }
+        return instrument;
     }
 
     private static List<AssumptionSet> assumptions(ConfigNode node) {
         if (node.isMissing()) {
             return AssumptionSet.eachSingle();
         }
-        List<AssumptionSet> sets = new ArrayList<>();
-        for (ConfigNode item : node.elements()) {
-            String text = item.isArray()
-                    ? String.join(",", item.elements().stream().map(ConfigNode::text).toList())
-                    : item.text();
-            try {
-                sets.add(AssumptionSet.parse(text));
-            } catch (IllegalArgumentException e) {
-                throw item.fail(e.getMessage());
-            }
-        }
-        if (sets.isEmpty()) {
+        List<ConfigNode> items = node.elements();
+        if (items.isEmpty()) {
             throw node.fail("must list at least one assumption set, e.g. [[worst-case]]");
         }
-        return sets;
+        List<String> texts = items.stream()
+                .map(item -> item.isArray() ? String.join(",", item.elements().stream().map(ConfigNode::text).toList()) : item.text())
+                .toList();
+        try {
+            return AssumptionSet.parseAll(texts);
+        } catch (AssumptionSet.BadEntry e) {
+            throw items.get(e.index()).fail(e.getMessage());
+        }
     }
 
     private static List<InputTopic> inputs(ConfigNode node) {
@@ -342,6 +367,22 @@ public record BracketConfig(
             throw node.fail("must be a Kafka topic name (letters, digits, '.', '_', '-'), was '" + s + "'");
         }
         return s;
+    }
+
+    /**
+     * {@code <group>-<host name>}: stable across restarts on one machine, so a restarted monitor
+     * takes over (and aborts) its predecessor's open transaction at once instead of waiting for
+     * the transaction timeout. Two monitors of one group on one machine need their own {@code instance}.
+     */
+    static String defaultInstance(String group) {
+        String host;
+        try {
+            host = InetAddress.getLocalHost().getHostName();
+        } catch (UnknownHostException e) {
+            host = System.getenv().getOrDefault("HOSTNAME", "localhost");
+        }
+        String clean = host.replaceAll("[^A-Za-z0-9._-]", "-");
+        return group + "-" + (clean.isEmpty() ? "localhost" : clean);
     }
 
     private static String name(ConfigNode node, String fallback) {

@@ -2,6 +2,7 @@ package dev.bracket.report;
 
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.AssumptionSet;
+import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
 
 import java.util.List;
@@ -27,6 +28,16 @@ public record BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, M
     }
 
     /** "positive", "negative" or "undetermined": whether the identified set lies on one side of zero. */
+    /**
+     * The bands a reader is shown (table, JSON, page). For a refuted row only the bands that are
+     * refuted too (beyond sampling error): there is no interval to put a band around, and a
+     * bounded band's ends and sign would read as a finding. The alert evaluator judges all of {@link #bands()}.
+     */
+    public List<ConfidenceBand> shownBands() {
+        return interval.status() != BoundStatus.REFUTED ? bands
+                : bands.stream().filter(b -> b.status() == BoundStatus.REFUTED).toList();
+    }
+
     public String sign() {
         return signWord(interval.identifiedSign());
     }

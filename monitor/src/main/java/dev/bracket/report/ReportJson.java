@@ -36,7 +36,8 @@ public final class ReportJson {
         root.set("outcome", outcome(report.range()));
         root.set("arms", arms(report));
         ArrayNode bounds = root.putArray("bounds");
-        report.rows().forEach(row -> bounds.add(row(row)));
+        boolean instrumentLevels = report.cells().hasInstrument();
+        report.rows().forEach(row -> bounds.add(row(row, instrumentLevels)));
         return root;
     }
 
@@ -45,6 +46,7 @@ public final class ReportJson {
         o.put("min", range.min());
         o.put("max", range.max());
         o.put("better", range.better().id());
+        o.put("kind", range.kind().id());
         return o;
     }
 
@@ -74,13 +76,21 @@ public final class ReportJson {
         return o;
     }
 
-    /** One row: assumptions, meaning, status, interval, width, sign, per-stratum intervals and any confidence bands. */
-    public static ObjectNode row(BoundRow row) {
+    /**
+     * One row: assumptions, meaning, what it assumes about pending outcomes, the instrument assumption (null when the data have no
+     * instrument levels), status, interval, width, sign, per-stratum intervals and any confidence bands.
+     */
+    public static ObjectNode row(BoundRow row, boolean instrumentLevels) {
         ObjectNode o = MAPPER.createObjectNode();
         ArrayNode ids = o.putArray("assumptions");
         row.assumptions().ids().forEach(ids::add);
         o.put("meaning", row.assumptions().meaning());
         o.put("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
+        if (instrumentLevels) {
+            o.put("instrument", row.assumptions().instrument().id());
+        } else {
+            o.putNull("instrument");
+        }
         interval(o, row.interval());
         o.put("sign", row.sign());
         if (!row.perStratum().isEmpty()) {
@@ -91,9 +101,9 @@ public final class ReportJson {
                 interval(s, iv);
             });
         }
-        if (!row.bands().isEmpty()) {
+        if (!row.shownBands().isEmpty()) {
             ArrayNode bands = o.putArray("bands");
-            row.bands().forEach(b -> bands.add(band(b)));
+            row.shownBands().forEach(b -> bands.add(band(b)));
         }
         return o;
     }

@@ -3,6 +3,7 @@ package dev.bracket.report;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.OutcomeKind;
 
 import java.util.LinkedHashSet;
 import java.util.Locale;
@@ -21,23 +22,29 @@ public final class ReportTable {
 
     public static String render(StudyReport report) {
         StringBuilder out = new StringBuilder();
-        out.append(String.format(Locale.ROOT, "Outcome range [%s, %s], %s is better%n",
-                num(report.range().min()), num(report.range().max()), report.range().better().id()));
+        out.append(String.format(Locale.ROOT, "Outcome range [%s, %s]%s, %s is better%n",
+                num(report.range().min()), num(report.range().max()),
+                report.range().kind() == OutcomeKind.BINARY ? " (binary: every outcome is one of the two ends)" : "",
+                report.range().better().id()));
         out.append(armLine("treated", report.pooled().treated()));
         out.append(armLine("control", report.pooled().control()));
         out.append('\n');
         int width = report.rows().stream().mapToInt(r -> Math.max(r.assumptions().toString().length(),
                 r.bands().stream().mapToInt(b -> bandLabel(b).length()).max().orElse(0))).max().orElse(10);
         width = Math.max(width, "assumptions".length());
-        String format = "%-" + width + "s  %-18s  %10s  %10s  %9s  %s%n";
-        out.append(String.format(Locale.ROOT, format, "assumptions", "status", "lower", "upper", "width", "sign of effect"));
+        // With instrument levels, a column says which instrument assumption each row's bounds use.
+        boolean instrumentLevels = report.cells().hasInstrument();
+        String format = "%-" + width + "s  " + (instrumentLevels ? "%-16s  " : "%s") + "%-18s  %10s  %10s  %9s  %s%n";
+        out.append(String.format(Locale.ROOT, format, "assumptions", instrumentLevels ? "instrument" : "", "status", "lower", "upper",
+                "width", "sign of effect"));
         for (BoundRow row : report.rows()) {
-            appendInterval(out, format, row.assumptions().toString(), row.interval(), row.sign());
-            for (ConfidenceBand b : row.bands()) {
+            appendInterval(out, format, row.assumptions().toString(), instrumentLevels ? row.assumptions().instrument().id() : "",
+                    row.interval(), row.sign());
+            for (ConfidenceBand b : row.shownBands()) {
                 appendBand(out, format, b);
             }
             for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {
-                appendInterval(out, format, "  stratum " + s.getKey(), s.getValue(), "");
+                appendInterval(out, format, "  stratum " + (s.getKey().isEmpty() ? "(none given)" : s.getKey()), "", s.getValue(), "");
             }
         }
         out.append('\n');
@@ -45,6 +52,10 @@ public final class ReportTable {
             out.append(String.format(Locale.ROOT, "%s: %s%n", row.assumptions(), row.assumptions().meaning()));
         }
         out.append(PendingOutcomes.note(report.pooled())).append(System.lineSeparator());
+        if (instrumentLevels) {
+            report.rows().stream().map(r -> r.assumptions().instrument()).distinct().forEach(i ->
+                    out.append(String.format(Locale.ROOT, "instrument %s: %s%n", i.id(), i.meaning())));
+        }
         appendBandNotes(out, report);
         out.append(System.lineSeparator()).append(Cautions.TEXT).append(System.lineSeparator());
         return out.toString();
@@ -53,7 +64,7 @@ public final class ReportTable {
     private static void appendBand(StringBuilder out, String format, ConfidenceBand b) {
         boolean ok = b.isBounded();
         String signText = !ok ? "" : signText(BoundRow.signWord(b.sign()));
-        out.append(String.format(Locale.ROOT, format, bandLabel(b), b.status().id(),
+        out.append(String.format(Locale.ROOT, format, bandLabel(b), "", b.status().id(),
                 ok ? num(b.lower()) : "-", ok ? num(b.upper()) : "-", ok ? num(b.width()) : "-", signText));
     }
 
@@ -91,10 +102,11 @@ public final class ReportTable {
                 .stripTrailingZeros().toPlainString() + "%";
     }
 
-    private static void appendInterval(StringBuilder out, String format, String label, IdentifiedInterval iv, String sign) {
+    private static void appendInterval(StringBuilder out, String format, String label, String instrument, IdentifiedInterval iv,
+                                       String sign) {
         boolean ok = iv.isBounded();
         String signText = !ok ? "" : signText(sign);
-        out.append(String.format(Locale.ROOT, format, label, iv.status().id(),
+        out.append(String.format(Locale.ROOT, format, label, instrument, iv.status().id(),
                 ok ? num(iv.lower()) : "-", ok ? num(iv.upper()) : "-", ok ? num(iv.width()) : "-", signText));
     }
 

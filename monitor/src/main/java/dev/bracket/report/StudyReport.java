@@ -1,6 +1,6 @@
 package dev.bracket.report;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
@@ -22,16 +22,16 @@ public record StudyReport(OutcomeRange range, ObservedArms pooled, StudyCells ce
 
     /** Computes every assumption set's interval over the study's cells, without confidence bands. */
     public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets) {
-        return of(cells, range, sets, BandSettings.none());
+        return of(cells, range, sets, BandConfig.none());
     }
 
     /** Computes every assumption set's interval and the requested confidence bands around it. */
-    public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets, BandSettings bands) {
+    public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets, BandConfig bands) {
         List<BoundRow> rows = sets.stream().map(set -> {
             StratifiedBounds.Result r = StratifiedBounds.interval(cells, range, set);
             Map<String, ?> strata = r.perStratum();
             boolean stratified = strata.size() > 1 || !strata.containsKey(StudyCells.NONE);
-            return new BoundRow(set, r.overall(), stratified ? r.perStratum() : Map.of(), bands.bands(cells, range, set));
+            return new BoundRow(set, r.overall(), stratified ? r.perStratum() : Map.of(), bands.bands(cells, range, set, r.overall()));
         }).toList();
         return new StudyReport(range, cells.pooled(), cells, rows);
     }

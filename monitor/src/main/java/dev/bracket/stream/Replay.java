@@ -1,5 +1,12 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.WindowReport;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -17,8 +24,10 @@ import java.util.Map;
  * The monitor's computation over files instead of topics: the same {@link EventParser},
  * {@link PartitionState} and {@link MergedPartials} as the live path, with each input (file or
  * standard input) standing for one source partition read in order. Events without a time field
- * get the time the replay started. Lines are split by {@link JsonLines}, as {@code demo-producer
- * --from-file} splits them; blank lines are not events.
+ * get the time the replay started, and that time is also the clock for {@code max-clock-skew}:
+ * historical files replay unchanged, while an event dated after the replay's start plus the skew
+ * is rejected as {@code time-too-far-ahead}. Lines are split by {@link JsonLines}, as
+ * {@code demo-producer --from-file} splits them; blank lines are not events.
  */
 public final class Replay {
 
@@ -49,7 +58,7 @@ public final class Replay {
      */
     public Replay(BracketConfig config, FieldMapping fields, int keepRejected, long startTime) {
         this.config = config;
-        this.parser = new EventParser(config.studies(), fields, config.maxEventBytes());
+        this.parser = EventParser.forInput(config, fields);
         this.keepRejected = keepRejected;
         this.startTime = startTime;
     }
@@ -82,7 +91,7 @@ public final class Replay {
     public Result finish() {
         MergedPartials merged = new MergedPartials();
         for (PartitionState s : sources) {
-            s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+            s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();

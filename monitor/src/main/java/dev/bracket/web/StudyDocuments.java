@@ -63,10 +63,15 @@ public final class StudyDocuments {
         return Optional.of(root);
     }
 
-    /** A window's entry in both documents: its name, when it was computed and its counts. */
+    /**
+     * A window's entry in both documents: its name, the start and end of its current pane (null
+     * for {@code cumulative}), when it was computed and its counts.
+     */
     private static ObjectNode window(ArrayNode windows, PublishedReport r) {
         ObjectNode w = windows.addObject();
         w.put("window", r.window());
+        instant(w, "windowStart", r.windowStart());
+        instant(w, "windowEnd", r.windowEnd());
         w.put("computedAt", r.computedAt().toString());
         w.set("counts", counts(r));
         return w;
@@ -148,6 +153,14 @@ public final class StudyDocuments {
 
     private static Instant updatedAt(List<PublishedReport> reports) {
         return reports.stream().map(PublishedReport::computedAt).max(Comparator.naturalOrder()).orElseThrow();
+    }
+
+    private static void instant(ObjectNode o, String field, Instant at) {
+        if (at == null) {
+            o.putNull(field);
+        } else {
+            o.put(field, at.toString());
+        }
     }
 
     private static void addNumber(ArrayNode array, double v) {

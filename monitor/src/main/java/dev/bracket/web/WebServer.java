@@ -9,8 +9,11 @@ import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpStatus;
 import io.javalin.http.staticfiles.Location;
+import io.micrometer.core.instrument.binder.jvm.JvmGcMetrics;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 
+import java.util.List;
+import java.util.Map;
 import java.util.Optional;
 import java.util.concurrent.Executors;
 import java.util.concurrent.ScheduledExecutorService;
@@ -28,9 +31,13 @@ import java.util.function.Supplier;
  *   GET /api/studies              {@link StudyDocuments#list}
  *   GET /api/studies/{id}         {@link StudyDocuments#study}; 404 with {"error": ...} for an unknown study
  *   GET /api/studies/{id}/history {@link StudyDocuments#history}
+ *   GET /api/studies/{id}/history.csv the same history as CSV ({@link HistoryCsv})
  *   GET /api/alerts               alerts firing now and the newest transitions ({@code AlertJson#listing});
  *                                 503 with {"error": ...} until {@link #showAlerts} is called
  *   GET /metrics                  Prometheus text: the registry passed in, with {@link StudyGauges}
+ *   GET /health/live              200 when the monitor's threads run, else 503; body {"status", "failing", "checks"}
+ *   GET /health/ready             200 when it is also connected, assigned and committing, else 503 (same body);
+ *                                 before {@link #showHealth} is called: live 200, ready 503 ("starting")
  * </pre>
  */
 public final class WebServer implements AutoCloseable {
@@ -46,9 +53,12 @@ public final class WebServer implements AutoCloseable {
     private final ReportHistory history;
     private final StudyGauges gauges;
     private final Javalin app;
+    private final JvmGcMetrics gcMetrics;
     private ScheduledExecutorService sampler;
     private String host;
     private volatile Supplier<? extends JsonNode> alerts;
+    private volatile Supplier<Map<String, Object>> live = () -> starting("ok");
+    private volatile Supplier<Map<String, Object>> ready = () -> starting("failing");
 
     /**
      * @param latest   where the bound updater publishes reports
@@ -60,6 +70,7 @@ public final class WebServer implements AutoCloseable {
         this.registry = registry;
         this.history = new ReportHistory(historyCapacity);
         this.gauges = new StudyGauges(registry, latest);
+        this.gcMetrics = ProcessMetrics.bindTo(registry);
         this.app = Javalin.create(config -> {
             config.showJavalinBanner = false;
             config.staticFiles.add("/dev/bracket/web/page", Location.CLASSPATH);
@@ -71,6 +82,18 @@ public final class WebServer implements AutoCloseable {
             refresh();
             found(ctx, StudyDocuments.history(history, ctx.pathParam("id")));
         });
+        app.get("/api/studies/{id}/history.csv", ctx -> {
+            refresh();
+            Optional<String> csv = HistoryCsv.of(history, ctx.pathParam("id"));
+            if (csv.isPresent()) {
+                ctx.contentType("text/csv; charset=utf-8")
+                        .header("Content-Disposition", "attachment; filename=\"" + ctx.pathParam("id").replaceAll("[^A-Za-z0-9._-]", "_")
+                                + "-history.csv\"")
+                        .result(csv.get());
+            } else {
+                found(ctx, Optional.empty());
+            }
+        });
         app.get("/api/alerts", ctx -> {
             Supplier<? extends JsonNode> view = alerts;
             if (view == null) {
@@ -80,6 +103,8 @@ public final class WebServer implements AutoCloseable {
                 json(ctx, view.get());
             }
         });
+        app.get("/health/live", ctx -> health(ctx, live.get()));
+        app.get("/health/ready", ctx -> health(ctx, ready.get()));
         app.get("/metrics", ctx -> {
             refresh();
             ctx.contentType(PROMETHEUS_TEXT).result(registry.scrape());
@@ -120,6 +145,25 @@ public final class WebServer implements AutoCloseable {
         this.alerts = view;
     }
 
+    /**
+     * Serves the health endpoints from the monitor's documents, whose {@code status} is
+     * {@code "ok"} (HTTP 200) or {@code "failing"} (HTTP 503).
+     */
+    public void showHealth(Supplier<Map<String, Object>> liveness, Supplier<Map<String, Object>> readiness) {
+        this.live = liveness;
+        this.ready = readiness;
+    }
+
+    private static Map<String, Object> starting(String status) {
+        return Map.of("status", status, "failing", status.equals("ok") ? List.of() : List.of("monitor"),
+                "checks", Map.of("monitor", Map.of("ok", status.equals("ok"), "detail", "the monitor is starting")));
+    }
+
+    private static void health(Context ctx, Map<String, Object> doc) throws JsonProcessingException {
+        ctx.status("ok".equals(doc.get("status")) ? HttpStatus.OK : HttpStatus.SERVICE_UNAVAILABLE);
+        ctx.contentType(JSON).result(ReportJson.mapper().writeValueAsString(doc));
+    }
+
     /** The bound port, after {@link #start}. */
     public int port() {
         return app.port();
@@ -141,6 +185,7 @@ public final class WebServer implements AutoCloseable {
             sampler.shutdownNow();
         }
         app.stop();
+        gcMetrics.close();
     }
 
     private void found(Context ctx, Optional<? extends JsonNode> document) throws JsonProcessingException {

@@ -61,7 +61,7 @@ class PendingShareRuleTest {
                       rules:
                         pending-share: {max-share: 0.3}
                 """;
-        assertThat(BracketConfig.parse("a.yaml", yaml).studies().get(0).alerts().cellRules())
+        assertThat(BracketConfig.parse("a.yaml", yaml).studies().get(0).alerts().rowRules())
                 .containsExactly(new PendingShareRule(0.3, 0));
         assertThatThrownBy(() -> BracketConfig.parse("a.yaml", yaml.replace("0.3", "1.5")))
                 .hasMessageContaining("pending-share max-share");

@@ -5,6 +5,7 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservablesBox;
 import dev.bracket.bounds.OutcomeRange;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;

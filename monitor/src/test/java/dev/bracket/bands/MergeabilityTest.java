@@ -18,7 +18,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
- * The streaming monitor keeps statistics per Kafka partition and merges them (DESIGN.md §5).
+ * The streaming monitor keeps statistics per Kafka partition and merges them.
  * Both bands are functions of per-cell counts, means and M2, which merge exactly in exact
  * arithmetic (Chan, Golub &amp; LeVeque 1979; count and count*mean simply add), so merged
  * partitions must give the band of one pass over all events, in any order, up to rounding.
@@ -60,7 +60,7 @@ class MergeabilityTest {
                 }
             }
         }
-        BandSettings settings = BandSettings.both(0.9);
+        BandConfig settings = BandConfig.both(0.9);
         for (String set : List.of("worst-case", "mtr-positive", "mts-negative,optimizing-selection")) {
             AssumptionSet assumptions = AssumptionSet.parse(set);
             List<ConfidenceBand> expected = settings.bands(onePass, RANGE, assumptions);

@@ -1,9 +1,11 @@
 package dev.bracket.bounds;
 
+import java.util.Map;
+
 /**
- * The two ways the property checks call the identification engine, so that each check runs
- * against {@link BoundCalculator} and, to show that it can fail, against a deliberately broken
- * variant defined beside the check.
+ * The ways the property checks call the identification engine, so that each check runs against
+ * the engine ({@link BoundCalculator}, {@link IndependentInstrumentBounds}) and, to show that it
+ * can fail, against a deliberately broken variant defined beside the check.
  */
 final class Engines {
 
@@ -24,5 +26,13 @@ final class Engines {
         FromArms REAL = BoundCalculator::interval;
 
         IdentifiedInterval interval(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions);
+    }
+
+    /** Bounds under an independent instrument from the levels' arms (level name to arms). */
+    @FunctionalInterface
+    interface FromLevels {
+        FromLevels REAL = IndependentInstrumentBounds::interval;
+
+        IdentifiedInterval interval(Map<String, ObservedArms> levels, OutcomeRange range, AssumptionSet assumptions);
     }
 }

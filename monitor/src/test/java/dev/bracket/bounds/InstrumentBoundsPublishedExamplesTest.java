@@ -20,7 +20,7 @@ class InstrumentBoundsPublishedExamplesTest {
     private static final OutcomeRange UNIT = new OutcomeRange(0, 1);
 
     /** An arm of binary outcomes: {@code zeros} units with Y = 0 and {@code ones} with Y = 1, one Welford update each. */
-    private static ArmStatistics binary(int zeros, int ones) {
+    static ArmStatistics binary(int zeros, int ones) {
         ArmStatistics s = ArmStatistics.empty();
         for (int i = 0; i < zeros; i++) {
             s = s.add(0);

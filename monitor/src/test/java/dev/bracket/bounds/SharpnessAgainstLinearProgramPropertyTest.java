@@ -54,7 +54,8 @@ class SharpnessAgainstLinearProgramPropertyTest {
     /** Every single assumption and every pair of distinct assumptions. */
     private static final List<Set<Assumption>> SETS = singlesAndPairs();
 
-    private static List<Set<Assumption>> singlesAndPairs() {
+    /** Every single assumption and every pair of distinct assumptions (shared with the instrument checks). */
+    static List<Set<Assumption>> singlesAndPairs() {
         List<Set<Assumption>> sets = new ArrayList<>();
         Assumption[] all = Assumption.values();
         for (int i = 0; i < all.length; i++) {
@@ -169,7 +170,8 @@ class SharpnessAgainstLinearProgramPropertyTest {
         }
 
         /** Three or more assumptions held together. */
-        private static Set<Assumption> largerSet(SplittableRandom r) {
+        /** Three or more assumptions held together (shared with the instrument checks). */
+        static Set<Assumption> largerSet(SplittableRandom r) {
             Assumption[] all = Assumption.values();
             Set<Assumption> set = EnumSet.noneOf(Assumption.class);
             int size = 3 + r.nextInt(all.length - 2);

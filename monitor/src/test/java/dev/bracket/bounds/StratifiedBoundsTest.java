@@ -68,6 +68,37 @@ class StratifiedBoundsTest {
     }
 
     @Test
+    @DisplayName("a stratum with units in one arm only gets Manski's worst case with p = 1 (or 0); the study stays bounded")
+    void oneArmedStratumIsWorstCase() {
+        StudyCells study = StudyCells.empty()
+                .with("north", StudyCells.NONE, arms(30, 6.0, 70, 4.0))
+                .with("pilot", StudyCells.NONE, arms(20, 7.5, 0, 0.0))
+                .with("holdout", StudyCells.NONE, arms(0, 0.0, 30, 2.0));
+        // Worst case (Manski 1990) with p = 1: [mu1 - b, mu1 - a]; with p = 0: [a - mu0, b - mu0];
+        // the general formula above gives the same with n0 = 0 or n1 = 0.
+        double[] north = worstCase(30, 6.0, 70, 4.0);
+        double[] pilot = {7.5 - 10, 7.5 - 0};
+        double[] holdout = {0 - 2.0, 10 - 2.0};
+        assertEquals(pilot[0], worstCase(20, 7.5, 0, 0.0)[0], 1e-12);
+        assertEquals(holdout[1], worstCase(0, 0.0, 30, 2.0)[1], 1e-12);
+
+        for (String set : new String[] {"worst-case", "mts-positive"}) {
+            StratifiedBounds.Result r = StratifiedBounds.interval(study, RANGE, AssumptionSet.parse(set));
+            assertEquals(BoundStatus.BOUNDED, r.perStratum().get("pilot").status(), set);
+            assertEquals(pilot[0], r.perStratum().get("pilot").lower(), 1e-12);
+            assertEquals(pilot[1], r.perStratum().get("pilot").upper(), 1e-12);
+            assertEquals(holdout[0], r.perStratum().get("holdout").lower(), 1e-12);
+            assertEquals(holdout[1], r.perStratum().get("holdout").upper(), 1e-12);
+            assertEquals(BoundStatus.BOUNDED, r.overall().status(), set);
+        }
+        StratifiedBounds.Result worst = StratifiedBounds.interval(study, RANGE, AssumptionSet.parse("worst-case"));
+        // Shares 100/150, 20/150, 30/150.
+        assertEquals((100 * north[0] + 20 * pilot[0] + 30 * holdout[0]) / 150, worst.overall().lower(), 1e-12);
+        assertEquals((100 * north[1] + 20 * pilot[1] + 30 * holdout[1]) / 150, worst.overall().upper(), 1e-12);
+        assertEquals(java.util.Set.of("pilot", "holdout"), java.util.Set.copyOf(StratifiedBounds.oneArmed(study)));
+    }
+
+    @Test
     @DisplayName("MTR: each stratum is [0, its worst-case upper]; the study interval weights them by shares")
     void weightedSumUnderMonotoneResponse() {
         StudyCells study = StudyCells.empty()
@@ -106,7 +137,7 @@ class StratifiedBoundsTest {
     }
 
     @Test
-    @DisplayName("one refuted stratum refutes the study; one stratum without a control arm leaves it insufficient")
+    @DisplayName("one refuted stratum refutes the study; a study without a control arm anywhere is insufficient")
     void refutedAndInsufficientStrata() {
         StudyCells refuting = StudyCells.empty()
                 .with("ok", StudyCells.NONE, arms(10, 6.0, 10, 4.0))
@@ -114,11 +145,11 @@ class StratifiedBoundsTest {
         assertEquals(BoundStatus.REFUTED,
                 StratifiedBounds.interval(refuting, RANGE, AssumptionSet.parse("mtr-positive,mts-positive")).overall().status());
 
-        StudyCells missingArm = StudyCells.empty()
-                .with("ok", StudyCells.NONE, arms(10, 6.0, 10, 4.0))
-                .with("new", StudyCells.NONE, arms(5, 3.0, 0, 0));
-        StratifiedBounds.Result r = StratifiedBounds.interval(missingArm, RANGE, AssumptionSet.parse("worst-case"));
+        StudyCells noControl = StudyCells.empty()
+                .with("a", StudyCells.NONE, arms(10, 6.0, 0, 0))
+                .with("b", StudyCells.NONE, arms(5, 3.0, 0, 0));
+        StratifiedBounds.Result r = StratifiedBounds.interval(noControl, RANGE, AssumptionSet.parse("worst-case"));
         assertEquals(BoundStatus.INSUFFICIENT_DATA, r.overall().status());
-        assertEquals(BoundStatus.BOUNDED, r.perStratum().get("ok").status());
+        assertEquals(java.util.List.of(), StratifiedBounds.oneArmed(noControl));
     }
 }

@@ -17,7 +17,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-/** {@code bracket calc --level/--band}: confidence bands in the JSON rows and the table. */
+/** {@code bracket calc --band-level/--bands}: confidence bands in the JSON rows and the table. */
 class CalcBandsTest {
 
     private static final ObjectMapper JSON = new ObjectMapper();
@@ -63,28 +63,37 @@ class CalcBandsTest {
     }
 
     @Test
-    @DisplayName("without SDs the fixed band uses the range bound and says so; the anytime band does not change")
+    @DisplayName("without SDs both bands use the largest spread the range allows and say so")
     void withoutSdsTheRangeBoundStandsIn() throws IOException {
         JsonNode without = bands("--assume", "mtr-positive,mts-positive", "--json");
         JsonNode with = bands("--treated-sd", "0.48", "--control-sd", "0.5", "--assume", "mtr-positive,mts-positive", "--json");
         assertTrue(without.get(0).get("basis").asText().contains("(b-a)^2/4"), without.toString());
         // Popoviciu's (b-a)^2/4 = 0.25 exceeds both sample variances, so the band is wider.
         assertTrue(without.get(0).get("upper").asDouble() > with.get(0).get("upper").asDouble());
-        assertEquals(with.get(1), without.get(1));
+        // Bhatia & Davis (2000): variance <= (b - mean)(mean - a) = 0.62 * 0.38 > 0.48^2 and 0.48 * 0.52 < 0.5^2,
+        // so the anytime band without SDs uses a larger treated spread and a smaller control spread.
+        assertTrue(without.get(1).get("basis").asText().contains("largest spreads the range allows"), without.toString());
+        assertTrue(with.get(1).get("basis").asText().contains("observed spreads"), with.toString());
+        assertTrue(without.get(1).get("upper").asDouble() != with.get(1).get("upper").asDouble(), without + " vs " + with);
     }
 
     @Test
-    @DisplayName("--band picks the bands and --level sets their level")
+    @DisplayName("--bands picks the bands and --band-level sets their level")
     void bandAndLevelFlags() throws IOException {
-        JsonNode anytime = bands("--band", "anytime", "--level", "0.9", "--assume", "worst-case", "--json");
+        JsonNode anytime = bands("--bands", "anytime", "--band-level", "0.9", "--assume", "worst-case", "--json");
         assertEquals(1, anytime.size());
         assertEquals("anytime", anytime.get(0).get("method").asText());
         assertEquals(0.9, anytime.get(0).get("level").asDouble(), 0);
-        JsonNode wider = bands("--band", "anytime", "--level", "0.99", "--assume", "worst-case", "--json");
+        JsonNode wider = bands("--bands", "anytime", "--band-level", "0.99", "--assume", "worst-case", "--json");
         assertTrue(wider.get(0).get("width").asDouble() > anytime.get(0).get("width").asDouble());
-        JsonNode fixed = bands("--band", "fixed", "--assume", "worst-case", "--json");
+        JsonNode fixed = bands("--bands", "fixed", "--assume", "worst-case", "--json");
         assertEquals(1, fixed.size());
         assertEquals("fixed", fixed.get(0).get("method").asText());
+        CalcCommandTest.Run none = run(args("--bands", "none", "--assume", "worst-case", "--json"));
+        assertEquals(0, none.exitCode(), none.err());
+        JsonNode row = JSON.readTree(none.out()).get("bounds").get(0);
+        assertEquals("bounded", row.path("status").asText(), row.toString());
+        assertFalse(row.has("bands"), "--bands none, as bands: none in the configuration: " + row);
     }
 
     @Test
@@ -96,7 +105,7 @@ class CalcBandsTest {
         int row = lines.indexOf(lines.stream().filter(l -> l.startsWith("worst-case ")).findFirst().orElseThrow());
         assertTrue(lines.get(row + 1).trim().startsWith("fixed 95% band"), r.out());
         assertTrue(lines.get(row + 2).trim().startsWith("anytime 95% band"), r.out());
-        assertTrue(r.out().contains("(b-a)^2/4") && r.out().contains("no standard deviation needed"), r.out());
+        assertTrue(r.out().contains("(b-a)^2/4") && r.out().contains("largest spreads the range allows"), r.out());
         assertTrue(r.out().contains("alert on the anytime band"), r.out());
     }
 
@@ -120,22 +129,22 @@ class CalcBandsTest {
         }
     }
 
-    @ParameterizedTest(name = "--level {0}")
+    @ParameterizedTest(name = "--band-level {0}")
     @ValueSource(strings = {"0", "1", "-0.5", "1.5", "NaN", "ninety"})
-    @DisplayName("a level outside (0, 1) is one line naming --level, exit code 2")
+    @DisplayName("a level outside (0, 1) is one line naming --band-level, exit code 2")
     void badLevel(String level) {
-        CalcCommandTest.Run r = run(args("--level", level));
+        CalcCommandTest.Run r = run(args("--band-level", level));
         assertEquals(2, r.exitCode(), r.err());
         assertEquals(1, r.errLines().size(), r.err());
-        assertTrue(r.err().contains("--level"), r.err());
+        assertTrue(r.err().contains("--band-level"), r.err());
         assertEquals("", r.out());
     }
 
     @Test
     void badBand() {
-        CalcCommandTest.Run r = run(args("--band", "sometimes"));
+        CalcCommandTest.Run r = run(args("--bands", "sometimes"));
         assertEquals(2, r.exitCode());
         assertEquals(1, r.errLines().size(), r.err());
-        assertTrue(r.err().contains("--band") && r.err().contains("fixed, anytime or both"), r.err());
+        assertTrue(r.err().contains("--bands") && r.err().contains("both, fixed, anytime or none"), r.err());
     }
 }

@@ -192,6 +192,37 @@ class CalcCommandTest {
 
     // --cells: CSV input with strata and instrument levels.
 
+    @Test
+    @DisplayName("--json: an SD that was not given is null, not 0 (README: missing numbers are null)")
+    void sdNotGivenIsNull() throws Exception {
+        JsonNode none = JSON.readTree(run(with(EXAMPLE, "--json")).out()).get("arms");
+        assertTrue(none.get("treated").get("sd").isNull());
+        assertTrue(none.get("control").get("sd").isNull());
+        JsonNode one = JSON.readTree(run(with(EXAMPLE, "--json", "--treated-sd", "0.3")).out()).get("arms");
+        assertEquals(0.3, one.get("treated").get("sd").asDouble());
+        assertTrue(one.get("control").get("sd").isNull());
+    }
+
+    @Test
+    @DisplayName("a refuted row shows only bands that say refuted, in the table and in JSON")
+    void refutedRowHasNoBands() throws Exception {
+        // mu1 < mu0 contradicts mtr-positive with mts-positive (Manski & Pepper 2000: the pair gives [0, mu1 - mu0]).
+        String[] args = replacing("--treated-mean", "0.40");
+        JsonNode rows = JSON.readTree(run(with(args, "--json")).out()).get("bounds");
+        JsonNode refuted = rows.get(1);
+        assertEquals("refuted", refuted.get("status").asText());
+        refuted.path("bands").forEach(b -> assertEquals("refuted", b.get("status").asText(), b.toString()));
+        assertEquals(2, rows.get(0).get("bands").size());
+        List<String> table = run(args).out().lines().toList();
+        int at = table.indexOf(table.stream().filter(l -> l.startsWith("mtr-positive,mts-positive")).findFirst().orElseThrow());
+        for (String line : table.subList(at + 1, table.size())) {
+            if (!line.trim().contains("% band")) {
+                break;
+            }
+            assertTrue(line.contains("refuted") && !line.contains("negative") && !line.contains("positive"), line);
+        }
+    }
+
     private static Path write(Path dir, String name, String text) throws IOException {
         Path file = dir.resolve(name);
         Files.writeString(file, text, StandardCharsets.UTF_8);
@@ -221,6 +252,29 @@ class CalcCommandTest {
         assertEquals("north", strata.get(0).get("stratum").asText());
         assertEquals(-4.0, strata.get(0).get("lower").asDouble(), 1e-12);
         assertEquals(3.6, strata.get(1).get("upper").asDouble(), 1e-12);
+    }
+
+    @Test
+    @DisplayName("--cells: a stratum with treated units only is reported with its worst case; the study stays bounded")
+    void stratumWithOneArm(@TempDir Path dir) throws IOException {
+        Path csv = write(dir, "one-arm.csv", """
+                stratum,arm,n,mean
+                north,treated,30,6.0
+                north,control,70,4.0
+                pilot,treated,20,7.5
+                """);
+        Run r = run("calc", "--min", "0", "--max", "10", "--cells", csv.toString(), "--assume", "worst-case", "--json");
+        assertEquals(0, r.exitCode(), r.err());
+        JsonNode row = JSON.readTree(r.out()).get("bounds").get(0);
+        // Manski (1990): north p = 0.3 gives [-4.0, 6.0] (above); pilot p = 1 gives [7.5 - 10, 7.5 - 0];
+        // weights 100/120 and 20/120.
+        assertEquals("bounded", row.get("status").asText());
+        assertEquals((100 * -4.0 + 20 * -2.5) / 120, row.get("lower").asDouble(), 1e-12);
+        assertEquals((100 * 6.0 + 20 * 7.5) / 120, row.get("upper").asDouble(), 1e-12);
+        JsonNode pilot = row.get("strata").get(1);
+        assertEquals("pilot", pilot.get("stratum").asText());
+        assertEquals(-2.5, pilot.get("lower").asDouble(), 1e-12);
+        assertEquals(7.5, pilot.get("upper").asDouble(), 1e-12);
     }
 
     @Test

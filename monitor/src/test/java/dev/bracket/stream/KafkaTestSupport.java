@@ -32,9 +32,15 @@ final class KafkaTestSupport {
 
     /** Every record of a topic now visible to a read_committed reader. */
     static List<ConsumerRecord<byte[], byte[]>> readAll(EmbeddedBroker broker, String topic) {
+        return readAll(broker.bootstrapServers(), topic);
+    }
+
+    /** Every record of a topic now visible to a read_committed reader (records of up to 4 MiB). */
+    static List<ConsumerRecord<byte[], byte[]>> readAll(String bootstrapServers, String topic) {
         try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of(
-                ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
+                ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, bootstrapServers,
                 ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed",
+                ConsumerConfig.MAX_PARTITION_FETCH_BYTES_CONFIG, 4 << 20,
                 ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false),
                 new ByteArrayDeserializer(), new ByteArrayDeserializer())) {
             List<TopicPartition> tps = c.partitionsFor(topic).stream().map(p -> new TopicPartition(topic, p.partition())).toList();

@@ -1,7 +1,10 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.TopicSetup;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
+import dev.bracket.broker.ChildMonitor;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
@@ -184,18 +187,12 @@ class MonitorCrashRecoveryTest {
     }
 
     private static Process startChild(Path config, List<Path> logs) throws IOException {
-        String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
-        String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
         Path log = dir.resolve("child-" + logs.size() + ".log");
         logs.add(log);
-        return new ProcessBuilder(java, "-Xmx384m", "-cp", classpath, "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
-                .redirectErrorStream(true)
-                .redirectOutput(log.toFile())
-                .start();
+        return ChildMonitor.start(config, log, "384m");
     }
 
     private static String readLog(Path log) throws IOException {
-        return Files.exists(log) ? Files.readString(log) : "";
+        return ChildMonitor.log(log);
     }
 }

@@ -1,5 +1,9 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.RejectedCopies;
+
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.app.Monitor;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.broker.BrokerPerClass;
@@ -136,11 +140,11 @@ class MonitorEndToEndTest {
             for (ConsumerRecord<byte[], byte[]> r : rejected) {
                 String value = new String(r.value(), StandardCharsets.UTF_8);
                 assertThat(reasonByValue).containsKey(value);
-                assertThat(header(r, StreamAggregator.REASON_HEADER)).isEqualTo(reasonByValue.get(value));
-                assertThat(header(r, StreamAggregator.DETAIL_HEADER)).isNotBlank();
-                assertThat(header(r, StreamAggregator.SOURCE_TOPIC_HEADER)).isEqualTo("e2e-events");
-                assertThat(Integer.parseInt(header(r, StreamAggregator.SOURCE_PARTITION_HEADER))).isBetween(0, 2);
-                assertThat(Long.parseLong(header(r, StreamAggregator.SOURCE_OFFSET_HEADER))).isNotNegative();
+                assertThat(header(r, RejectedCopies.REASON_HEADER)).isEqualTo(reasonByValue.get(value));
+                assertThat(header(r, RejectedCopies.DETAIL_HEADER)).isNotBlank();
+                assertThat(header(r, RejectedCopies.SOURCE_TOPIC_HEADER)).isEqualTo("e2e-events");
+                assertThat(Integer.parseInt(header(r, RejectedCopies.SOURCE_PARTITION_HEADER))).isBetween(0, 2);
+                assertThat(Long.parseLong(header(r, RejectedCopies.SOURCE_OFFSET_HEADER))).isNotNegative();
             }
             Map<String, Long> byReason = bad.stream().collect(Collectors.groupingBy(TestEvents.Event::rejectReason, Collectors.counting()));
             assertThat(byReason).hasSize(6);

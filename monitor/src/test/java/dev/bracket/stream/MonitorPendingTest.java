@@ -1,6 +1,7 @@
 package dev.bracket.stream;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.app.Monitor;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.EventFeed;

@@ -2,7 +2,7 @@ package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
@@ -46,7 +46,7 @@ class WebServerTest {
     private static StudyReport report(long treatedN) {
         StudyCells cells = StudyCells.single(new ObservedArms(
                 ArmStatistics.ofSummary(treatedN, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
-        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandSettings.both(0.95));
+        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandConfig.both(0.95));
     }
 
     @BeforeAll
