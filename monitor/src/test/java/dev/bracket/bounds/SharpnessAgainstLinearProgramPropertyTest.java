@@ -169,7 +169,6 @@ class SharpnessAgainstLinearProgramPropertyTest {
             return new Case(GridData.random(r), largerSet(r));
         }
 
-        /** Three or more assumptions held together. */
         /** Three or more assumptions held together (shared with the instrument checks). */
         static Set<Assumption> largerSet(SplittableRandom r) {
             Assumption[] all = Assumption.values();

@@ -215,19 +215,39 @@ public final class EventParser {
                 }
                 e.instrument = text(p);
             } else if (name.equals(KIND_FIELD)) {
-                String kind = t == JsonToken.VALUE_STRING ? p.getText() : null;
+                if (t != JsonToken.VALUE_STRING) {
+                    skipWrong(p, e, KIND_FIELD, "\"exposure\" or \"outcome\"", t);
+                    continue;
+                }
+                String kind = p.getText();
                 if (!"exposure".equals(kind) && !"outcome".equals(kind)) {
-                    return e.reject(RejectReason.WRONG_TYPE, "field '" + KIND_FIELD + "' must be \"exposure\" or \"outcome\", was "
-                            + (kind == null ? describe(t) : "'" + clip(kind) + "'"));
+                    firstProblem(e, RejectReason.WRONG_TYPE, "field '" + KIND_FIELD + "' must be \"exposure\" or \"outcome\", was '"
+                            + clip(kind) + "'");
+                    continue;
                 }
                 e.exposure = kind.equals("exposure");
             } else if (name.equals(EXPOSED_FIELD)) {
+                if (t != JsonToken.VALUE_NUMBER_INT && t != JsonToken.VALUE_STRING) {
+                    skipWrong(p, e, EXPOSED_FIELD, "epoch milliseconds or an ISO-8601 string", t);
+                    continue;
+                }
+                if (t == JsonToken.VALUE_NUMBER_INT
+                        && (p.getNumberType() == JsonParser.NumberType.BIG_INTEGER || !IsoTime.representable(p.getLongValue()))) {
+                    firstProblem(e, RejectReason.TIME_UNREPRESENTABLE, "field '" + EXPOSED_FIELD + "' is no representable time: '"
+                            + clip(p.getText()) + "'");
+                    continue;
+                }
                 long parsed = t == JsonToken.VALUE_NUMBER_INT ? p.getLongValue()
-                        : t == JsonToken.VALUE_STRING ? IsoTime.parseMillis(p.getTextCharacters(), p.getTextOffset(), p.getTextLength())
-                        : IsoTime.INVALID;
+                        : IsoTime.parseMillis(p.getTextCharacters(), p.getTextOffset(), p.getTextLength());
+                if (parsed == IsoTime.UNREPRESENTABLE) {
+                    firstProblem(e, RejectReason.TIME_UNREPRESENTABLE, "field '" + EXPOSED_FIELD + "' is no representable time: '"
+                            + clip(p.getText()) + "'");
+                    continue;
+                }
                 if (parsed == IsoTime.INVALID) {
-                    return e.reject(RejectReason.WRONG_TYPE, "field '" + EXPOSED_FIELD
-                            + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z");
+                    firstProblem(e, RejectReason.WRONG_TYPE, "field '" + EXPOSED_FIELD
+                            + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z, was '" + clip(p.getText()) + "'");
+                    continue;
                 }
                 e.exposedTime = parsed;
             } else if (name.equals(fields.id())) {
@@ -280,7 +300,7 @@ public final class EventParser {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "
                     + range.max() + "] declared for study '" + study.id() + "'");
         }
-        if (!range.admits(e.outcome)) {
+        if (!e.exposure && !range.admits(e.outcome)) {
             return e.reject(RejectReason.NOT_BINARY, "outcome " + e.outcome + " is neither " + range.min() + " nor " + range.max()
                     + ", the two values of the binary outcome declared for study '" + study.id() + "'");
         }
