@@ -67,7 +67,7 @@ public final class AlertEvaluator {
         List<AlertTransition> out = new ArrayList<>();
         for (RowRule rule : config.rowRules()) {
             AlertKey key = AlertKey.perRow(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
-            Verdict verdict = rule.judge(snapshot.interval(), band.get());
+            Verdict verdict = rule.judge(snapshot, band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
             apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
         }

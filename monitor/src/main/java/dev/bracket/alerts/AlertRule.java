@@ -20,6 +20,9 @@ public enum AlertRule {
     /** The band for the lower end lies wholly above the band for the upper end: the data contradict the assumptions beyond sampling error. */
     ASSUMPTIONS_REFUTED("assumptions-refuted", true,
             "assumptions contradicted by the data beyond sampling error", "assumptions no longer contradicted beyond sampling error"),
+    /** In either arm, the share of units whose outcome has not arrived exceeds a configured limit. */
+    PENDING_SHARE("pending-share", true, "share of units with outcomes pending above the limit",
+            "shares of units with outcomes pending back within the limit"),
     /** No events arrived for the study for longer than a configured duration. */
     STREAM_STALLED("stream-stalled", false, "no events from the study's stream", "events arriving again"),
     /** The share of rejected events within a period exceeds a configured threshold. */

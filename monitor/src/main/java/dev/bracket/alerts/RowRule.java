@@ -10,7 +10,7 @@ import java.util.Map;
  * a confidence band. Implementations are pure functions of their settings and the two inputs.
  */
 public sealed interface RowRule
-        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule {
+        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule, PendingShareRule {
 
     AlertRule rule();
 
@@ -19,6 +19,11 @@ public sealed interface RowRule
      * judges nothing then); each is identified or refuted.
      */
     Verdict judge(IdentifiedInterval interval, ConfidenceBand band);
+
+    /** The verdict from the whole snapshot; rules that need only the interval and band use {@link #judge(IdentifiedInterval, ConfidenceBand)}. */
+    default Verdict judge(BoundSnapshot snapshot, ConfidenceBand band) {
+        return judge(snapshot.interval(), band);
+    }
 
     /** The configured limits by name, reported with every transition. */
     Map<String, Double> limits();

@@ -1,6 +1,6 @@
 package dev.bracket.bands;
 
-import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.Assumption;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
@@ -44,6 +44,17 @@ import java.util.Optional;
  * {@link VarianceBasis#RANGE_BOUND} (no standard deviation known) M2 is replaced by its largest
  * value for outcomes in the declared range. The boundary's tuning is fixed by
  * {@code plannedCount}, chosen before the data are seen.
+ *
+ * <p>Pending outcomes (exposed units whose outcome has not arrived): the identified set is the
+ * union over each arm's {@link dev.bracket.bounds.ArmMeanRange} (Horowitz &amp; Manski 2000, JASA
+ * 95(449)). In route 1 an end is linear in every unit's outcome, so its extreme over the pending
+ * outcomes puts each pending unit at the range end where that end's quantity is smallest (lower
+ * end) or largest (upper end); that unit's quantity is then a known bounded number and the
+ * sequence runs over all units ({@link EndQuantities.PerUnit#filled}). In route 2 each arm's box
+ * runs from the low end of its arm-mean range (pending units at a) to the high end (at b), each a
+ * mean of bounded per-unit quantities. Under {@code missing-at-random} a pending unit's quantity
+ * is not known at all, so pending outcomes then take route 2, whose arm boxes come from the
+ * observed outcomes alone and the treated share from all units.
  *
  * <p>Immutable and thread-safe; build one per configured level and reuse it.
  */
@@ -105,7 +116,8 @@ public final class AnytimeBand {
     /** The same, given the study's estimated interval (to spare computing it again). */
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
         boolean levels = cells.byStratum().values().stream().anyMatch(l -> l.size() > 1);
-        Optional<EndQuantities> ends = levels ? Optional.empty() : EndQuantities.of(range, assumptions);
+        Optional<EndQuantities> ends = levels || unknownPendingQuantities(cells, assumptions)
+                ? Optional.empty() : EndQuantities.of(range, assumptions);
         int shares = BoxProjection.shareCount(cells);
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
@@ -115,30 +127,39 @@ public final class AnytimeBand {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         if (ends.isPresent()) {
-            return perEnd(cells.pooled(), range, ends.get(), basis);
+            return perEnd(cells, range, ends.get(), basis);
         }
         EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundary(sequences);
-        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, boundary),
+        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, assumptions, boundary),
                 (units, all) -> share(units, all, boundary)), basis);
     }
 
     /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
     public ConfidenceBand ofCell(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
-        Optional<EndQuantities> ends = EndQuantities.of(range, assumptions);
+        Optional<EndQuantities> ends = unknownPendingQuantities(StudyCells.single(arms), assumptions)
+                ? Optional.empty() : EndQuantities.of(range, assumptions);
         String basis = ends.isPresent() ? perEndBasis : singleCellBoxBasis;
         if (arms.hasEmptyArm()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
         }
         if (ends.isPresent()) {
-            return perEnd(arms, range, ends.get(), basis);
+            return perEnd(StudyCells.single(arms), range, ends.get(), basis);
         }
-        return band(BoxProjection.cell(box(arms, range, singleCellBox), range, assumptions), basis);
+        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBox), range, assumptions), basis);
     }
 
-    /** Lower bound of the lower end's quantity, upper bound of the upper end's, on the pooled units. */
-    private ConfidenceBand perEnd(ObservedArms pooled, OutcomeRange range, EndQuantities ends, String basis) {
-        EndQuantities.Summary lo = ends.lower().over(pooled, range, variance);
-        EndQuantities.Summary hi = ends.upper().over(pooled, range, variance);
+    /** Missing-at-random with pending outcomes: a pending unit's per-unit quantity is unknown (route 2). */
+    private static boolean unknownPendingQuantities(StudyCells cells, AssumptionSet assumptions) {
+        return assumptions.contains(Assumption.MISSING_AT_RANDOM) && cells.hasPending();
+    }
+
+    /**
+     * Lower bound of the lower end's quantity, upper bound of the upper end's, on the pooled units,
+     * each cell's pending units filled in at that end's extreme before pooling.
+     */
+    private ConfidenceBand perEnd(StudyCells cells, OutcomeRange range, EndQuantities ends, String basis) {
+        EndQuantities.Summary lo = ends.lower().over(filled(cells, ends.lower(), range, false), range, variance);
+        EndQuantities.Summary hi = ends.upper().over(filled(cells, ends.upper(), range, true), range, variance);
         double loMin = ends.lower().min(range);
         double hiMax = ends.upper().max(range);
         double lower = lo.mean() - perEnd.radius(lo.count(), lo.m2(), ends.lower().max(range) - loMin, lo.mean() - loMin);
@@ -151,18 +172,19 @@ public final class AnytimeBand {
         return new EmpiricalBernsteinBoundary((1 - level) / (2.0 * sequences), plannedCount);
     }
 
-    /** The cell's box: sequences for p (treated indicators) and for each arm's mean. */
-    private ObservablesBox box(ObservedArms arms, OutcomeRange range, EmpiricalBernsteinBoundary boundary) {
-        ArmStatistics t = arms.treated();
-        ArmStatistics c = arms.control();
+    /** The cell's box: sequences for p (treated indicators, all units) and for the ends of each arm's mean range. */
+    private ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, EmpiricalBernsteinBoundary boundary) {
         long n = arms.total();
         double width = range.width();
-        double pRadius = boundary.radius(n, (double) t.count() * c.count() / n, 1, 1);
-        return ObservablesBox.around(
-                arms.treatedShare(), pRadius,
-                t.isEmpty() ? range.min() : t.mean(), boundary.radius(t.count(), variance.m2(t, range), width, width),
-                c.isEmpty() ? range.min() : c.mean(), boundary.radius(c.count(), variance.m2(c, range), width, width),
-                range);
+        double pRadius = boundary.radius(n, (double) arms.treated().units() * arms.control().units() / n, 1, 1);
+        return ObservablesBox.of(arms, range, assumptions, arms.treatedShare(), pRadius,
+                arm -> boundary.radius(arm.count(), variance.m2(arm, range), width, width));
+    }
+
+    private static ObservedArms filled(StudyCells cells, EndQuantities.PerUnit quantity, OutcomeRange range, boolean highest) {
+        return cells.byStratum().values().stream().flatMap(levels -> levels.values().stream())
+                .map(arms -> quantity.filled(arms, range, highest))
+                .reduce(ObservedArms.empty(), ObservedArms::merge);
     }
 
     /** A stratum share's sequence, on the indicators of belonging to the stratum. */

@@ -24,7 +24,8 @@ import java.util.Optional;
  * pooled population: one sequence per end on the pooled units accounts for the sampling of the
  * stratum shares with no extra term. Sets that bound a counterfactual mean by the other arm's
  * mean (monotone selection, sorting on gains) have ends with products such as {@code p mu0} and
- * get no quantities here.
+ * get no quantities here. Pending outcomes are filled in at the end's extreme first
+ * ({@link PerUnit#filled}).
  *
  * <p>Which bound is which is read off {@link AssumptionSet#constrain} at two points on either
  * side of the diagonal {@code mu1 = mu0}: every constraint is a max or min of the range ends and
@@ -58,7 +59,22 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
     /** {@code T g1(Y) + (1 - T) g0(Y)}. */
     record PerUnit(Affine treated, Affine control) {
 
-        /** The quantity's statistics over a cell's units (Chan et al.'s merge of the two arms). */
+        /**
+         * The cell with each pending outcome set to the range end where this quantity is smallest
+         * ({@code highest} false) or largest: the extreme of its mean over everything the pending
+         * outcomes could be, since the mean is linear in each unit's outcome (Horowitz &amp;
+         * Manski 2000, JASA 95(449)). Without pending outcomes the cell itself.
+         */
+        ObservedArms filled(ObservedArms arms, OutcomeRange range, boolean highest) {
+            return new ObservedArms(arms.treated().pendingAt(extremeOutcome(treated, range, highest)),
+                    arms.control().pendingAt(extremeOutcome(control, range, highest)));
+        }
+
+        private static double extremeOutcome(Affine g, OutcomeRange range, boolean highest) {
+            return (g.slope() >= 0) == highest ? range.max() : range.min();
+        }
+
+        /** The quantity's statistics over a cell's units with outcomes (Chan et al.'s merge of the two arms). */
         Summary over(ObservedArms arms, OutcomeRange range, VarianceBasis variance) {
             ArmStatistics t = arms.treated();
             ArmStatistics c = arms.control();

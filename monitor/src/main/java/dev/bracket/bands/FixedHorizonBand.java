@@ -47,8 +47,13 @@ import java.util.Optional;
  *       is compatible with the assumptions (a test at level alpha), and otherwise spans the
  *       intervals compatible with the data.</li>
  * </ol>
- * Insufficient data when an arm of any cell has a single unit, or the interval itself is
- * insufficient data.
+ * Pending outcomes (exposed units without an outcome yet) take case 2's route as well: each
+ * arm's box runs from the low end of its arm-mean range minus a normal radius to the high end
+ * plus one, the ends being means of per-unit quantities with a pending unit at a or b
+ * (see {@link ObservablesBox#of}).
+ *
+ * <p>Insufficient data when an arm of any cell has a single observed outcome, or the interval
+ * itself is insufficient data.
  */
 public final class FixedHorizonBand {
 
@@ -70,7 +75,8 @@ public final class FixedHorizonBand {
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells) || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
-        if (estimate.isBounded() && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
+        if (estimate.isBounded() && !cells.hasPending()
+                && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
             Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
             if (band.isPresent()) {
                 return band.get();
@@ -86,7 +92,7 @@ public final class FixedHorizonBand {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
         IdentifiedInterval estimate = BoundCalculator.interval(arms, range, assumptions);
-        Optional<EndpointStandardErrors> se = estimate.isBounded()
+        Optional<EndpointStandardErrors> se = estimate.isBounded() && arms.pending() == 0
                 ? EndpointStandardErrors.of(arms, range, assumptions, variance) : Optional.empty();
         if (se.isPresent()) {
             return imbensManski(estimate.lower(), estimate.upper(), se.get().lower(), se.get().upper(), arms.total(),
@@ -144,21 +150,17 @@ public final class FixedHorizonBand {
         String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
                 + k + (k == 1 ? " cell" : " cells") + (shares > 0 ? " and the " + shares + " stratum shares" : "")
                 + " (conservative), using " + variance.description();
-        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, z, variance),
+        return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, assumptions, z, variance),
                         (units, all) -> wilson((double) units / all, all, z))
                 .map(e -> ConfidenceBand.of(BandMethod.FIXED_HORIZON, level, e.lower(), e.upper(), basis))
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.FIXED_HORIZON, level, basis));
     }
 
     /** Wilson score interval for p and normal intervals for the means, each two-sided with quantile z. */
-    static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, double z, VarianceBasis variance) {
+    static ObservablesBox waldBox(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double z, VarianceBasis variance) {
         double[] p = wilson(arms.treatedShare(), arms.total(), z);
-        ArmStatistics t = arms.treated();
-        ArmStatistics c = arms.control();
-        return ObservablesBox.around((p[0] + p[1]) / 2, (p[1] - p[0]) / 2,
-                t.isEmpty() ? range.min() : t.mean(), meanRadius(t, range, z, variance),
-                c.isEmpty() ? range.min() : c.mean(), meanRadius(c, range, z, variance),
-                range);
+        return ObservablesBox.of(arms, range, assumptions, (p[0] + p[1]) / 2, (p[1] - p[0]) / 2,
+                arm -> meanRadius(arm, range, z, variance));
     }
 
     /** Wilson's score interval {low, high} for a proportion {@code p} of {@code n}, two-sided with quantile z. */
@@ -170,7 +172,7 @@ public final class FixedHorizonBand {
     }
 
     private static double meanRadius(ArmStatistics arm, OutcomeRange range, double z, VarianceBasis variance) {
-        return arm.isEmpty() ? Double.POSITIVE_INFINITY : z * Math.sqrt(variance.variance(arm, range) / arm.count());
+        return z * Math.sqrt(variance.variance(arm, range) / arm.count());
     }
 
     private static boolean hasSingleUnitArm(StudyCells cells) {

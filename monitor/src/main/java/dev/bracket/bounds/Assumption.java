@@ -20,7 +20,15 @@ import java.util.stream.Collectors;
  *   <tr><td>mts-negative</td><td>&ge; mu1</td><td>&le; mu0</td><td>Manski &amp; Pepper (2000)</td></tr>
  *   <tr><td>optimizing-selection</td><td>&le; mu0</td><td>&le; mu1</td><td>Manski (1990); Roy (1951)</td></tr>
  *   <tr><td>sorting-on-gains</td><td>&le; mu1</td><td>&le; mu0</td><td>comparative-advantage (Roy-model) literature</td></tr>
+ *   <tr><td>missing-at-random</td><td>&mdash;</td><td>&mdash;</td><td>Rubin (1976), Biometrika 63(3)</td></tr>
  * </table>
+ *
+ * <p>Here mu1 and mu0 are the means over all units of each arm, pending outcomes included; with
+ * pending outcomes they are only known to lie in an {@link ArmMeanRange}, and every assumption
+ * above is a statement about all units of an arm, whether their outcome has arrived or not.
+ * {@code missing-at-random} constrains no unobserved mean: it says pending outcomes have the
+ * same mean as the observed ones in the same arm, which shrinks the arm-mean range to the
+ * complete-case mean (see {@link ArmMeanRange}). Without pending outcomes it changes nothing.
  */
 public enum Assumption {
 
@@ -75,6 +83,13 @@ public enum Assumption {
             return better == Direction.HIGHER
                     ? box.m10AtMost(mu1).m01AtMost(mu0)
                     : box.m10AtLeast(mu1).m01AtLeast(mu0);
+        }
+    },
+    MISSING_AT_RANDOM("missing-at-random",
+            "missing at random: outcomes not yet reported have, on average, the same value as the reported ones in the same arm") {
+        @Override
+        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
+            return box; // acts on the arm means instead, see ArmMeanRange
         }
     };
 

@@ -16,6 +16,15 @@ package dev.bracket.bounds;
  * the highest (max m10, min m01). The box is a product of intervals; an empty box (beyond
  * rounding, see {@link OutcomeRange#roundingSlack()}) means
  * {@link BoundStatus#REFUTED}.
+ *
+ * <p>Pending outcomes: mu1 and mu0 are then only known to lie in their {@link ArmMeanRange}s
+ * (Horowitz &amp; Manski 2000, JASA 95(449)), and the identified set is the union of the
+ * intervals over that box of arm means: each (mu1, mu0) in it is the arm means of some joint law
+ * of outcomes and responses consistent with the data, and the assumptions then act as without
+ * pending outcomes. The ends are monotone in the means, so the lowest lower end sits at
+ * (mu1 low, mu0 high) and the highest upper end at (mu1 high, mu0 low); where the assumptions
+ * refute a corner, the extreme moves to where the box meets {@code mu1 = mu0}
+ * ({@link MeanVertices}). The treated share counts every exposed unit.
  */
 public final class BoundCalculator {
 
@@ -27,7 +36,30 @@ public final class BoundCalculator {
         if (arms.hasEmptyArm()) {
             return IdentifiedInterval.insufficientData();
         }
-        return interval(arms.treatedShare(), arms.treated().mean(), arms.control().mean(), range, assumptions);
+        ArmMeanRange treated = ArmMeanRange.of(arms.treated(), range, assumptions);
+        ArmMeanRange control = ArmMeanRange.of(arms.control(), range, assumptions);
+        return hull(arms.treatedShare(), treated.lowMean(range), treated.highMean(range),
+                control.lowMean(range), control.highMean(range), range, assumptions);
+    }
+
+    /**
+     * The union of the intervals over a box of arm means at treated share {@code p}: the lowest
+     * lower and highest upper end over {@link MeanVertices}; refuted when the assumptions refute
+     * every point of the box. A box that is a single point gives {@link #interval(double, double,
+     * double, OutcomeRange, AssumptionSet)} at that point.
+     */
+    public static IdentifiedInterval hull(double p, double mu1Low, double mu1High, double mu0Low, double mu0High,
+                                          OutcomeRange range, AssumptionSet assumptions) {
+        double lower = Double.POSITIVE_INFINITY;
+        double upper = Double.NEGATIVE_INFINITY;
+        for (double[] m : MeanVertices.of(mu1Low, mu1High, mu0Low, mu0High)) {
+            IdentifiedInterval at = interval(p, m[0], m[1], range, assumptions);
+            if (at.isBounded()) {
+                lower = Math.min(lower, at.lower());
+                upper = Math.max(upper, at.upper());
+            }
+        }
+        return lower <= upper ? IdentifiedInterval.of(lower, upper) : IdentifiedInterval.refuted();
     }
 
     /**

@@ -17,6 +17,11 @@ import java.util.Map;
  * The programs have {@code 4 * 2^K} variables for K levels; beyond {@value #MAX_LEVELS} levels
  * with units the mean-independence bounds are reported instead, which are valid under
  * independence too but not sharp.
+ *
+ * <p>Pending outcomes: each level's arm means are then the boxes of their {@link ArmMeanRange}s,
+ * and the program takes the lowest and highest ATE over them. The mean of a binary outcome fixes
+ * its law and pending units' outcomes are unrestricted (Horowitz &amp; Manski 2000, JASA 95(449)),
+ * so every point of the boxes is attained by some law consistent with the data.
  */
 public final class IndependentInstrumentBounds {
 
@@ -34,9 +39,9 @@ public final class IndependentInstrumentBounds {
         List<ObservablesBox> points = new ArrayList<>();
         for (ObservedArms arms : levels.values()) {
             if (arms.total() > 0) {
-                treated += arms.treated().count();
-                control += arms.control().count();
-                points.add(ObservablesBox.at(arms, range));
+                treated += arms.treated().units();
+                control += arms.control().units();
+                points.add(ObservablesBox.at(arms, range, assumptions));
             }
         }
         if (treated == 0 || control == 0) {

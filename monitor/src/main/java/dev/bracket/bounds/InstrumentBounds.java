@@ -27,6 +27,12 @@ import java.util.Optional;
  * <p>A level may have units in one arm only (for example nobody assigned to control could get
  * treatment); the empty arm then carries no weight there and constraints on its mean are
  * vacuous. Levels with no units are skipped.
+ *
+ * <p>Pending outcomes: each level's bounds are taken over its box of arm means
+ * ({@link ArmMeanRange}, {@link MeanVertices}), smallest lower and largest upper bound of each
+ * potential-outcome mean. Under {@code worst-case} alone the bounds on E[Y1 | z] depend on mu1_z
+ * only and those on E[Y0 | z] on mu0_z only, so this is still Manski's sharp set; otherwise an
+ * outer set.
  */
 public final class InstrumentBounds {
 
@@ -42,9 +48,22 @@ public final class InstrumentBounds {
 
     /** Per-level bounds on E[Y1] and E[Y0]; null when the level's assumptions are refuted. */
     static LevelMeans levelMeans(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
-        double mu1 = arms.treated().isEmpty() ? Double.NaN : arms.treated().mean();
-        double mu0 = arms.control().isEmpty() ? Double.NaN : arms.control().mean();
-        return levelMeans(arms.treatedShare(), mu1, mu0, range, assumptions).orElse(null);
+        ArmMeanRange t = ArmMeanRange.of(arms.treated(), range, assumptions);
+        ArmMeanRange c = ArmMeanRange.of(arms.control(), range, assumptions);
+        boolean noTreated = arms.treated().units() == 0;
+        boolean noControl = arms.control().units() == 0;
+        // Over the box of arm means (pending outcomes): the smallest and largest of each bound.
+        double[][] vertices = MeanVertices.of(noTreated ? Double.NaN : t.lowMean(range), noTreated ? Double.NaN : t.highMean(range),
+                noControl ? Double.NaN : c.lowMean(range), noControl ? Double.NaN : c.highMean(range));
+        LevelMeans hull = null;
+        for (double[] m : vertices) {
+            LevelMeans at = levelMeans(arms.treatedShare(), m[0], m[1], range, assumptions).orElse(null);
+            if (at != null) {
+                hull = hull == null ? at : new LevelMeans(Math.min(hull.y1Low, at.y1Low), Math.max(hull.y1High, at.y1High),
+                        Math.min(hull.y0Low, at.y0Low), Math.max(hull.y0High, at.y0High));
+            }
+        }
+        return hull;
     }
 
     /**
@@ -90,8 +109,8 @@ public final class InstrumentBounds {
                 perLevel.put(e.getKey(), IdentifiedInterval.insufficientData());
                 continue;
             }
-            treated += arms.treated().count();
-            control += arms.control().count();
+            treated += arms.treated().units();
+            control += arms.control().units();
             LevelMeans m = levelMeans(arms, range, assumptions);
             if (m == null) {
                 refuted = true;

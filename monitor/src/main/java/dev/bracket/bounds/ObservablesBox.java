@@ -1,11 +1,13 @@
 package dev.bracket.bounds;
 
+import java.util.function.ToDoubleFunction;
+
 /**
  * A box of plausible values for one cell's observable quantities: the treated share
  * {@code p in [pLow, pHigh]} and the arm means {@code mu1 in [mu1Low, mu1High]},
  * {@code mu0 in [mu0Low, mu0High]}. A confidence band is the hull of the identified intervals
- * over such a box (see {@code bands.BoxProjection}); the estimates themselves are the box of a
- * single point ({@link #at}).
+ * over such a box (see {@code bands.BoxProjection}); the estimates themselves are the box
+ * {@link #at} (a single point unless outcomes are pending).
  */
 public record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu1High, double mu0Low, double mu0High) {
 
@@ -17,16 +19,39 @@ public record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu
     }
 
     /**
-     * The point of a cell's estimates: its treated share and arm means. The mean of an arm with no
-     * units is unknown, so it spans the whole range (a constraint on it then restricts nothing).
+     * A cell's box: the treated share's interval (over all units, pending ones included) and, per
+     * arm, from the low end of its {@link ArmMeanRange} minus that end's radius to the high end plus
+     * its radius, clipped to [0, 1] and the outcome range. Each end of an arm-mean range is itself
+     * the mean of bounded per-unit quantities (the observed outcome, or a or b for a pending unit;
+     * Horowitz &amp; Manski 2000, JASA 95(449)), so its radius comes from the same bounds as a plain
+     * arm mean; without pending units both ends are the arm mean. An end with no units gives the
+     * whole range.
      */
-    public static ObservablesBox at(ObservedArms arms, OutcomeRange range) {
-        double p = arms.treatedShare();
-        return new ObservablesBox(p, p,
-                arms.treated().isEmpty() ? range.min() : arms.treated().mean(),
-                arms.treated().isEmpty() ? range.max() : arms.treated().mean(),
-                arms.control().isEmpty() ? range.min() : arms.control().mean(),
-                arms.control().isEmpty() ? range.max() : arms.control().mean());
+    public static ObservablesBox of(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, double p, double pRadius,
+                                    ToDoubleFunction<ArmStatistics> meanRadius) {
+        ArmMeanRange t = ArmMeanRange.of(arms.treated(), range, assumptions);
+        ArmMeanRange c = ArmMeanRange.of(arms.control(), range, assumptions);
+        return new ObservablesBox(Math.max(0, p - pRadius), Math.min(1, p + pRadius),
+                lowEnd(t.low(), range, meanRadius), highEnd(t.high(), range, meanRadius),
+                lowEnd(c.low(), range, meanRadius), highEnd(c.high(), range, meanRadius));
+    }
+
+    private static double lowEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
+        return arm.isEmpty() ? range.min() : Math.max(range.min(), arm.mean() - radius.applyAsDouble(arm));
+    }
+
+    private static double highEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
+        return arm.isEmpty() ? range.max() : Math.min(range.max(), arm.mean() + radius.applyAsDouble(arm));
+    }
+
+    /**
+     * The box of a cell's estimates: its treated share (over all units) and the arm-mean ranges
+     * ({@link ArmMeanRange}; a single point per arm without pending outcomes). The mean of an arm
+     * with no outcome is unknown, so it spans the whole range (a constraint on it then restricts
+     * nothing).
+     */
+    public static ObservablesBox at(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
+        return of(arms, range, assumptions, arms.treatedShare(), 0, arm -> 0);
     }
 
     /** The box around estimates with the given half-widths, clipped to [0, 1] and the outcome range. */
@@ -38,29 +63,8 @@ public record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu
                 Math.max(range.min(), mu0 - mu0Radius), Math.min(range.max(), mu0 + mu0Radius));
     }
 
-    /**
-     * The (mu1, mu0) pairs where an end of the interval can take its extreme value over the box:
-     * the four corners, and the points where the diagonal {@code mu1 = mu0} crosses the box's
-     * edges. Every constraint of every assumption compares an unobserved mean with a, b, mu1 or mu0
-     * (see {@code Assumption}), so for fixed p the ends are linear on each side of the diagonal
-     * within [a, b]^2, and the assumptions are refuted exactly on one side of it, on both sides,
-     * or nowhere. The extremes over the box, and over its part compatible with the assumptions,
-     * are therefore attained among these points.
-     */
+    /** The (mu1, mu0) pairs where an end can take its extreme over the box: see {@link MeanVertices}. */
     public double[][] meanVertices() {
-        double[][] out = new double[8][];
-        int k = 0;
-        out[k++] = new double[] {mu1Low, mu0Low};
-        out[k++] = new double[] {mu1Low, mu0High};
-        out[k++] = new double[] {mu1High, mu0Low};
-        out[k++] = new double[] {mu1High, mu0High};
-        double from = Math.max(mu1Low, mu0Low);
-        double to = Math.min(mu1High, mu0High);
-        for (double m : new double[] {mu1Low, mu1High, mu0Low, mu0High}) {
-            if (m >= from && m <= to) {
-                out[k++] = new double[] {m, m};
-            }
-        }
-        return java.util.Arrays.copyOf(out, k);
+        return MeanVertices.of(mu1Low, mu1High, mu0Low, mu0High);
     }
 }

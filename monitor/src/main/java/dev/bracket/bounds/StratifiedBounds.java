@@ -59,7 +59,7 @@ public final class StratifiedBounds {
                 continue; // a stratum with no units has weight zero
             }
             ObservedArms pooled = study.pooled(e.getKey());
-            IdentifiedInterval interval = pooled.hasEmptyArm() && !study.pooled().hasEmptyArm() ? oneArmWorstCase(pooled, range)
+            IdentifiedInterval interval = pooled.hasEmptyArm() && !study.pooled().hasEmptyArm() ? oneArmWorstCase(pooled, range, assumptions)
                     : levels.size() == 1 ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
                     : assumptions.instrument().interval(levels, range, assumptions);
             perStratum.put(e.getKey(), interval);
@@ -88,13 +88,16 @@ public final class StratifiedBounds {
                 .filter(s -> study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()).toList();
     }
 
-    /** Manski (1990) worst case with {@code p} equal to 1 (no untreated units) or 0 (no treated units). */
-    private static IdentifiedInterval oneArmWorstCase(ObservedArms arms, OutcomeRange range) {
-        if (arms.control().isEmpty()) {
-            double mu1 = arms.treated().mean();
-            return IdentifiedInterval.of(mu1 - range.max(), mu1 - range.min());
+    /**
+     * Manski (1990) worst case with {@code p} equal to 1 (no untreated units) or 0 (no treated
+     * units); with pending outcomes over the arm's {@link ArmMeanRange} (Horowitz &amp; Manski 2000).
+     */
+    private static IdentifiedInterval oneArmWorstCase(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
+        if (arms.control().units() == 0) {
+            ArmMeanRange mu1 = ArmMeanRange.of(arms.treated(), range, assumptions);
+            return IdentifiedInterval.of(mu1.lowMean(range) - range.max(), mu1.highMean(range) - range.min());
         }
-        double mu0 = arms.control().mean();
-        return IdentifiedInterval.of(range.min() - mu0, range.max() - mu0);
+        ArmMeanRange mu0 = ArmMeanRange.of(arms.control(), range, assumptions);
+        return IdentifiedInterval.of(range.min() - mu0.highMean(range), range.max() - mu0.lowMean(range));
     }
 }

@@ -56,6 +56,11 @@ public final class StudyCells {
                 .reduce(ObservedArms.empty(), ObservedArms::merge);
     }
 
+    /** True when some cell has exposed units whose outcome has not arrived ({@link ObservedArms#pending()}). */
+    public boolean hasPending() {
+        return cells.values().stream().flatMap(levels -> levels.values().stream()).anyMatch(arms -> arms.pending() > 0);
+    }
+
     /** Every cell added together. */
     public ObservedArms pooled() {
         return cells.keySet().stream().map(this::pooled).reduce(ObservedArms.empty(), ObservedArms::merge);

@@ -43,7 +43,13 @@ import java.util.concurrent.Callable;
                 "the data are looked at (the one to act on)."},
         footer = {"",
                 "Assumptions: worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,",
-                "optimizing-selection, sorting-on-gains. Join several with commas to assume them together.",
+                "optimizing-selection, sorting-on-gains, missing-at-random. Join several with commas",
+                "to assume them together.",
+                "",
+                "Pending outcomes (--treated-pending, --control-pending or the pending column):",
+                "units that entered an arm but whose outcome has not arrived. Each is bounded by",
+                "[A, B] unless missing-at-random is assumed (pending outcomes like the observed",
+                "ones in the same arm). --treated-n and --control-n count units with an outcome.",
                 "",
                 "Instrument levels (the instrument column of --cells): --instrument mean-independent",
                 "intersects each level's bounds (any outcome); --instrument independent gives the",
@@ -85,8 +91,12 @@ public final class CalcCommand implements Callable<Integer> {
             description = "What is assumed about the instrument levels of --cells (default: ${DEFAULT-VALUE}); independent needs --outcome-kind binary.")
     String instrument;
 
-    @Option(names = "--treated-n", paramLabel = "N1", description = "Units that received treatment.")
+    @Option(names = "--treated-n", paramLabel = "N1", description = "Treated units with an observed outcome.")
     Long treatedN;
+
+    @Option(names = "--treated-pending", paramLabel = "P1", defaultValue = "0",
+            description = "Treated units whose outcome has not arrived yet (default: ${DEFAULT-VALUE}).")
+    long treatedPending;
 
     @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
     Double treatedMean;
@@ -94,8 +104,12 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed band).")
     Double treatedSd;
 
-    @Option(names = "--control-n", paramLabel = "N0", description = "Units that did not receive treatment.")
+    @Option(names = "--control-n", paramLabel = "N0", description = "Untreated units with an observed outcome.")
     Long controlN;
+
+    @Option(names = "--control-pending", paramLabel = "P0", defaultValue = "0",
+            description = "Untreated units whose outcome has not arrived yet (default: ${DEFAULT-VALUE}).")
+    long controlPending;
 
     @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
     Double controlMean;
@@ -104,7 +118,7 @@ public final class CalcCommand implements Callable<Integer> {
     Double controlSd;
 
     @Option(names = "--cells", paramLabel = "FILE",
-            description = "CSV with a header: arm,n,mean[,sd][,stratum][,instrument]; one row per arm and cell ('-' reads standard input).")
+            description = "CSV with a header: arm,n,mean[,sd][,pending][,stratum][,instrument]; one row per arm and cell ('-' reads standard input).")
     String cellsFile;
 
     @Option(names = "--assume", paramLabel = "SET",
@@ -218,14 +232,15 @@ public final class CalcCommand implements Callable<Integer> {
         Double sd1 = CalcInput.knownSd(treatedSd, treatedN, treatedMean, range);
         Double sd0 = CalcInput.knownSd(controlSd, controlN, controlMean, range);
         ObservedArms arms = new ObservedArms(
-                CalcInput.arm(treatedN, treatedMean, sd1 == null ? 0.0 : sd1, range, "--treated-"),
-                CalcInput.arm(controlN, controlMean, sd0 == null ? 0.0 : sd0, range, "--control-"));
+                CalcInput.arm(treatedN, treatedPending, treatedMean, sd1 == null ? 0.0 : sd1, range, "--treated-"),
+                CalcInput.arm(controlN, controlPending, controlMean, sd0 == null ? 0.0 : sd0, range, "--control-"));
         boolean everySdGiven = (sd1 != null || treatedN < 2) && (sd0 != null || controlN < 2);
         return new CalcInput.Cells(StudyCells.single(arms), everySdGiven);
     }
 
     private CalcInput.Cells cellsFromFile(OutcomeRange range) throws IOException {
-        for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd}) {
+        for (Object flag : new Object[] {treatedN, treatedMean, treatedSd, controlN, controlMean, controlSd,
+                treatedPending == 0 ? null : treatedPending, controlPending == 0 ? null : controlPending}) {
             if (flag != null) {
                 throw new InputError("--cells cannot be combined with --treated-* or --control-*; put every arm in the file");
             }

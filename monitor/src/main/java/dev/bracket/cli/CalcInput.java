@@ -24,14 +24,22 @@ final class CalcInput {
      * Amer. Math. Monthly 107(4), with the n/(n-1) factor of the sample SD); a larger one means the
      * summary and the range disagree.
      *
+     * <p>{@code pending} units entered the arm but have no outcome yet; they count as exposures
+     * ({@code n + pending}) so the bounds treat their outcomes as unknown within the range. With
+     * no pending units no exposures are recorded, exactly as before pending counts existed.
+     *
      * @param where prefix naming the flag or file position, e.g. {@code "--treated-"}
      */
-    static ArmStatistics arm(long n, double mean, double sd, OutcomeRange range, String where) {
+    static ArmStatistics arm(long n, long pending, double mean, double sd, OutcomeRange range, String where) {
         if (n < 0) {
             throw new InputError(where + "n must be >= 0, was " + n);
         }
+        if (pending < 0) {
+            throw new InputError(where + "pending must be >= 0 (units still waiting for an outcome), was " + pending);
+        }
+        long exposed = pending == 0 ? 0 : n + pending;
         if (n == 0) {
-            return ArmStatistics.empty();
+            return ArmStatistics.empty().withExposures(exposed);
         }
         if (!Double.isFinite(mean) || !range.contains(mean)) {
             throw new InputError(where + "mean must lie in the outcome range [" + fmt(range.min()) + ", "
@@ -46,7 +54,7 @@ final class CalcInput {
                     + fmt(range.min()) + ", " + fmt(range.max()) + "] with mean " + fmt(mean)
                     + " (at most " + fmt(limit) + "); check the summary and the range");
         }
-        return ArmStatistics.ofSummary(n, mean, sd);
+        return ArmStatistics.ofSummary(n, mean, sd).withExposures(exposed);
     }
 
     /**

@@ -18,11 +18,12 @@ import java.util.Set;
 /**
  * Reads summary statistics per cell from CSV with a header row. Columns: {@code arm}
  * ({@code treated}/{@code control}, or 1/0), {@code n}, {@code mean}, optional {@code sd},
+ * optional {@code pending} (units of the arm whose outcome has not arrived; empty means 0),
  * optional {@code stratum}, optional {@code instrument}. Rows naming the same cell are merged.
  */
 final class CellsCsv {
 
-    private static final Set<String> KNOWN = Set.of("stratum", "instrument", "arm", "n", "mean", "sd");
+    private static final Set<String> KNOWN = Set.of("stratum", "instrument", "arm", "n", "mean", "sd", "pending");
 
     private CellsCsv() {
     }
@@ -47,20 +48,22 @@ final class CellsCsv {
                     checkedHeader = true;
                 }
                 boolean treated = arm(row.get("arm"), where);
-                long n = count(row.get("n"), where);
+                long n = count(row.get("n"), "n", where);
+                String pendingText = row.getOrDefault("pending", "");
+                long pending = pendingText == null || pendingText.isEmpty() ? 0 : count(pendingText, "pending", where);
                 double mean = number(row.get("mean"), "mean", where);
                 String sdText = row.getOrDefault("sd", "");
                 boolean sdGiven = sdText != null && !sdText.isEmpty();
                 Double sd = CalcInput.knownSd(sdGiven ? number(sdText, "sd", where) : null, n, mean, range);
                 everySdGiven &= sd != null || n < 2;
-                ArmStatistics stats = CalcInput.arm(n, mean, sd == null ? 0.0 : sd, range, where + ": ");
+                ArmStatistics stats = CalcInput.arm(n, pending, mean, sd == null ? 0.0 : sd, range, where + ": ");
                 ObservedArms arms = treated
                         ? new ObservedArms(stats, ArmStatistics.empty())
                         : new ObservedArms(ArmStatistics.empty(), stats);
                 cells = cells.with(orNone(row.get("stratum")), orNone(row.get("instrument")), arms);
             }
             if (!checkedHeader) {
-                throw new InputError(source + ": no data rows; expected a header 'arm,n,mean[,sd][,stratum][,instrument]' and one row per cell");
+                throw new InputError(source + ": no data rows; expected a header 'arm,n,mean[,sd][,pending][,stratum][,instrument]' and one row per cell");
             }
         } catch (RuntimeException e) {
             if (e instanceof InputError) {
@@ -74,7 +77,7 @@ final class CellsCsv {
     private static void checkHeader(Set<String> header, String source) {
         for (String column : header) {
             if (!KNOWN.contains(column)) {
-                throw new InputError(source + ": unknown column '" + column + "'; columns are arm, n, mean, sd, stratum, instrument");
+                throw new InputError(source + ": unknown column '" + column + "'; columns are arm, n, mean, sd, pending, stratum, instrument");
             }
         }
         for (String required : new String[] {"arm", "n", "mean"}) {
@@ -93,15 +96,15 @@ final class CellsCsv {
         };
     }
 
-    private static long count(String text, String where) {
+    private static long count(String text, String column, String where) {
         try {
             long n = Long.parseLong(text == null ? "" : text);
             if (n < 0) {
-                throw new InputError(where + ": n must be >= 0, was " + n);
+                throw new InputError(where + ": " + column + " must be >= 0, was " + n);
             }
             return n;
         } catch (NumberFormatException e) {
-            throw new InputError(where + ": n must be a whole number, was '" + text + "'");
+            throw new InputError(where + ": " + column + " must be a whole number, was '" + text + "'");
         }
     }
 

@@ -6,11 +6,14 @@ import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.DemoProducerCommand;
 import dev.bracket.duration.DurationText;
+import dev.bracket.demo.EventFeed;
+import dev.bracket.demo.RegistryScenario;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
 import dev.bracket.demo.ScenarioOptions;
 import dev.bracket.demo.ShutdownGate;
 import dev.bracket.demo.ScenarioConfig;
+import dev.bracket.demo.TrueEffects;
 import dev.bracket.report.store.LatestReports;
 import dev.bracket.report.store.PublishedReport;
 import dev.bracket.app.Monitor;
@@ -68,13 +71,34 @@ public final class DemoCommand implements Callable<Integer> {
     @CommandLine.Mixin
     ScenarioOptions scenarioOptions;
 
+    @Option(names = "--scenario", paramLabel = "NAME", defaultValue = "rollout",
+            description = "rollout (hosts picked by engineers) or registry (outcomes that arrive late, good ones later)"
+                    + " (default: ${DEFAULT-VALUE}).")
+    String scenarioName;
+
     @Option(names = "--http-port", paramLabel = "PORT", defaultValue = "8080",
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
     int httpPort;
 
+    /** What a demo run simulates: its events, its truth, its description and the study's assumption rows. */
+    record Simulation(EventFeed feed, TrueEffects truth, String description, String assumptions) {
+    }
+
+    private Simulation simulation() {
+        return switch (scenarioName.trim().toLowerCase(java.util.Locale.ROOT)) {
+            case "rollout" -> {
+                RolloutScenario rollout = new RolloutScenario(settings());
+                yield new Simulation(new ScenarioFeed(rollout, STUDY), rollout.truth(), rollout.describe(), ROLLOUT_ASSUMPTIONS);
+            }
+            case "registry" -> new Simulation(new RegistryScenario(STUDY, scenarioOptions.seed()), RegistryScenario.truth(),
+                    RegistryScenario.describe(), REGISTRY_ASSUMPTIONS);
+            default -> throw new InputError("--scenario must be rollout or registry, was '" + scenarioName + "'");
+        };
+    }
+
     @Override
     public Integer call() throws Exception {
-        RolloutScenario scenario = new RolloutScenario(settings());
+        Simulation scenario = simulation();
         if (!(rate > 0) || Double.isInfinite(rate)) {
             throw new InputError("--rate must be a number of events per second above 0, was " + rate);
         }
@@ -105,16 +129,17 @@ public final class DemoCommand implements Callable<Integer> {
         }
     }
 
-    private void run(RolloutScenario scenario, EmbeddedBroker broker, WebServer web, LatestReports latest,
+    private void run(Simulation scenario, EmbeddedBroker broker, WebServer web, LatestReports latest,
                      ShutdownGate gate, PrintWriter out) throws InterruptedException {
-        BracketConfig config = BracketConfig.parse("bracket demo", configYaml()).withBootstrapServers(broker.bootstrapServers());
+        BracketConfig config = BracketConfig.parse("bracket demo", configYaml(scenario.assumptions()))
+                .withBootstrapServers(broker.bootstrapServers());
         try (Monitor monitor = Monitor.start(config, web.registry(), latest);
              Producer<String, String> kafka = DemoProducer.kafkaProducer(broker.bootstrapServers())) {
             MonitorCommand.exitWhenFailed(monitor, spec.commandLine().getErr());
             web.showAlerts(monitor.alerts()::apiView);
             web.showHealth(monitor::liveness, monitor::readiness);
             DemoProducer sender = new DemoProducer(kafka, TOPIC, rate, Clock.systemUTC());
-            Thread producerThread = new Thread(() -> sender.run(new ScenarioFeed(scenario, STUDY),
+            Thread producerThread = new Thread(() -> sender.run(scenario.feed(),
                     new DemoProducer.Limits(0, duration), gate::stopRequested), "bracket-demo-producer");
             TerminalView view = new TerminalView(out, System.console() != null);
             long start = System.nanoTime();
@@ -136,10 +161,10 @@ public final class DemoCommand implements Callable<Integer> {
         }
     }
 
-    private DemoScreen.State screen(RolloutScenario scenario, DemoProducer sender, long startNanos, WebServer web,
+    private DemoScreen.State screen(Simulation scenario, DemoProducer sender, long startNanos, WebServer web,
                                     LatestReports latest, Monitor monitor) {
         Optional<PublishedReport> report = latest.get(STUDY, "cumulative");
-        return new DemoScreen.State(STUDY, scenario.describe(), scenario.truth(), sender.sent(),
+        return new DemoScreen.State(STUDY, scenario.description(), scenario.truth(), sender.sent(),
                 Duration.ofNanos(System.nanoTime() - startNanos), duration, web.address(), report, monitor.alerts().firing());
     }
 
@@ -152,14 +177,26 @@ public final class DemoCommand implements Callable<Integer> {
                 spec.commandLine());
     }
 
-    /** The demo study: outcomes are shares in [0, 1], higher is better; every single assumption and one joint set. */
+    /** The rollout's rows: every single assumption about selection and one joint set. */
+    static final String ROLLOUT_ASSUMPTIONS = "[worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,"
+            + " optimizing-selection, sorting-on-gains, \"mtr-negative,mts-positive\"]";
+
+    /** The registry's rows: each with and without missing-at-random, so the difference pending outcomes make shows. */
+    static final String REGISTRY_ASSUMPTIONS = "[worst-case, missing-at-random, \"mtr-positive,mts-positive\","
+            + " \"mtr-positive,mts-positive,missing-at-random\"]";
+
+    /** The rollout demo's configuration. */
     static String configYaml() {
+        return configYaml(ROLLOUT_ASSUMPTIONS);
+    }
+
+    /** The demo study: outcomes in [0, 1], higher is better, with the given assumption rows. */
+    static String configYaml(String assumptions) {
         return """
                 studies:
                   - id: %s
                     outcome: {min: 0, max: 1, better: higher}
-                    assume: [worst-case, mtr-positive, mtr-negative, mts-positive, mts-negative,
-                             optimizing-selection, sorting-on-gains, "mtr-negative,mts-positive"]
+                    assume: %s
                 inputs:
                   - topic: %s
                 topics:
@@ -172,7 +209,7 @@ public final class DemoCommand implements Callable<Integer> {
                 publish-interval: 500ms
                 group: bracket-demo
                 instance: demo
-                """.formatted(STUDY, TOPIC);
+                """.formatted(STUDY, assumptions, TOPIC);
     }
 
     private static void deleteTree(Path dir) {

@@ -67,8 +67,12 @@ final class DemoScreen {
                 s.sent(), arms.total(), arms.treated().count(), arms.control().count(), CLOCK.format(published.computedAt())));
         if (!arms.hasEmptyArm()) {
             double naive = arms.treated().mean() - arms.control().mean();
+            String why = arms.pending() > 0 ? "outcomes still pending are left out of it" : "of who got the setting";
             out.append(String.format(Locale.ROOT, "Naive difference of means %+.4f; it differs from the true ATE by %+.4f"
-                    + " because of who got the setting.%n", naive, naive - s.truth().ate()));
+                    + " because %s.%n", naive, naive - s.truth().ate(), why));
+            if (arms.pending() > 0) {
+                out.append(String.format(Locale.ROOT, "Outcomes pending: %,d of %,d units.%n", arms.pending(), arms.total()));
+            }
         }
         out.append('\n');
         List<BoundRow> rows = published.report().rows();

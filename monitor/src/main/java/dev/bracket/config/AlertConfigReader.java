@@ -6,6 +6,7 @@ import dev.bracket.alerts.AssumptionsRefutedRule;
 import dev.bracket.alerts.RowRule;
 import dev.bracket.alerts.DataQualityRule;
 import dev.bracket.alerts.IntervalNarrowRule;
+import dev.bracket.alerts.PendingShareRule;
 import dev.bracket.alerts.PracticalEquivalenceRule;
 import dev.bracket.alerts.SignIdentifiedRule;
 import dev.bracket.alerts.StreamStalledRule;
@@ -16,6 +17,7 @@ import dev.bracket.config.ConfigKeys.Alerts;
 import dev.bracket.config.ConfigKeys.AssumptionsRefuted;
 import dev.bracket.config.ConfigKeys.DataQuality;
 import dev.bracket.config.ConfigKeys.IntervalNarrow;
+import dev.bracket.config.ConfigKeys.PendingShare;
 import dev.bracket.config.ConfigKeys.PracticalEquivalence;
 import dev.bracket.config.ConfigKeys.Rules;
 import dev.bracket.config.ConfigKeys.SignIdentified;
@@ -83,6 +85,11 @@ final class AlertConfigReader {
                     case ASSUMPTIONS_REFUTED -> {
                         ConfigNode r = Rules.ASSUMPTIONS_REFUTED.read(rules);
                         rowRules.add(build(r, () -> new AssumptionsRefutedRule(AssumptionsRefuted.CLEAR_MIN_WIDTH.read(r))));
+                    }
+                    case PENDING_SHARE -> {
+                        ConfigNode r = Rules.PENDING_SHARE.read(rules);
+                        rowRules.add(build(r, () -> new PendingShareRule(PendingShare.MAX_SHARE.read(r),
+                                PendingShare.CLEAR_SHARE_BELOW.read(r))));
                     }
                     case STREAM_STALLED -> {
                         ConfigNode r = Rules.STREAM_STALLED.read(rules);

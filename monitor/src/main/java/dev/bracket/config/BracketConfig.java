@@ -176,7 +176,8 @@ public record BracketConfig(
             OutcomeKind kind = Outcome.KIND.read(outcome);
             InstrumentAssumption instrument = instrument(s, kind);
             List<AssumptionSet> sets = assumptions(Study.ASSUME.read(s)).stream().map(set -> set.withInstrument(instrument)).toList();
-            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertConfigReader.study(Study.ALERTS.read(s))));
+            out.add(new StudyConfig(id, new OutcomeRange(min, max, better, kind), sets, AlertConfigReader.study(Study.ALERTS.read(s)),
+                    Study.FOLLOW_UP.read(s)));
         }
         return out;
     }

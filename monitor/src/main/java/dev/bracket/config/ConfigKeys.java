@@ -80,6 +80,7 @@ final class ConfigKeys {
         static final ConfigKey<InstrumentAssumption> INSTRUMENT = KEYS.key("instrument", Type.choice(InstrumentAssumption::parse), InstrumentAssumption.MEAN_INDEPENDENT, "what is assumed about the instrument levels: mean-independent or independent (binary outcomes)");
         static final ConfigKey<ConfigNode> ASSUME = KEYS.key("assume", Type.FREE, null, "assumption sets, each a list or a comma-separated text (default: each single assumption)");
         static final ConfigKey<ConfigNode> ALERTS = KEYS.key("alerts", Type.mapping(StudyAlerts.KEYS), null, "the study's alert rules and where its alerts go");
+        static final ConfigKey<Duration> FOLLOW_UP = KEYS.key("follow-up", Type.DURATION, null, Check.positive(), "how long after exposure a still-pending unit counts as lost to follow-up (absent: never)");
     }
 
     /** {@code studies[].outcome}. */
@@ -146,6 +147,7 @@ final class ConfigKeys {
         static final ConfigKey<ConfigNode> INTERVAL_NARROW = rule(AlertRule.INTERVAL_NARROW, IntervalNarrow.KEYS);
         static final ConfigKey<ConfigNode> PRACTICAL_EQUIVALENCE = rule(AlertRule.PRACTICAL_EQUIVALENCE, PracticalEquivalence.KEYS);
         static final ConfigKey<ConfigNode> ASSUMPTIONS_REFUTED = rule(AlertRule.ASSUMPTIONS_REFUTED, AssumptionsRefuted.KEYS);
+        static final ConfigKey<ConfigNode> PENDING_SHARE = rule(AlertRule.PENDING_SHARE, PendingShare.KEYS);
         static final ConfigKey<ConfigNode> STREAM_STALLED = rule(AlertRule.STREAM_STALLED, StreamStalled.KEYS);
         static final ConfigKey<ConfigNode> DATA_QUALITY = rule(AlertRule.DATA_QUALITY, DataQuality.KEYS);
 
@@ -175,6 +177,12 @@ final class ConfigKeys {
     static final class AssumptionsRefuted {
         static final ConfigSection KEYS = new ConfigSection();
         static final ConfigKey<Double> CLEAR_MIN_WIDTH = KEYS.key("clear-min-width", Type.NUMBER, 0.0, "resolves at once when the band exists again, at least this wide");
+    }
+
+    static final class PendingShare {
+        static final ConfigSection KEYS = new ConfigSection();
+        static final ConfigKey<Double> MAX_SHARE = KEYS.required("max-share", Type.NUMBER, "fires when an arm's share of exposed units still pending exceeds this");
+        static final ConfigKey<Double> CLEAR_SHARE_BELOW = KEYS.key("clear-share-below", Type.NUMBER, 0.0, "resolves at once when the share is at least this far below the limit");
     }
 
     static final class StreamStalled {

@@ -146,6 +146,7 @@ public final class StudyDocuments {
         c.put("treated", arms.treated().count());
         c.put("control", arms.control().count());
         c.put("total", arms.total());
+        c.put("pending", arms.pending());
         c.put("strata", r.report().cells().byStratum().size());
         return c;
     }

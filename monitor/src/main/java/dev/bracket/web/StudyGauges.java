@@ -2,6 +2,7 @@ package dev.bracket.web;
 
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bands.ConfidenceBand;
+import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
@@ -30,7 +31,9 @@ import java.util.function.ToDoubleFunction;
  *   <li>{@code bracket_ate_band_lower}, {@code bracket_ate_band_upper}: ends of each confidence band, with
  *       labels {@code method} ({@code anytime}, {@code fixed-horizon}) and {@code level} (NaN
  *       when the band is refuted or there are not enough data)</li>
- *   <li>{@code bracket_arm_units}: units in the arm ({@code arm="treated"|"control"})</li>
+ *   <li>{@code bracket_arm_units}: units with an observed outcome in the arm ({@code arm="treated"|"control"})</li>
+ *   <li>{@code bracket_arm_pending_ratio}: share of the arm's exposed units whose outcome has not
+ *       arrived (0 when no exposures are reported, NaN for an arm with no units)</li>
  *   <li>{@code bracket_report_timestamp_seconds}: when the report was computed (Unix time)</li>
  * </ul>
  * Labels: {@code study}, {@code window}, and {@code assumptions} (comma-separated identifiers).
@@ -56,6 +59,13 @@ public final class StudyGauges {
                     r -> r.report().pooled().treated().count(), study, window);
             gauge("bracket.arm.units", "Units observed in the arm", tags.and("arm", "control"), null,
                     r -> r.report().pooled().control().count(), study, window);
+            for (boolean treated : new boolean[] {true, false}) {
+                gauge("bracket.arm.pending.ratio", "Share of the arm's units whose outcome has not arrived",
+                        tags.and("arm", treated ? "treated" : "control"), null, r -> {
+                            ArmStatistics arm = treated ? r.report().pooled().treated() : r.report().pooled().control();
+                            return arm.units() == 0 ? Double.NaN : (double) arm.pending() / arm.units();
+                        }, study, window);
+            }
             gauge("bracket.report.timestamp", "When the report was computed, Unix time", tags, "seconds",
                     r -> r.computedAt().toEpochMilli() / 1000.0, study, window);
         }

@@ -47,7 +47,7 @@ class DirectionMirrorPropertyTest {
             case MTR_NEGATIVE -> Assumption.MTR_POSITIVE;
             case MTS_POSITIVE -> Assumption.MTS_NEGATIVE;
             case MTS_NEGATIVE -> Assumption.MTS_POSITIVE;
-            case WORST_CASE, OPTIMIZING_SELECTION, SORTING_ON_GAINS -> a;
+            case WORST_CASE, OPTIMIZING_SELECTION, SORTING_ON_GAINS, MISSING_AT_RANDOM -> a;
         };
     }
 

@@ -19,13 +19,16 @@ import static org.junit.jupiter.api.Assertions.fail;
 
 /**
  * The engine's box algebra ({@link BoundCalculator}) against a linear program over joint laws of
- * (Y1, Y0, T) ({@link JointLawProgram}, Commons Math {@code SimplexSolver}): for random discrete
+ * (Y1, Y0, T, R) ({@link JointLawProgram}, Commons Math {@code SimplexSolver}), R saying whether a
+ * unit's outcome has arrived: for random discrete
  * outcome laws on a grid {a, a+h, ..., b}, the engine's interval must equal the LP's [min, max]
  * of E[Y1 - Y0] (sharpness and validity at once), and the engine must say "refuted" exactly when
  * the LP is infeasible. Checked for every single assumption, for every pair of assumptions
  * (which includes the documented combinations {@code mtr-positive,mts-positive} and
  * {@code optimizing-selection,sorting-on-gains}) and one random set of three or more per try, in
- * both outcome directions.
+ * both outcome directions. Three laws in four have pending units (0 to 4 per arm, sometimes every
+ * unit of an arm), so the union over the box of arm means and {@code missing-at-random} are
+ * checked against the response indicator's joint law as well.
  *
  * <p>Outcome laws come from small integer counts, so the arms' means are often exactly equal; the
  * engine computes its means by Welford's update from unit-level observations while the LP uses the
@@ -40,6 +43,13 @@ class SharpnessAgainstLinearProgramPropertyTest {
     /** A plausible slip: the treated and control arms exchanged. */
     private static final Engines.FromArms SWAPPED_ARMS = (arms, range, assumptions) ->
             BoundCalculator.interval(new ObservedArms(arms.control(), arms.treated()), range, assumptions);
+
+    /** A plausible slip: pending units dropped, as if the observed outcomes were all there is. */
+    private static final Engines.FromArms COMPLETE_CASE = (arms, range, assumptions) ->
+            BoundCalculator.interval(new ObservedArms(
+                    new ArmStatistics(arms.treated().count(), arms.treated().mean(), arms.treated().m2(), arms.treated().min(), arms.treated().max()),
+                    new ArmStatistics(arms.control().count(), arms.control().mean(), arms.control().m2(), arms.control().min(), arms.control().max())),
+                    range, assumptions);
 
     /** Every single assumption and every pair of distinct assumptions. */
     private static final List<Set<Assumption>> SETS = singlesAndPairs();
@@ -57,8 +67,8 @@ class SharpnessAgainstLinearProgramPropertyTest {
         return sets;
     }
 
-    /** Counts of units per grid value and arm: the observed law is counts / total. */
-    record GridData(double a, double h, int[] treatedCounts, int[] controlCounts) {
+    /** Counts of units per grid value and arm, and pending units per arm: the law is counts / total. */
+    record GridData(double a, double h, int[] treatedCounts, int[] controlCounts, int treatedPending, int controlPending) {
 
         double[] grid() {
             double[] y = new double[treatedCounts.length];
@@ -73,7 +83,7 @@ class SharpnessAgainstLinearProgramPropertyTest {
             return new OutcomeRange(y[0], y[y.length - 1], better);
         }
 
-        /** The arms as a stream would build them: one Welford update per unit. */
+        /** The arms as a stream would build them: one Welford update per outcome, one exposure per unit. */
         ObservedArms arms() {
             double[] y = grid();
             ObservedArms arms = ObservedArms.empty();
@@ -85,28 +95,46 @@ class SharpnessAgainstLinearProgramPropertyTest {
                     arms = arms.add(false, y[i]);
                 }
             }
+            if (treatedPending + controlPending == 0) {
+                return arms; // no exposure events at all, as a stream without them
+            }
+            for (int u = 0; u < Arrays.stream(treatedCounts).sum() + treatedPending; u++) {
+                arms = arms.addExposure(true);
+            }
+            for (int u = 0; u < Arrays.stream(controlCounts).sum() + controlPending; u++) {
+                arms = arms.addExposure(false);
+            }
             return arms;
         }
 
         JointLawProgram program() {
-            double total = Arrays.stream(treatedCounts).sum() + Arrays.stream(controlCounts).sum();
+            double total = Arrays.stream(treatedCounts).sum() + Arrays.stream(controlCounts).sum() + treatedPending + controlPending;
             return new JointLawProgram(grid(),
                     Arrays.stream(treatedCounts).mapToDouble(c -> c / total).toArray(),
-                    Arrays.stream(controlCounts).mapToDouble(c -> c / total).toArray());
+                    Arrays.stream(controlCounts).mapToDouble(c -> c / total).toArray(),
+                    treatedPending / total, controlPending / total);
         }
 
-        /** Start in -3..3, step 0.25, 0.5, 1 or 2, 0 to 6 units per grid value and arm, at least one unit per arm. */
+        /**
+         * Start in -3..3, step 0.25, 0.5, 1 or 2, 0 to 6 units per grid value and arm; one time in four
+         * no pending units, otherwise 0 to 4 per arm; at least one unit (observed or pending) per arm.
+         */
         static GridData random(SplittableRandom r) {
             int k = 2 + r.nextInt(4);
             double start = r.nextInt(-3, 4);
             double step = SeededCases.oneOf(r, 0.25, 0.5, 1.0, 2.0);
+            boolean pending = r.nextInt(4) > 0;
             int[] treated;
             int[] control;
+            int treatedPending;
+            int controlPending;
             do {
                 treated = r.ints(k, 0, 7).toArray();
                 control = r.ints(k, 0, 7).toArray();
-            } while (Arrays.stream(treated).sum() == 0 || Arrays.stream(control).sum() == 0);
-            return new GridData(start, step, treated, control);
+                treatedPending = pending ? r.nextInt(5) : 0;
+                controlPending = pending ? r.nextInt(5) : 0;
+            } while (Arrays.stream(treated).sum() + treatedPending == 0 || Arrays.stream(control).sum() + controlPending == 0);
+            return new GridData(start, step, treated, control, treatedPending, controlPending);
         }
 
         @Override
@@ -116,10 +144,11 @@ class SharpnessAgainstLinearProgramPropertyTest {
 
         String describe() {
             return "grid " + Arrays.toString(grid()) + ", treated counts " + Arrays.toString(treatedCounts)
-                    + ", control counts " + Arrays.toString(controlCounts);
+                    + " + " + treatedPending + " pending, control counts " + Arrays.toString(controlCounts)
+                    + " + " + controlPending + " pending";
         }
 
-        /** Sign of mu1 - mu0 in exact integer arithmetic (grid index means). */
+        /** Sign of mu1 - mu0 of the observed outcomes in exact integer arithmetic (grid index means); 0 for an arm with none. */
         int meanOrder() {
             long n1 = Arrays.stream(treatedCounts).sum();
             long n0 = Arrays.stream(controlCounts).sum();
@@ -140,7 +169,6 @@ class SharpnessAgainstLinearProgramPropertyTest {
             return new Case(GridData.random(r), largerSet(r));
         }
 
-        /** Three or more assumptions held together. */
         /** Three or more assumptions held together (shared with the instrument checks). */
         static Set<Assumption> largerSet(SplittableRandom r) {
             Assumption[] all = Assumption.values();
@@ -182,6 +210,23 @@ class SharpnessAgainstLinearProgramPropertyTest {
     }
 
     @Test
+    @DisplayName("the generated laws have pending units often, including arms with no outcome at all")
+    void generatedLawsCoverPendingOutcomes() {
+        long withPending = CASES.stream().filter(c -> c.data().treatedPending() + c.data().controlPending() > 0).count();
+        long allPending = CASES.stream().filter(c -> Arrays.stream(c.data().treatedCounts()).sum() == 0
+                || Arrays.stream(c.data().controlCounts()).sum() == 0).count();
+        System.out.printf("pending units in %d, an arm with no outcome in %d of %d laws%n", withPending, allPending, CASES.size());
+        assertTrue(withPending >= 0.5 * CASES.size(), "pending units in only " + withPending + " of " + CASES.size());
+        assertTrue(allPending >= 1, "no law with an arm whose outcomes are all pending");
+    }
+
+    @Test
+    @DisplayName("the check fails for an engine that ignores pending units (complete-case bounds)")
+    void failsForAnEngineThatIgnoresPendingUnits() {
+        SeededCases.assertRejectsSome(CASES, c -> equalsLinearProgram(c, COMPLETE_CASE), "complete case");
+    }
+
+    @Test
     @DisplayName("the check fails for an engine that swaps the arms")
     void failsForAnEngineThatSwapsTheArms() {
         SeededCases.assertRejectsSome(CASES, c -> equalsLinearProgram(c, SWAPPED_ARMS), "swapped arms");
@@ -215,7 +260,7 @@ class SharpnessAgainstLinearProgramPropertyTest {
     @DisplayName("the linear program itself detects infeasibility")
     void theLinearProgramItselfDetectsInfeasibility() {
         // Guard against a vacuous check: a law with mu1 < mu0 is infeasible under MTR+ with MTS+.
-        GridData data = new GridData(0, 1, new int[] {3, 1}, new int[] {1, 3});
+        GridData data = new GridData(0, 1, new int[] {3, 1}, new int[] {1, 3}, 0, 0);
         assertTrue(data.program().ateRange(EnumSet.of(Assumption.MTR_POSITIVE, Assumption.MTS_POSITIVE), Direction.HIGHER).isEmpty());
         Optional<double[]> worst = data.program().ateRange(EnumSet.of(Assumption.WORST_CASE), Direction.HIGHER);
         if (worst.isEmpty()) {

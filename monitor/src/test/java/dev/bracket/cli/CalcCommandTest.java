@@ -130,6 +130,8 @@ class CalcCommandTest {
         // Sorting on gains alone, derived from its two mean inequalities (m10 <= mu1, m01 <= mu0):
         // [p mu1 + (1-p) a - mu0, mu1 - (1-p) mu0 - p a] = [0.248 - 0.48, 0.62 - 0.288]. No paper checked.
         expected.put("sorting-on-gains", new double[] {-0.232, 0.332});
+        // Missing at random (Rubin 1976) concerns pending outcomes only; with none it restricts nothing: the worst case.
+        expected.put("missing-at-random", new double[] {-0.44, 0.56});
 
         JsonNode bounds = JSON.readTree(r.out()).get("bounds");
         assertEquals(expected.size(), bounds.size());

@@ -140,6 +140,8 @@ class WebServerTest {
                 .contains("bracket_ate_sign{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
                 .contains("bracket_assumptions_refuted{assumptions=\"worst-case\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
                 .contains("bracket_arm_units{arm=\"treated\",study=\"rollout-a\",window=\"cumulative\"} 400.0")
+                // No exposures reported: nothing pending.
+                .contains("bracket_arm_pending_ratio{arm=\"treated\",study=\"rollout-a\",window=\"cumulative\"} 0.0")
                 .contains("bracket_report_timestamp_seconds{study=\"rollout-a\",window=\"cumulative\"} " + (double) T0.getEpochSecond())
                 .contains("bracket_events_accepted_total{topic=\"outcomes\"} 7.0");
         for (ConfidenceBand band : LATEST.get("rollout-a", "cumulative").orElseThrow().report().rows().get(0).bands()) {

@@ -18,6 +18,11 @@ public final class ScenarioOptions {
             description = "Fixes hosts, picks and outcomes; the same seed gives the same events (default: ${DEFAULT-VALUE}).")
     long seed;
 
+    /** The --seed value, for scenarios other than the rollout. */
+    public long seed() {
+        return seed;
+    }
+
     /**
      * The settings these options describe with the given rest; a value out of range is reported as
      * a usage error of the command, naming the flag.

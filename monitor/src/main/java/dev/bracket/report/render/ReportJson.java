@@ -1,5 +1,7 @@
 package dev.bracket.report.render;
 
+import dev.bracket.report.PendingOutcomes;
+
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
@@ -57,20 +59,29 @@ public final class ReportJson {
         o.set("treated", arm(report.pooled().treated()));
         o.set("control", arm(report.pooled().control()));
         number(o, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
+        o.put("exposuresReported", PendingOutcomes.exposuresReported(report.pooled()));
+        o.put("pendingNote", PendingOutcomes.note(report.pooled()));
         return o;
     }
 
-    /** One arm: n, mean and sd (null where they do not exist). */
+    /**
+     * One arm: n (units with an outcome), mean and sd of those outcomes (null where they do not
+     * exist), exposed units, pending units and their share of the arm's units.
+     */
     public static ObjectNode arm(ArmStatistics s) {
         ObjectNode o = MAPPER.createObjectNode();
         o.put("n", s.count());
         number(o, "mean", s.isEmpty() ? Double.NaN : s.mean());
         number(o, "sd", s.count() < 2 ? Double.NaN : s.sd());
+        o.put("exposed", s.exposed());
+        o.put("pending", s.pending());
+        number(o, "pendingShare", s.units() == 0 ? Double.NaN : (double) s.pending() / s.units());
+        o.put("excessOutcomes", s.excessOutcomes());
         return o;
     }
 
     /**
-     * One row: assumptions, meaning, the instrument assumption (null when the data have no
+     * One row: assumptions, meaning, what it assumes about pending outcomes, the instrument assumption (null when the data have no
      * instrument levels), status, interval, width, sign, per-stratum intervals and any confidence bands.
      */
     public static ObjectNode row(BoundRow row, boolean instrumentLevels) {
@@ -78,6 +89,7 @@ public final class ReportJson {
         ArrayNode ids = o.putArray("assumptions");
         row.assumptions().ids().forEach(ids::add);
         o.put("meaning", row.assumptions().meaning());
+        o.put("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
         if (instrumentLevels) {
             o.put("instrument", row.assumptions().instrument().id());
         } else {

@@ -1,5 +1,7 @@
 package dev.bracket.report.render;
 
+import dev.bracket.report.PendingOutcomes;
+
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
@@ -54,6 +56,7 @@ public final class ReportTable {
         for (BoundRow row : report.rows()) {
             out.append(String.format(Locale.ROOT, "%s: %s%n", row.assumptions(), row.assumptions().meaning()));
         }
+        out.append(PendingOutcomes.note(report.pooled())).append(System.lineSeparator());
         if (instrumentLevels) {
             report.rows().stream().map(r -> r.assumptions().instrument()).distinct().forEach(i ->
                     out.append(String.format(Locale.ROOT, "instrument %s: %s%n", i.id(), i.meaning())));
@@ -113,8 +116,9 @@ public final class ReportTable {
     }
 
     private static String armLine(String name, ArmStatistics s) {
-        return String.format(Locale.ROOT, "  %-8s n=%d%s%n", name, s.count(),
-                s.isEmpty() ? "" : ", mean=" + num(s.mean()) + (s.m2() > 0 ? ", sd=" + num(s.sd()) : ""));
+        return String.format(Locale.ROOT, "  %-8s n=%d%s%s%n", name, s.count(),
+                s.isEmpty() ? "" : ", mean=" + num(s.mean()) + (s.m2() > 0 ? ", sd=" + num(s.sd()) : ""),
+                s.exposed() == 0 ? "" : ", pending=" + s.pending() + " of " + s.units() + " exposed");
     }
 
     /** Six significant decimals, without trailing noise. */

@@ -14,6 +14,7 @@ final class ArmAccumulator {
     private double m2;
     private double min = Double.NaN;
     private double max = Double.NaN;
+    private long exposed;
 
     void add(double y) {
         long n = count + 1;
@@ -26,15 +27,20 @@ final class ArmAccumulator {
         count = n;
     }
 
+    void addExposure() {
+        exposed++;
+    }
+
     void set(ArmStatistics s) {
         count = s.count();
         mean = s.mean();
         m2 = s.m2();
         min = s.min();
         max = s.max();
+        exposed = s.exposed();
     }
 
     ArmStatistics snapshot() {
-        return count == 0 ? ArmStatistics.empty() : new ArmStatistics(count, mean, m2, min, max);
+        return count == 0 ? ArmStatistics.empty().withExposures(exposed) : new ArmStatistics(count, mean, m2, min, max, exposed);
     }
 }

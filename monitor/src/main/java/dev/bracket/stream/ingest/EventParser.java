@@ -32,11 +32,23 @@ import java.util.Map;
  * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
  * {@code unit} and {@code id} strings or numbers. One parser per thread.
  *
+ * <p>Exposure events: {@code "kind": "exposure"} says a unit entered the study in an arm
+ * (study, unit, treated, time; no outcome, any outcome field is ignored). {@code "kind": "outcome"}
+ * or no {@code kind} is an outcome event as before. An outcome event may carry
+ * {@code "exposed"}: when its unit was exposed (epoch milliseconds or ISO-8601, like time), so
+ * windows count the outcome in the window of its exposure; without it the outcome counts in the
+ * window of its own time. The names {@code kind} and {@code exposed} are fixed (not mapped).
+ *
  * <p>Events of the usual shape are read by {@link FlatEventScanner} straight from the bytes;
  * the others by Jackson's streaming parser (no tree, no data binding), whose messages name
  * what is wrong.
  */
 public final class EventParser {
+
+    /** Field saying what an event reports: {@code exposure} or {@code outcome} (the default). */
+    public static final String KIND_FIELD = "kind";
+    /** Optional field of an outcome event: when its unit was exposed. */
+    public static final String EXPOSED_FIELD = "exposed";
 
     // FastDoubleParser rounds exactly like Double.parseDouble, only faster.
     private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER).build();
@@ -202,6 +214,42 @@ public final class EventParser {
                     continue;
                 }
                 e.instrument = text(p);
+            } else if (name.equals(KIND_FIELD)) {
+                if (t != JsonToken.VALUE_STRING) {
+                    skipWrong(p, e, KIND_FIELD, "\"exposure\" or \"outcome\"", t);
+                    continue;
+                }
+                String kind = p.getText();
+                if (!"exposure".equals(kind) && !"outcome".equals(kind)) {
+                    firstProblem(e, RejectReason.WRONG_TYPE, "field '" + KIND_FIELD + "' must be \"exposure\" or \"outcome\", was '"
+                            + clip(kind) + "'");
+                    continue;
+                }
+                e.exposure = kind.equals("exposure");
+            } else if (name.equals(EXPOSED_FIELD)) {
+                if (t != JsonToken.VALUE_NUMBER_INT && t != JsonToken.VALUE_STRING) {
+                    skipWrong(p, e, EXPOSED_FIELD, "epoch milliseconds or an ISO-8601 string", t);
+                    continue;
+                }
+                if (t == JsonToken.VALUE_NUMBER_INT
+                        && (p.getNumberType() == JsonParser.NumberType.BIG_INTEGER || !IsoTime.representable(p.getLongValue()))) {
+                    firstProblem(e, RejectReason.TIME_UNREPRESENTABLE, "field '" + EXPOSED_FIELD + "' is no representable time: '"
+                            + clip(p.getText()) + "'");
+                    continue;
+                }
+                long parsed = t == JsonToken.VALUE_NUMBER_INT ? p.getLongValue()
+                        : IsoTime.parseMillis(p.getTextCharacters(), p.getTextOffset(), p.getTextLength());
+                if (parsed == IsoTime.UNREPRESENTABLE) {
+                    firstProblem(e, RejectReason.TIME_UNREPRESENTABLE, "field '" + EXPOSED_FIELD + "' is no representable time: '"
+                            + clip(p.getText()) + "'");
+                    continue;
+                }
+                if (parsed == IsoTime.INVALID) {
+                    firstProblem(e, RejectReason.WRONG_TYPE, "field '" + EXPOSED_FIELD
+                            + "' must be epoch milliseconds or an ISO-8601 time like 2025-01-31T12:00:00Z, was '" + clip(p.getText()) + "'");
+                    continue;
+                }
+                e.exposedTime = parsed;
             } else if (name.equals(fields.id())) {
                 if (t != JsonToken.VALUE_STRING && t != JsonToken.VALUE_NUMBER_INT) {
                     skipWrong(p, e, fields.id(), "a string or whole number", t);
@@ -235,7 +283,7 @@ public final class EventParser {
         if (!hasTreated) {
             return attribute(missing(e, fields.treated()), studyId);
         }
-        if (!hasOutcome) {
+        if (!hasOutcome && !e.exposure) {
             return attribute(missing(e, fields.outcome()), studyId);
         }
         Integer index = studyIndex.get(studyId);
@@ -246,11 +294,13 @@ public final class EventParser {
         e.study = study;
         e.studyIndex = index;
         OutcomeRange range = study.range();
-        if (!range.contains(e.outcome)) {
+        if (e.exposure) {
+            e.outcome = Double.NaN; // an exposure has no outcome yet
+        } else if (!range.contains(e.outcome)) {
             return e.reject(RejectReason.OUT_OF_RANGE, "outcome " + e.outcome + " lies outside [" + range.min() + ", "
                     + range.max() + "] declared for study '" + study.id() + "'");
         }
-        if (!range.admits(e.outcome)) {
+        if (!e.exposure && !range.admits(e.outcome)) {
             return e.reject(RejectReason.NOT_BINARY, "outcome " + e.outcome + " is neither " + range.min() + " nor " + range.max()
                     + ", the two values of the binary outcome declared for study '" + study.id() + "'");
         }

@@ -39,6 +39,9 @@ final class FlatEventScanner {
     private static final int STRATUM = 5;
     private static final int INSTRUMENT = 6;
     private static final int ID = 7;
+    // Exposure fields: events carrying them take the Jackson path.
+    private static final int KIND = 8;
+    private static final int EXPOSED = 9;
 
     // Value kinds.
     private static final int STRING = 0;
@@ -67,7 +70,7 @@ final class FlatEventScanner {
     FlatEventScanner(FieldMapping fields, TextCache texts) {
         this.texts = texts;
         String[] ordered = {fields.study(), fields.unit(), fields.treated(), fields.outcome(), fields.time(),
-                fields.stratum(), fields.instrument(), fields.id()};
+                fields.stratum(), fields.instrument(), fields.id(), EventParser.KIND_FIELD, EventParser.EXPOSED_FIELD};
         names = new byte[ordered.length][];
         for (int i = 0; i < ordered.length; i++) {
             names[i] = ordered[i].getBytes(StandardCharsets.UTF_8);
@@ -191,6 +194,9 @@ final class FlatEventScanner {
             }
             case ID -> {
                 return kind == STRING || kind == INT;
+            }
+            case KIND, EXPOSED -> {
+                return false;
             }
             default -> {
                 // a field the mapping does not name: any plain value is skipped

@@ -14,6 +14,11 @@ final class PaneAccumulator {
         dirty = true;
     }
 
+    void addExposure(boolean isTreated) {
+        (isTreated ? treated : control).addExposure();
+        dirty = true;
+    }
+
     void set(ObservedArms arms) {
         treated.set(arms.treated());
         control.set(arms.control());

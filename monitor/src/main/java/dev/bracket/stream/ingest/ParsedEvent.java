@@ -12,7 +12,9 @@ public final class ParsedEvent {
     int studyIndex;
     boolean treated;
     double outcome;
+    boolean exposure;
     long time;
+    long exposedTime;
     String stratum;
     String instrument;
     RejectReason rejection;
@@ -40,6 +42,19 @@ public final class ParsedEvent {
 
     public double outcome() {
         return outcome;
+    }
+
+    /** True for an exposure event (a unit entered an arm; no outcome), false for an outcome event. */
+    public boolean isExposure() {
+        return exposure;
+    }
+
+    /**
+     * For an outcome event, when its unit was exposed (epoch milliseconds), if the event says so;
+     * {@link Long#MIN_VALUE} otherwise. Windows place the outcome by this time when present.
+     */
+    public long exposedTime() {
+        return exposedTime;
     }
 
     /** Event time in epoch milliseconds (the record timestamp when the event has none). */
@@ -76,7 +91,9 @@ public final class ParsedEvent {
         studyIndex = -1;
         treated = false;
         outcome = Double.NaN;
+        exposure = false;
         time = Long.MIN_VALUE;
+        exposedTime = Long.MIN_VALUE;
         stratum = null;
         instrument = null;
         rejection = null;

@@ -4,6 +4,7 @@ import dev.bracket.bounds.ObservedArms;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 
+import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.HashMap;
@@ -67,13 +68,17 @@ public final class PartitionState {
         return source;
     }
 
-    /** Folds a usable event into its panes, one per window. */
+    /**
+     * Folds a usable event into its panes, one per window: an exposure counts a unit in its arm,
+     * an outcome adds to the arm's statistics. An outcome carrying its exposure time is placed in
+     * the panes of that time (the unit's window), otherwise in those of its own time.
+     */
     public void add(ParsedEvent e) {
-        long t = e.time();
-        if (t > streamTime) {
-            streamTime = t;
+        if (e.time() > streamTime) {
+            streamTime = e.time(); // stream time follows the events' own times, whatever window they count in
             progressDirty = true;
         }
+        long t = e.exposedTime() != Long.MIN_VALUE ? e.exposedTime() : e.time();
         String study = e.study().id();
         for (int w = 0; w < windows.length; w++) {
             long pane = WindowSpec.paneStart(t, paneMillis[w]);
@@ -83,7 +88,21 @@ public final class PartitionState {
                 onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            pane(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
+            fold(pane(study, e.stratum(), e.instrument(), windows[w].name(), pane), e);
+        }
+        Duration horizon = e.study().followUp();
+        if (horizon != null && (e.isExposure() || e.exposedTime() != Long.MIN_VALUE)) {
+            // Follow-up panes: by exposure-time bucket, never late, never evicted (see FollowUpPanes).
+            fold(pane(study, e.stratum(), e.instrument(), FollowUpPanes.WINDOW,
+                    WindowSpec.paneStart(t, FollowUpPanes.bucketMillis(horizon))), e);
+        }
+    }
+
+    private static void fold(PaneAccumulator pane, ParsedEvent e) {
+        if (e.isExposure()) {
+            pane.addExposure(e.treated());
+        } else {
+            pane.add(e.treated(), e.outcome());
         }
     }
 

@@ -41,6 +41,18 @@ public final class ReportDocument {
             o.put("windowEnd", Instant.ofEpochMilli(r.end()).toString());
         }
         o.put("lateEvents", r.lateEvents());
+        if (r.lost() == null) {
+            o.putNull("lostToFollowUp");
+        } else {
+            ObjectNode lost = o.putObject("lostToFollowUp");
+            lost.put("horizon", r.lost().horizon().toString());
+            lost.put("treated", r.lost().treated());
+            lost.put("control", r.lost().control());
+            long treatedUnits = r.report().pooled().treated().units();
+            long controlUnits = r.report().pooled().control().units();
+            ReportJson.number(lost, "treatedShare", treatedUnits == 0 ? Double.NaN : (double) r.lost().treated() / treatedUnits);
+            ReportJson.number(lost, "controlShare", controlUnits == 0 ? Double.NaN : (double) r.lost().control() / controlUnits);
+        }
         o.put("revision", revision);
         if (computedAt != null) {
             o.put("computedAt", computedAt.toString());

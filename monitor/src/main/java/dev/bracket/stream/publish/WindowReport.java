@@ -11,8 +11,10 @@ import dev.bracket.report.StudyReport;
  * @param start      first event time in the window (inclusive, epoch millis); {@link Long#MIN_VALUE} for cumulative
  * @param end        end of the window (exclusive); {@link Long#MAX_VALUE} for cumulative
  * @param lateEvents events that arrived after the window had closed (grace included) and were left out
+ * @param lost       units lost to follow-up, for the cumulative window of a study with a follow-up horizon; else null
  */
-public record WindowReport(StudyConfig study, WindowSpec window, long start, long end, StudyReport report, long lateEvents) {
+public record WindowReport(StudyConfig study, WindowSpec window, long start, long end, StudyReport report, long lateEvents,
+                           LostToFollowUp lost) {
 
     /**
      * The study's report for the window that holds the current watermark: the whole stream for
@@ -39,6 +41,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         long from = cumulative ? Long.MIN_VALUE : end - window.size().toMillis();
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
                 study.range(), study.assumptions(), bands);
-        return new WindowReport(study, window, from, to, report, partials.late(study.id(), window.name()));
+        LostToFollowUp lost = study.followUp() != null && cumulative ? LostToFollowUp.at(study.id(), study.followUp(), partials) : null;
+        return new WindowReport(study, window, from, to, report, partials.late(study.id(), window.name()), lost);
     }
 }

@@ -23,7 +23,7 @@ import java.util.Map;
  *
  * <pre>
  * key   ["cell", topic, partition, study, stratum, level, window, paneStart]
- * value {"treated": {"n", "mean", "m2", "min", "max"}, "control": {...}}
+ * value {"treated": {"n", "mean", "m2", "min", "max"[, "exposed"]}, "control": {...}}  ("exposed" absent = 0)
  * key   ["progress", topic, partition]
  * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}],
  *        "traffic": [{"study", "accepted", "rejected", "outOfRange"}], "unattributed": n}
@@ -157,15 +157,20 @@ public final class PartialsCodec {
         o.put("m2", s.m2());
         putNumber(o, "min", s.min());
         putNumber(o, "max", s.max());
+        if (s.exposed() > 0) {
+            o.put("exposed", s.exposed()); // absent in partials written before exposures existed: read as 0
+        }
         return o;
     }
 
     private static ArmStatistics arm(JsonNode o) {
         long n = o.get("n").asLong();
+        long exposed = o.has("exposed") ? o.get("exposed").asLong() : 0;
         if (n == 0) {
-            return ArmStatistics.empty();
+            return ArmStatistics.empty().withExposures(exposed);
         }
-        return new ArmStatistics(n, o.get("mean").asDouble(), o.get("m2").asDouble(), number(o.get("min")), number(o.get("max")));
+        return new ArmStatistics(n, o.get("mean").asDouble(), o.get("m2").asDouble(), number(o.get("min")), number(o.get("max")),
+                exposed);
     }
 
     private static void putNumber(ObjectNode o, String field, double v) {

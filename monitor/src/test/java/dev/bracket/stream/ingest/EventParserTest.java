@@ -2,6 +2,7 @@ package dev.bracket.stream.ingest;
 
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
+import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -26,6 +27,31 @@ class EventParserTest {
 
     private ParsedEvent parse(String json) {
         return parser.parse(json.getBytes(StandardCharsets.UTF_8), RECORD_TIME);
+    }
+
+    @Test
+    @DisplayName("an exposure event needs no outcome, also for a binary outcome; a bad kind or exposed time names its study")
+    void exposureEvents() {
+        EventParser binary = new EventParser(List.of(new StudyConfig("registry",
+                new OutcomeRange(0, 1, Direction.HIGHER, OutcomeKind.BINARY), AssumptionSet.eachSingle())),
+                FieldMapping.DEFAULT, 512, Duration.ofHours(1));
+        ParsedEvent exposure = binary.parse("{\"kind\":\"exposure\",\"study\":\"registry\",\"unit\":\"p1\",\"treated\":true,\"time\":1000}"
+                .getBytes(StandardCharsets.UTF_8), RECORD_TIME);
+        assertThat(exposure.isUsable()).as(exposure.detail()).isTrue();
+        assertThat(exposure.isExposure()).isTrue();
+        ParsedEvent outcome = binary.parse("{\"study\":\"registry\",\"unit\":\"p1\",\"treated\":true,\"outcome\":1,\"exposed\":\"1970-01-01T00:00:01Z\"}"
+                .getBytes(StandardCharsets.UTF_8), RECORD_TIME);
+        assertThat(outcome.isUsable()).as(outcome.detail()).isTrue();
+        assertThat(outcome.exposedTime()).isEqualTo(1000L);
+        ParsedEvent badKind = parse("{\"kind\":\"visit\",\"study\":\"checkout\",\"unit\":\"u\",\"treated\":true}");
+        assertThat(badKind.rejection()).isEqualTo(RejectReason.WRONG_TYPE);
+        assertThat(badKind.study().id()).isEqualTo("checkout");
+        ParsedEvent nestedKind = parse("{\"kind\":{\"a\":1},\"study\":\"checkout\",\"unit\":\"u\",\"treated\":true,\"outcome\":0}");
+        assertThat(nestedKind.rejection()).isEqualTo(RejectReason.WRONG_TYPE);
+        assertThat(nestedKind.study().id()).isEqualTo("checkout");
+        ParsedEvent hugeExposed = parse("{\"study\":\"checkout\",\"unit\":\"u\",\"treated\":true,\"outcome\":0,\"exposed\":123456789012345678901234}");
+        assertThat(hugeExposed.rejection()).isEqualTo(RejectReason.TIME_UNREPRESENTABLE);
+        assertThat(hugeExposed.study().id()).isEqualTo("checkout");
     }
 
     @Test

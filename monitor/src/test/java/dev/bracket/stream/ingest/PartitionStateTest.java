@@ -18,6 +18,7 @@ import java.nio.charset.StandardCharsets;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Map;
 import java.util.Locale;
 import java.util.Random;
 
@@ -197,5 +198,31 @@ class PartitionStateTest {
         }
         assertThat(copy.panes()).isEqualTo(original.panes());
         assertThat(copy.progress()).isEqualTo(original.progress());
+    }
+
+    @Test
+    @DisplayName("an outcome carrying its exposure time counts in the exposure's pane; without it, in its own")
+    void outcomesFollowTheirExposureTime() {
+        PartitionState s = state(0);
+        String exposure = "{\"kind\":\"exposure\",\"study\":\"s\",\"unit\":\"u1\",\"treated\":true,\"time\":1000}";
+        String withExposed = "{\"study\":\"s\",\"unit\":\"u1\",\"treated\":true,\"outcome\":4,\"time\":61000,\"exposed\":1000}";
+        String withoutExposed = "{\"study\":\"s\",\"unit\":\"u2\",\"treated\":true,\"outcome\":6,\"time\":62000}";
+        for (String json : List.of(exposure, withExposed, withoutExposed)) {
+            ParsedEvent e = parser.parse(json.getBytes(StandardCharsets.UTF_8), 0);
+            assertThat(e.isUsable()).as(e.detail()).isTrue();
+            s.add(e);
+        }
+        Map<PaneKey, ObservedArms> cells = s.panes();
+        ObservedArms firstMinute = cells.get(new PaneKey("s", "", "", "minute", 0));
+        ObservedArms secondMinute = cells.get(new PaneKey("s", "", "", "minute", 60_000));
+        assertThat(firstMinute.treated().exposed()).isEqualTo(1);
+        assertThat(firstMinute.treated().count()).isEqualTo(1);
+        assertThat(firstMinute.treated().mean()).isEqualTo(4.0);
+        assertThat(firstMinute.pending()).isZero();
+        assertThat(secondMinute.treated().count()).isEqualTo(1);
+        assertThat(secondMinute.treated().exposed()).isZero();
+        ObservedArms cumulative = cells.get(new PaneKey("s", "", "", "cumulative", 0));
+        assertThat(cumulative.treated().count()).isEqualTo(2);
+        assertThat(cumulative.treated().excessOutcomes()).isEqualTo(1);
     }
 }

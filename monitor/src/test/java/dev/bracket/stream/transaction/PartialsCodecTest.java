@@ -51,6 +51,23 @@ class PartialsCodecTest {
     }
 
     @Test
+    @DisplayName("exposure counts round-trip; a partial written before exposures existed reads as no exposures")
+    void exposuresRoundTripAndOldPartialsStayReadable() {
+        SourcePartition src = new SourcePartition("events", 0);
+        PaneKey key = new PaneKey("registry", "", "", "cumulative", 0);
+        ObservedArms arms = new ObservedArms(ArmStatistics.of(1, 0).withExposures(5), ArmStatistics.empty().withExposures(3));
+        PartialsCodec.decode(PartialsCodec.paneKey(src, key), PartialsCodec.paneValue(arms), sink);
+        assertThat(seen.get(0)[2]).isEqualTo(arms);
+        byte[] old = "{\"treated\":{\"n\":2,\"mean\":0.5,\"m2\":0.5,\"min\":0.0,\"max\":1.0},\"control\":{\"n\":0,\"mean\":0.0,\"m2\":0.0,\"min\":null,\"max\":null}}"
+                .getBytes(java.nio.charset.StandardCharsets.UTF_8);
+        PartialsCodec.decode(PartialsCodec.paneKey(src, key), old, sink);
+        ObservedArms back = (ObservedArms) seen.get(1)[2];
+        assertThat(back.treated().exposed()).isZero();
+        assertThat(back.pending()).isZero();
+        assertThat(back.treated().count()).isEqualTo(2);
+    }
+
+    @Test
     @DisplayName("a null value deletes a cell; progress keeps stream time, late counts, traffic and unattributed records")
     void tombstonesAndProgress() {
         SourcePartition src = new SourcePartition("t", 0);
