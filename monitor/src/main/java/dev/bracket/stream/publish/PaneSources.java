@@ -13,8 +13,8 @@ import java.util.Arrays;
  */
 final class PaneSources {
 
-    /** Per source: treated count, mean, m2, min, max, then the same for control. */
-    private static final int FIELDS = 10;
+    /** Per source: treated count, mean, m2, min, max, exposed, then the same for control. */
+    private static final int FIELDS = 12;
 
     /** The sources in the order of {@link #stats}: the one source itself (the usual case, no array), else an array. */
     private Object sources;
@@ -91,10 +91,15 @@ final class PaneSources {
         stats[at + 2] = a.m2();
         stats[at + 3] = a.min();
         stats[at + 4] = a.max();
+        stats[at + 5] = a.exposed();
     }
 
     private ArmStatistics arm(int at) {
         long n = (long) stats[at];
-        return n == 0 ? ArmStatistics.empty() : new ArmStatistics(n, stats[at + 1], stats[at + 2], stats[at + 3], stats[at + 4]);
+        long exposed = (long) stats[at + 5];
+        // an arm with exposures but no outcome yet still counts its pending units
+        return n == 0
+                ? ArmStatistics.empty().withExposures(exposed)
+                : new ArmStatistics(n, stats[at + 1], stats[at + 2], stats[at + 3], stats[at + 4], exposed);
     }
 }

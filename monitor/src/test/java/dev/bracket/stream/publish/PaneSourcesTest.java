@@ -59,4 +59,37 @@ class PaneSourcesTest {
         assertThat(pane.remove(src[3])).as("last source gone").isTrue();
         assertThat(pane.sum()).isEqualTo(ObservedArms.empty());
     }
+
+    @Test
+    @DisplayName("exposures survive packing: the sum's exposed units are those of the sources still held, outcome-less arms included")
+    void exposuresOfHeldSources() {
+        SourcePartition a = new SourcePartition("in", 0);
+        SourcePartition b = new SourcePartition("in", 1);
+        SourcePartition c = new SourcePartition("in", 2);
+        double[] treatedA = {0.2, 0.9, 0.4};
+        // Source a: 3 outcomes of 7 exposed treated units; 5 control units exposed, none observed yet.
+        PaneSources pane = new PaneSources(a, new ObservedArms(
+                ArmStatistics.of(treatedA).withExposures(7), ArmStatistics.empty().withExposures(5)));
+        // Source b: only exposures so far, in both arms.
+        pane.put(b, new ObservedArms(ArmStatistics.empty().withExposures(4), ArmStatistics.empty().withExposures(2)));
+        // Source c: outcomes without exposure events (a producer that reports outcomes only).
+        pane.put(c, new ObservedArms(ArmStatistics.of(0.5), ArmStatistics.of(0.1, 0.3)));
+        // Source b writes a newer cumulative value: two more treated exposures.
+        pane.put(b, new ObservedArms(ArmStatistics.empty().withExposures(6), ArmStatistics.empty().withExposures(2)));
+
+        ObservedArms sum = pane.sum();
+        assertThat(sum.treated().exposed()).isEqualTo(7 + 6);
+        assertThat(sum.control().exposed()).isEqualTo(5 + 2);
+        assertThat(sum.treated().count()).isEqualTo(3 + 1);
+        assertThat(sum.treated().pending()).as("13 exposed, 4 outcomes").isEqualTo(9);
+
+        assertThat(pane.remove(a)).isFalse();
+        sum = pane.sum();
+        assertThat(sum.treated().exposed()).isEqualTo(6);
+        assertThat(sum.control().exposed()).isEqualTo(2);
+        assertThat(sum.control().count()).isEqualTo(2);
+        assertThat(pane.remove(c)).isFalse();
+        assertThat(pane.sum()).as("only b's outcome-less exposures left")
+                .isEqualTo(new ObservedArms(ArmStatistics.empty().withExposures(6), ArmStatistics.empty().withExposures(2)));
+    }
 }
