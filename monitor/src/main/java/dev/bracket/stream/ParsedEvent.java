@@ -15,6 +15,7 @@ public final class ParsedEvent {
     long time;
     String stratum;
     String instrument;
+    String id;
     RejectReason rejection;
     String detail;
 
@@ -57,6 +58,11 @@ public final class ParsedEvent {
         return instrument;
     }
 
+    /** The event's own identifier as text (a number as written), or null when it has none. */
+    public String id() {
+        return id;
+    }
+
     /** Null for a usable event. */
     public RejectReason rejection() {
         return rejection;
@@ -79,6 +85,7 @@ public final class ParsedEvent {
         time = Long.MIN_VALUE;
         stratum = null;
         instrument = null;
+        id = null;
         rejection = null;
         detail = null;
     }
