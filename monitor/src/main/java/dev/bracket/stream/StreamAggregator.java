@@ -2,7 +2,6 @@ package dev.bracket.stream;
 
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
-import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.binder.kafka.KafkaClientMetrics;
 import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
@@ -20,7 +19,6 @@ import org.slf4j.LoggerFactory;
 
 import java.time.Duration;
 import java.util.ArrayList;
-import java.util.Arrays;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.HashSet;
@@ -35,7 +33,8 @@ import java.util.concurrent.CountDownLatch;
  * cumulative statistics to the partials topic and commits the input offsets in the same Kafka
  * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
  * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
- * transactions.
+ * transactions. Event counts (meters, the progress line, data quality) are kept per transaction
+ * ({@link CommittedCounts}) and shown only once it commits.
  *
  * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
  * or not at all. On assignment a partition's cells are rebuilt from the committed partials and
@@ -57,10 +56,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private volatile int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final RejectedCopies rejectedCopies;
-    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per poll. */
-    private final long[][] studyCounts;
-    /** Rejected records without a readable study, per poll. */
-    private long unattributed;
+    /** The open transaction's event counts: shown (meters, listener) when it commits, dropped when it aborts. */
+    private final CommittedCounts counts;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
@@ -84,7 +81,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /**
      * @param member      this member's number within the instance (0 for the first); part of its transactional id
-     * @param eventCounts told each poll's per-study event counts (alerts on stalls and data quality)
+     * @param eventCounts told each committed transaction's per-study event counts (alerts on stalls and data quality)
      */
     public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member,
                             StudyEventCounts eventCounts) {
@@ -94,7 +91,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
         this.member = member;
-        this.studyCounts = new long[config.studies().size()][3];
+        this.counts = new CommittedCounts(config.studies());
         this.rejectedCopies = new RejectedCopies(config.topics().rejected(), RejectedCopies.limit(config.kafka()));
         for (InputTopic in : config.inputs()) {
             parsers.put(in.topic(), EventParser.forInput(config, in.fields()));
@@ -173,25 +170,16 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 continue; // not ours any more
             }
             EventParser parser = parsers.get(tp.topic());
-            Counter accepted = metrics.accepted(tp.topic());
             long next = -1;
-            int used = 0;
             currentPartition = tp;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 currentOffset = r.offset();
                 ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
-                int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
-                    used++;
-                    studyCounts[study][0]++;
+                    counts.accepted(tp.topic(), e.studyIndex());
                 } else {
-                    if (study >= 0) {
-                        studyCounts[study][1]++;
-                        studyCounts[study][2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
-                    } else {
-                        unattributed++;
-                    }
+                    counts.rejected(tp.topic(), e.rejection(), e.studyIndex());
                     reject(r, e);
                 }
                 next = r.offset() + 1;
@@ -199,18 +187,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
             }
-            accepted.increment(used);
-        }
-        for (int i = 0; i < studyCounts.length; i++) {
-            long[] c = studyCounts[i];
-            if (c[0] + c[1] > 0) {
-                eventCounts.counted(config.studies().get(i).id(), c[0], c[1], c[2]);
-                Arrays.fill(c, 0);
-            }
-        }
-        if (unattributed > 0) {
-            eventCounts.unattributed(unattributed);
-            unattributed = 0;
         }
     }
 
@@ -223,7 +199,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                         copy.topic(), ex.toString());
             }
         });
-        metrics.rejected(r.topic(), e.rejection());
     }
 
     /** Writes changed partials and commits them with the input offsets in one transaction. */
@@ -266,6 +241,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             upToDateMillis = System.currentTimeMillis();
             metrics.committed();
             metrics.commitTimer().record(Duration.ofNanos(System.nanoTime() - start));
+            counts.publish(metrics, eventCounts);
         } catch (KafkaException | IllegalStateException e) {
             if (e instanceof InterruptException) {
                 throw e;
@@ -289,6 +265,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         LOG.warn("aggregation error (last record read: {}@{}; uncommitted input up to {}), aborting and restarting from the last commit: {}",
                 currentPartition, currentOffset, pendingOffsets, cause.toString());
         metrics.aborted();
+        counts.discard(); // every assigned partition is read again from the last commit
         if (inTransaction) {
             try {
                 producer.abortTransaction();
@@ -305,6 +282,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /** Aborts the open transaction, if any, after an unexpected error; the failure itself is what gets reported. */
     private void abortQuietly() {
+        counts.discard();
         if (inTransaction && producer != null) {
             try {
                 producer.abortTransaction();
@@ -359,7 +337,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         for (TopicPartition tp : set) {
             SourcePartition src = new SourcePartition(tp.topic(), tp.partition());
             PartitionState state = new PartitionState(src, config.windows(), config.grace().toMillis(),
-                    (study, window) -> metrics.late(study.id(), window.name()));
+                    (study, window) -> counts.late(study.id(), window.name()));
             PartialsRestorer.Restored r = restored.get(src);
             r.cells().forEach(state::restoreCell);
             state.restoreProgress(r.progress());
@@ -400,6 +378,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         @Override
         public void onPartitionsLost(Collection<TopicPartition> partitions) {
             // Another member may already own them: write nothing for them, and rebuild the rest.
+            counts.discard();
             if (inTransaction) {
                 try {
                     producer.abortTransaction();

@@ -1,10 +1,11 @@
 package dev.bracket.stream;
 
 /**
- * Told how many events of each study the aggregator read in one poll: accepted, rejected (any
- * reason, when the event names a configured study), and of the rejected those outside the
- * declared outcome range; and, apart, how many rejected records named no study that could be
- * read. Counts are of work done: after an aborted transaction the redone records are counted again.
+ * Told how many events of each study one committed transaction of the aggregator took in:
+ * accepted, rejected (any reason, when the event names a configured study), and of the rejected
+ * those outside the declared outcome range; and, apart, how many rejected records named no study
+ * that could be read. Only committed work is told: an aborted transaction's records are told
+ * once, when the transaction that redoes them commits.
  */
 public interface StudyEventCounts {
 
@@ -20,6 +21,6 @@ public interface StudyEventCounts {
 
     void counted(String study, long accepted, long rejected, long outOfRange);
 
-    /** Rejected records of one poll whose study could not be read (not JSON, no study field, unknown study, too large). */
+    /** Rejected records of one committed transaction whose study could not be read (not JSON, no study field, unknown study, too large). */
     void unattributed(long rejected);
 }

@@ -19,7 +19,7 @@ import static org.awaitility.Awaitility.await;
 
 /**
  * An aggregation member that fails with an unexpected error (here its event-count listener
- * throws after the cells of a poll were added) records the failure, aborts its open
+ * throws, told of its first committed transaction, while later polls' cells may be held) records the failure, aborts its open
  * transaction and commits nothing on its way out, not even when closing its consumer revokes
  * its partitions; a monitor started afterwards counts every event exactly once.
  */
