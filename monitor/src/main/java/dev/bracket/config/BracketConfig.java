@@ -47,6 +47,8 @@ import java.util.regex.Pattern;
  * progress-interval:  how often the monitor prints a progress line
  * max-event-bytes:    larger events are rejected
  * max-clock-skew:     event times further ahead of the record timestamp or the clock are rejected
+ * dedup-horizon:      how long (event time) an event id is remembered to reject a repeat; 0 turns it off
+ * dedup-max-ids:      most event ids remembered per input partition (earliest counted forgotten first)
  * threads:            aggregation group members this instance runs (each its own consumer and transactions)
  * group, instance:    consumer group id; a stable name for this instance (transactional id; default <group>-<host name>)
  * kafka:              client properties passed to every Kafka client verbatim
@@ -67,6 +69,7 @@ public record BracketConfig(
         Duration progressInterval,
         int maxEventBytes,
         Duration maxClockSkew,
+        DedupSettings dedup,
         int threads,
         String group,
         String instance,
@@ -81,7 +84,8 @@ public record BracketConfig(
     private static final int MAX_PARTITIONS = 10_000;
     private static final Pattern NAME = Pattern.compile("[A-Za-z0-9._-]+");
     private static final Set<String> TOP_KEYS = Set.of("studies", "inputs", "topics", "windows", "grace", "band-level", "bands",
-            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew", "threads", "group", "instance", "kafka", "broker",
+            "commit-interval", "publish-interval", "progress-interval", "max-event-bytes", "max-clock-skew",
+            "dedup-horizon", "dedup-max-ids", "threads", "group", "instance", "kafka", "broker",
             "alerts");
 
     public BracketConfig {
@@ -142,6 +146,7 @@ public record BracketConfig(
             throw root.get("max-event-bytes").fail("must be at most 16777216 (16 MiB)");
         }
         Duration skew = positive(root.get("max-clock-skew"), Duration.ofHours(1));
+        DedupSettings dedup = dedup(root);
         Duration commit = positive(root.get("commit-interval"), Duration.ofSeconds(1));
         Duration publish = positive(root.get("publish-interval"), Duration.ofMillis(500));
         Duration progress = positive(root.get("progress-interval"), Duration.ofSeconds(10));
@@ -160,12 +165,26 @@ public record BracketConfig(
         }
         String group = name(root.get("group"), "bracket");
         return new BracketConfig(source, studies, inputs(root.get("inputs")), topics, windows(root.get("windows")), grace,
-                bands, commit, publish, progress, (int) maxBytes, skew, (int) threads,
+                bands, commit, publish, progress, (int) maxBytes, skew, dedup, (int) threads,
                 group,
                 name(root.get("instance"), defaultInstance(group)),
                 kafka(root.get("kafka")),
                 broker.get("data-dir").isMissing() ? defaultBrokerDir() : expandHome(broker.get("data-dir").text()),
                 (int) port, AlertSettings.options(root.get("alerts")));
+    }
+
+    private static DedupSettings dedup(ConfigNode root) {
+        ConfigNode horizon = root.get("dedup-horizon");
+        Duration h = horizon.duration(DedupSettings.DEFAULT.horizon());
+        if (h.isNegative() || h.compareTo(Duration.ofDays(36_500)) > 0) {
+            throw horizon.fail("must be from 0 (deduplication by id off) to 36500d, e.g. 24h");
+        }
+        ConfigNode max = root.get("dedup-max-ids");
+        long n = max.positiveLong(DedupSettings.DEFAULT.maxIds());
+        if (n > 100_000_000) {
+            throw max.fail("must be at most 100000000 (ids are held in memory, about 200 bytes each), was " + n);
+        }
+        return new DedupSettings(h, (int) n);
     }
 
     /** True when no broker is configured and the monitor runs its own. */
@@ -178,7 +197,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, maxClockSkew, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, maxClockSkew, dedup, threads, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */

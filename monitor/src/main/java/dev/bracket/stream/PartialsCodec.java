@@ -21,7 +21,13 @@ import java.util.Map;
  * value {"treated": {"n", "mean", "m2", "min", "max"}, "control": {...}}
  * key   ["progress", topic, partition]
  * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}]}
+ * key   ["seen", topic, partition, study, id]                  (added in format 2: deduplication by id)
+ * value {"t": eventTimeMillis}
  * </pre>
+ *
+ * A "seen" record holds one event id the source partition has counted; {@code null} forgets it.
+ * Readers that do not restore ids (the bound updater) skip them through the sink's default
+ * method; format 1 readers log them as unknown and go on.
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
  * All records of one source partition go to the same partials partition ({@link #partitionFor}),
@@ -36,6 +42,10 @@ public final class PartialsCodec {
         void cell(SourcePartition source, CellKey key, ObservedArms arms);
 
         void progress(SourcePartition source, SourceProgress progress);
+
+        /** An event id the source partition counted at event time {@code time}; null: forgotten. */
+        default void seen(SourcePartition source, SeenIds.Key key, Long time) {
+        }
     }
 
     private PartialsCodec() {
@@ -54,6 +64,15 @@ public final class PartialsCodec {
 
     public static byte[] progressKey(SourcePartition s) {
         return bytes(MAPPER.createArrayNode().add("progress").add(s.topic()).add(s.partition()));
+    }
+
+    public static byte[] seenKey(SourcePartition s, SeenIds.Key k) {
+        return bytes(MAPPER.createArrayNode().add("seen").add(s.topic()).add(s.partition()).add(k.study()).add(k.id()));
+    }
+
+    /** Null (a tombstone) for a forgotten id. */
+    public static byte[] seenValue(Long time) {
+        return time == null ? null : bytes(MAPPER.createObjectNode().put("t", time.longValue()));
     }
 
     public static byte[] cellValue(ObservedArms arms) {
@@ -118,6 +137,8 @@ public final class PartialsCodec {
                     JsonNode t = v.get("streamTime");
                     sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late));
                 }
+                case "seen" -> sink.seen(source, new SeenIds.Key(k.get(3).asText(), k.get(4).asText()),
+                        value == null ? null : MAPPER.readTree(value).get("t").asLong());
                 default -> throw new IllegalArgumentException("unknown partials record kind '" + k.get(0).asText() + "'");
             }
         } catch (IOException | RuntimeException e) {

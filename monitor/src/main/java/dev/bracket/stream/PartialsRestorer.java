@@ -16,6 +16,7 @@ import java.time.Duration;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.HashSet;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
@@ -39,8 +40,8 @@ final class PartialsRestorer implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(PartialsRestorer.class);
     private static final Duration LIMIT = Duration.ofMinutes(5);
 
-    /** One source partition's restored state. */
-    record Restored(Map<CellKey, ObservedArms> cells, SourceProgress progress) {
+    /** One source partition's restored state; {@code seen} in the order the ids were counted. */
+    record Restored(Map<CellKey, ObservedArms> cells, SourceProgress progress, Map<SeenIds.Key, Long> seen) {
     }
 
     private final String topic;
@@ -58,7 +59,11 @@ final class PartialsRestorer implements AutoCloseable {
     Map<SourcePartition, Restored> restore(Collection<SourcePartition> sources) {
         Map<SourcePartition, Map<CellKey, ObservedArms>> cells = new HashMap<>();
         Map<SourcePartition, SourceProgress> progress = new HashMap<>();
-        sources.forEach(s -> cells.put(s, new HashMap<>()));
+        Map<SourcePartition, Map<SeenIds.Key, Long>> seen = new HashMap<>();
+        sources.forEach(s -> {
+            cells.put(s, new HashMap<>());
+            seen.put(s, new LinkedHashMap<>());
+        });
         Set<TopicPartition> tps = new HashSet<>();
         sources.forEach(s -> tps.add(new TopicPartition(topic, PartialsCodec.partitionFor(s, partitions))));
         Map<TopicPartition, Long> highWatermarks = highWatermarks(tps);
@@ -79,6 +84,17 @@ final class PartialsRestorer implements AutoCloseable {
             public void progress(SourcePartition source, SourceProgress p) {
                 if (cells.containsKey(source)) {
                     progress.put(source, p);
+                }
+            }
+
+            @Override
+            public void seen(SourcePartition source, SeenIds.Key key, Long time) {
+                Map<SeenIds.Key, Long> m = seen.get(source);
+                if (m != null) {
+                    m.remove(key); // counted again: it moves to the end, as it did when it was written
+                    if (time != null) {
+                        m.put(key, time);
+                    }
                 }
             }
         };
@@ -102,7 +118,7 @@ final class PartialsRestorer implements AutoCloseable {
             consumer.assign(List.of());
         }
         Map<SourcePartition, Restored> out = new HashMap<>();
-        cells.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE))));
+        cells.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE), seen.get(s))));
         return out;
     }
 

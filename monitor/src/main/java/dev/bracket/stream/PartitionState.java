@@ -167,6 +167,11 @@ public final class PartitionState {
         return out;
     }
 
+    /** The largest event time seen (Long.MIN_VALUE: none yet). */
+    public long streamTime() {
+        return streamTime;
+    }
+
     public SourceProgress progress() {
         return new SourceProgress(streamTime, late);
     }

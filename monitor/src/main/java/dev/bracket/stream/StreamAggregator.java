@@ -34,7 +34,8 @@ import java.util.concurrent.CountDownLatch;
  * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
  * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
  * transactions. Event counts (meters, the progress line, data quality) are kept per transaction
- * ({@link CommittedCounts}) and shown only once it commits.
+ * ({@link CommittedCounts}) and shown only once it commits. Event ids counted ({@link SeenIds},
+ * for rejecting an at-least-once producer's retries) are written in the same transactions.
  *
  * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
  * or not at all. On assignment a partition's cells are rebuilt from the committed partials and
@@ -59,6 +60,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     /** The open transaction's event counts: shown (meters, listener) when it commits, dropped when it aborts. */
     private final CommittedCounts counts;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
+    /** Per assigned partition, the event ids counted (absent when deduplication is off). */
+    private final Map<TopicPartition, SeenIds> seenIds = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     private volatile boolean running = true;
@@ -132,6 +135,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
             closeClients();
             states.clear();
+            seenIds.clear();
             countOwned();
             stopped.countDown();
         }
@@ -170,11 +174,17 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 continue; // not ours any more
             }
             EventParser parser = parsers.get(tp.topic());
+            SeenIds seen = seenIds.get(tp);
             long next = -1;
             currentPartition = tp;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 currentOffset = r.offset();
                 ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
+                if (seen != null && e.isUsable() && e.id() != null
+                        && !seen.firstSighting(e.study().id(), e.id(), e.time(), state.streamTime())) {
+                    e.reject(RejectReason.DUPLICATE, "id '" + clip(e.id()) + "' of study '" + e.study().id()
+                            + "' was already counted within the dedup-horizon");
+                }
                 if (e.isUsable()) {
                     state.add(e);
                     counts.accepted(tp.topic(), e.studyIndex());
@@ -229,6 +239,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                             PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
                 }
             }
+            seenIds.forEach((tp, seen) -> {
+                SourcePartition src = states.get(tp).source();
+                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
+                seen.forgetExpired(states.get(tp).streamTime());
+                seen.forEachChange((key, time) -> producer.send(new ProducerRecord<>(partials, partition,
+                        PartialsCodec.seenKey(src, key), PartialsCodec.seenValue(time))));
+            });
             if (!pendingOffsets.isEmpty()) {
                 Map<TopicPartition, OffsetAndMetadata> offsets = new HashMap<>();
                 pendingOffsets.forEach((tp, next) -> offsets.put(tp, new OffsetAndMetadata(next)));
@@ -237,6 +254,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             producer.commitTransaction();
             inTransaction = false;
             states.values().forEach(PartitionState::markClean);
+            seenIds.values().forEach(SeenIds::markClean);
             pendingOffsets.clear();
             upToDateMillis = System.currentTimeMillis();
             metrics.committed();
@@ -316,10 +334,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /** Drops the given partitions' state and rebuilds it from the partials topic and the committed offsets. */
     private void resetToCommitted(Collection<TopicPartition> partitions) {
-        for (TopicPartition tp : partitions) {
-            states.remove(tp);
-            pendingOffsets.remove(tp);
-        }
+        partitions.forEach(this::drop);
         if (!partitions.isEmpty()) {
             restore(partitions);
         }
@@ -342,6 +357,11 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             r.cells().forEach(state::restoreCell);
             state.restoreProgress(r.progress());
             states.put(tp, state);
+            if (config.dedup().enabled()) {
+                SeenIds seen = new SeenIds(config.dedup());
+                seen.restore(r.seen());
+                seenIds.put(tp, seen);
+            }
             OffsetAndMetadata at = committed.get(tp);
             if (at != null) {
                 consumer.seek(tp, at);
@@ -360,10 +380,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (!needsReset && failure == null) {
                 commit(); // hands over exactly what was processed
             }
-            partitions.forEach(tp -> {
-                states.remove(tp);
-                pendingOffsets.remove(tp);
-            });
+            partitions.forEach(StreamAggregator.this::drop);
             countOwned();
         }
 
@@ -387,14 +404,22 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 }
                 inTransaction = false;
             }
-            partitions.forEach(tp -> {
-                states.remove(tp);
-                pendingOffsets.remove(tp);
-            });
+            partitions.forEach(StreamAggregator.this::drop);
             needsReset = true;
             countOwned();
             unassigned();
         }
+    }
+
+    /** Forgets a partition's in-memory state (it is rebuilt from the partials topic when assigned again). */
+    private void drop(TopicPartition tp) {
+        states.remove(tp);
+        seenIds.remove(tp);
+        pendingOffsets.remove(tp);
+    }
+
+    private static String clip(String s) {
+        return s.length() <= 80 ? s : s.substring(0, 77) + "...";
     }
 
     private void countOwned() {
