@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
@@ -7,7 +8,9 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.ObservedArms;
 
+import java.io.ByteArrayOutputStream;
 import java.io.IOException;
+import java.nio.charset.StandardCharsets;
 import java.util.HashMap;
 import java.util.Map;
 
@@ -66,13 +69,26 @@ public final class PartialsCodec {
         return bytes(MAPPER.createArrayNode().add("progress").add(s.topic()).add(s.partition()));
     }
 
+    /** Written with the streaming generator, not a tree: one of these goes with every event that has an id. */
     public static byte[] seenKey(SourcePartition s, SeenIds.Key k) {
-        return bytes(MAPPER.createArrayNode().add("seen").add(s.topic()).add(s.partition()).add(k.study()).add(k.id()));
+        ByteArrayOutputStream out = new ByteArrayOutputStream(48 + k.id().length());
+        try (JsonGenerator g = MAPPER.getFactory().createGenerator(out)) {
+            g.writeStartArray();
+            g.writeString("seen");
+            g.writeString(s.topic());
+            g.writeNumber(s.partition());
+            g.writeString(k.study());
+            g.writeString(k.id());
+            g.writeEndArray();
+        } catch (IOException e) {
+            throw new IllegalStateException("cannot encode the key of id " + k, e);
+        }
+        return out.toByteArray();
     }
 
     /** Null (a tombstone) for a forgotten id. */
     public static byte[] seenValue(Long time) {
-        return time == null ? null : bytes(MAPPER.createObjectNode().put("t", time.longValue()));
+        return time == null ? null : ("{\"t\":" + time + "}").getBytes(StandardCharsets.US_ASCII);
     }
 
     public static byte[] cellValue(ObservedArms arms) {
