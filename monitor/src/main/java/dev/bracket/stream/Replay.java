@@ -61,14 +61,19 @@ public final class Replay {
         PartitionState state = new PartitionState(new SourcePartition(name, sources.size()), config.windows(),
                 config.grace().toMillis(), (s, w) -> { });
         sources.add(state);
+        // Each input is deduplicated by id on its own, as the monitor does each input partition.
+        SeenIds seen = config.dedup().enabled() ? new SeenIds(config.dedup()) : null;
         JsonLines lines = new JsonLines(in);
         for (JsonLines.Line line = lines.next(); line != null; line = lines.next()) {
-            accept(state, name, line.number(), line.bytes());
+            accept(state, seen, name, line.number(), line.bytes());
         }
     }
 
-    private void accept(PartitionState state, String name, long lineNo, byte[] bytes) {
+    private void accept(PartitionState state, SeenIds seen, String name, long lineNo, byte[] bytes) {
         ParsedEvent e = parser.parse(bytes, startTime);
+        if (seen != null) {
+            seen.check(e, state.streamTime());
+        }
         if (e.isUsable()) {
             state.add(e);
             accepted++;

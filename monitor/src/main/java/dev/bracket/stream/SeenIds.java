@@ -58,6 +58,20 @@ public final class SeenIds {
         return true;
     }
 
+    /**
+     * Rejects a usable event with an id as {@link RejectReason#DUPLICATE} when its (study, id) was
+     * already counted within the horizon, else remembers it; events without an id pass untouched.
+     *
+     * @param streamTime the partition's stream time before this event
+     */
+    public void check(ParsedEvent e, long streamTime) {
+        if (e.isUsable() && e.id() != null && !firstSighting(e.study().id(), e.id(), e.time(), streamTime)) {
+            String id = e.id().length() <= 80 ? e.id() : e.id().substring(0, 77) + "...";
+            e.reject(RejectReason.DUPLICATE, "id '" + id + "' of study '" + e.study().id()
+                    + "' was already counted within the dedup-horizon");
+        }
+    }
+
     private void forgetBeyondLimit() {
         while (seen.size() > maxIds) {
             Iterator<Map.Entry<Key, Long>> eldest = seen.entrySet().iterator();

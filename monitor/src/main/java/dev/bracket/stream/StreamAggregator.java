@@ -180,10 +180,8 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 currentOffset = r.offset();
                 ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
-                if (seen != null && e.isUsable() && e.id() != null
-                        && !seen.firstSighting(e.study().id(), e.id(), e.time(), state.streamTime())) {
-                    e.reject(RejectReason.DUPLICATE, "id '" + clip(e.id()) + "' of study '" + e.study().id()
-                            + "' was already counted within the dedup-horizon");
+                if (seen != null) {
+                    seen.check(e, state.streamTime());
                 }
                 if (e.isUsable()) {
                     state.add(e);
@@ -416,10 +414,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         states.remove(tp);
         seenIds.remove(tp);
         pendingOffsets.remove(tp);
-    }
-
-    private static String clip(String s) {
-        return s.length() <= 80 ? s : s.substring(0, 77) + "...";
     }
 
     private void countOwned() {
