@@ -5,7 +5,6 @@ import dev.bracket.stream.PartialsCodec;
 import dev.bracket.stream.SeenIds;
 import dev.bracket.stream.SourcePartition;
 
-import java.lang.management.ManagementFactory;
 import java.lang.ref.Reference;
 import java.time.Duration;
 import java.util.Locale;
@@ -68,28 +67,16 @@ public final class DedupBenchmark {
         System.out.printf(Locale.ROOT, "partials records for %,d ids: %,d bytes (%.0f bytes per id, key and value)%n",
                 ids, bytes, (double) bytes / ids);
 
-        long before = usedAfterGc();
+        long before = HeapInUse.afterGc();
         SeenIds held = new SeenIds(settings);
         for (int i = 0; i < ids; i++) {
             held.firstSighting("checkout", names[i], BenchEvents.START + i, BenchEvents.START + i);
         }
         held.markClean();
-        long after = usedAfterGc();
+        long after = HeapInUse.afterGc();
         System.out.printf(Locale.ROOT, "heap: %,d ids held: %,d bytes, %.0f bytes per id (id strings made before the baseline)%n",
                 ids, after - before, (double) (after - before) / ids);
         Reference.reachabilityFence(held);
         Reference.reachabilityFence(names);
-    }
-
-    private static long usedAfterGc() {
-        for (int i = 0; i < 4; i++) {
-            System.gc();
-            try {
-                Thread.sleep(100);
-            } catch (InterruptedException ex) {
-                Thread.currentThread().interrupt();
-            }
-        }
-        return ManagementFactory.getMemoryMXBean().getHeapMemoryUsage().getUsed();
     }
 }

@@ -16,7 +16,6 @@ import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import java.util.concurrent.ConcurrentHashMap;
-import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 import java.util.concurrent.atomic.AtomicReference;
 
@@ -106,15 +105,17 @@ class CountsAfterForcedAbortsTest {
         Thread thread = new Thread(aggregator, "test-aggregator");
         thread.start();
         AtomicReference<Throwable> producerFailure = new AtomicReference<>();
-        Thread producing = new Thread(() -> produce(events, producerFailure), "test-producer");
+        // About 1,500 per second (8 s), so that many fences fall while records are being counted.
+        List<ProducerRecord<byte[], byte[]>> records = events.stream()
+                .map(e -> new ProducerRecord<>("aborts-events", e.key(), e.value())).toList();
+        Thread producing = new Thread(() -> KafkaTestSupport.producePaced(KAFKA.broker(), records, 1_500, producerFailure),
+                "test-producer");
         try {
             producing.start();
-            // Fence the member again and again while the events stream in (about 3 s).
-            int fences = 0;
-            while (producing.isAlive() || fences < 6) {
+            // Fence the member again and again while the events stream in.
+            while (producing.isAlive()) {
                 Thread.sleep(300); // spacing the fences, not waiting for a condition
                 fence(config, clients.transactionalId(0));
-                fences++;
             }
             producing.join();
             assertThat(producerFailure.get()).isNull();
@@ -148,32 +149,6 @@ class CountsAfterForcedAbortsTest {
                 ProducerConfig.TRANSACTIONAL_ID_CONFIG, transactionalId),
                 new ByteArraySerializer(), new ByteArraySerializer())) {
             zombie.initTransactions();
-        }
-    }
-
-    /** Sends the events at about 4,000 per second, so that the fences fall while records are being counted. */
-    private static void produce(List<TestEvents.Event> events, AtomicReference<Throwable> failure) {
-        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
-            long start = System.nanoTime();
-            int n = 0;
-            for (TestEvents.Event e : events) {
-                producer.send(new ProducerRecord<>("aborts-events", e.key(), e.value()), (md, ex) -> {
-                    if (ex != null) {
-                        failure.compareAndSet(null, ex);
-                    }
-                });
-                if (++n % 400 == 0) {
-                    long wait = start + n * 250_000L - System.nanoTime();
-                    if (wait > 0) {
-                        TimeUnit.NANOSECONDS.sleep(wait); // pacing the producer
-                    }
-                }
-            }
-            producer.flush();
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-        } catch (RuntimeException e) {
-            failure.compareAndSet(null, e);
         }
     }
 }

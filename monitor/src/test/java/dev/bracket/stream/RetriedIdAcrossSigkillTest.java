@@ -8,7 +8,6 @@ import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.header.Header;
 import org.junit.jupiter.api.DisplayName;
@@ -105,11 +104,12 @@ class RetriedIdAcrossSigkillTest {
         List<Path> logs = new ArrayList<>();
         Process child = start(config, logs);
         AtomicReference<Throwable> failure = new AtomicReference<>();
-        Thread producing = new Thread(() -> produce(sent, failure), "test-producer");
+        // About 5,000 per second, so that the kill lands mid-stream.
+        Thread producing = new Thread(() -> KafkaTestSupport.producePaced(KAFKA.broker(), sent, 5_000, failure), "test-producer");
         producing.start();
         try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, KAFKA.bootstrapServers()))) {
             long killAt = sent.size() / 2;
-            await().atMost(Duration.ofSeconds(90)).until(() -> committedOffsets(admin) >= killAt);
+            await().atMost(Duration.ofSeconds(180)).until(() -> committedOffsets(admin) >= killAt);
             child.destroyForcibly(); // SIGKILL: no shutdown hook, no final commit
             assertThat(child.waitFor(30, TimeUnit.SECONDS)).isTrue();
             assertThat(child.exitValue()).isEqualTo(137);
@@ -156,31 +156,5 @@ class RetriedIdAcrossSigkillTest {
     private static long committedOffsets(Admin admin) throws Exception {
         return admin.listConsumerGroupOffsets("dedup").partitionsToOffsetAndMetadata().get(30, TimeUnit.SECONDS)
                 .values().stream().filter(java.util.Objects::nonNull).mapToLong(OffsetAndMetadata::offset).sum();
-    }
-
-    /** Sends the records at about 5,000 per second, so that the kill lands mid-stream. */
-    private static void produce(List<ProducerRecord<byte[], byte[]>> records, AtomicReference<Throwable> failure) {
-        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
-            long start = System.nanoTime();
-            int n = 0;
-            for (ProducerRecord<byte[], byte[]> r : records) {
-                producer.send(r, (md, ex) -> {
-                    if (ex != null) {
-                        failure.compareAndSet(null, ex);
-                    }
-                });
-                if (++n % 500 == 0) {
-                    long wait = start + n * 200_000L - System.nanoTime();
-                    if (wait > 0) {
-                        TimeUnit.NANOSECONDS.sleep(wait); // pacing the producer
-                    }
-                }
-            }
-            producer.flush();
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-        } catch (RuntimeException e) {
-            failure.compareAndSet(null, e);
-        }
     }
 }
