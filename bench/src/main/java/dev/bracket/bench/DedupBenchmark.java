@@ -1,9 +1,9 @@
 package dev.bracket.bench;
 
-import dev.bracket.config.DedupSettings;
-import dev.bracket.stream.PartialsCodec;
-import dev.bracket.stream.SeenIds;
-import dev.bracket.stream.SourcePartition;
+import dev.bracket.config.DedupConfig;
+import dev.bracket.stream.transaction.PartialsCodec;
+import dev.bracket.stream.ingest.SeenIds;
+import dev.bracket.stream.ingest.SourcePartition;
 
 import java.lang.ref.Reference;
 import java.time.Duration;
@@ -32,7 +32,7 @@ public final class DedupBenchmark {
     public static void main(String[] args) {
         int ids = args.length > 0 ? Integer.parseInt(args[0]) : 1_000_000;
         int rounds = args.length > 1 ? Integer.parseInt(args[1]) : 5;
-        DedupSettings settings = new DedupSettings(Duration.ofHours(24), ids);
+        DedupConfig settings = new DedupConfig(Duration.ofHours(24), ids);
         SourcePartition source = new SourcePartition("events", 0);
         String[] names = new String[ids];
         for (int i = 0; i < ids; i++) {

@@ -18,7 +18,7 @@ import java.util.Optional;
 import java.util.TreeMap;
 
 /**
- * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
+ * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-row rules are
  * judged on each bound update ({@link #evaluate}); per-study rules on a clock ({@link #tick}),
  * which is injected so tests control time. Pure logic: the transitions it returns go to the sinks
  * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
@@ -49,7 +49,7 @@ public final class AlertEvaluator {
     }
 
     /**
-     * Judges the per-cell rules of the snapshot's study. Nothing is judged (and no state
+     * Judges the per-row rules of the snapshot's study. Nothing is judged (and no state
      * changes) while either arm has fewer than the study's min-per-arm units, the interval
      * lacks data, or the configured band is missing.
      *
@@ -64,8 +64,8 @@ public final class AlertEvaluator {
             return List.of();
         }
         List<AlertTransition> out = new ArrayList<>();
-        for (CellRule rule : config.cellRules()) {
-            AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
+        for (RowRule rule : config.rowRules()) {
+            AlertKey key = AlertKey.perRow(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
             Verdict verdict = rule.judge(snapshot.interval(), band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
             apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
@@ -119,7 +119,7 @@ public final class AlertEvaluator {
     }
 
     /** The time on the evaluator's clock. */
-    Instant now() {
+    public Instant now() {
         return clock.instant();
     }
 
@@ -167,7 +167,7 @@ public final class AlertEvaluator {
         return switch (key.rule()) {
             case STREAM_STALLED -> c.stalled().isPresent();
             case DATA_QUALITY -> c.quality().isPresent();
-            default -> c.cellRules().stream().anyMatch(r -> r.rule() == key.rule());
+            default -> c.rowRules().stream().anyMatch(r -> r.rule() == key.rule());
         };
     }
 
@@ -186,7 +186,7 @@ public final class AlertEvaluator {
                        List<AlertTransition> out) {
         AlertState.Step step = state(key).next(verdict, evidence, at, clearAfter, meaning);
         if (step.state().sequence() == 0) {
-            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with cells
+            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with rows
         } else {
             states.put(key, step.state());
         }

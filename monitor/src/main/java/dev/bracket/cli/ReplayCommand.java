@@ -5,11 +5,11 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
-import dev.bracket.report.ReportJson;
-import dev.bracket.report.ReportTable;
+import dev.bracket.report.render.ReportJson;
+import dev.bracket.report.render.ReportTable;
 import dev.bracket.stream.Replay;
-import dev.bracket.stream.ReportDocument;
-import dev.bracket.stream.WindowReport;
+import dev.bracket.stream.publish.ReportDocument;
+import dev.bracket.stream.publish.WindowReport;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
@@ -47,9 +47,9 @@ public final class ReplayCommand implements Callable<Integer> {
     @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
     Path configFile;
 
-    @Option(names = "--topic", paramLabel = "NAME",
-            description = "Read events with the field names of this configured input topic (default: the first input).")
-    String topic;
+    @Option(names = "--fields-of", paramLabel = "TOPIC",
+            description = "Read events with the field names configured for this input topic (default: the first input's).")
+    String fieldsOf;
 
     @Option(names = "--json", description = "Print one JSON document with every study's and window's report instead of tables.")
     boolean json;
@@ -60,8 +60,8 @@ public final class ReplayCommand implements Callable<Integer> {
     @Override
     public Integer call() throws IOException {
         BracketConfig config = ConfigFiles.load(configFile);
-        InputTopic input = config.inputs().stream().filter(i -> topic == null || i.topic().equals(topic)).findFirst()
-                .orElseThrow(() -> new InputError("--topic '" + topic + "' is not an input topic of " + configFile
+        InputTopic input = config.inputs().stream().filter(i -> fieldsOf == null || i.topic().equals(fieldsOf)).findFirst()
+                .orElseThrow(() -> new InputError("--fields-of '" + fieldsOf + "' is not an input topic of " + configFile
                         + "; configured: " + String.join(", ", config.inputs().stream().map(InputTopic::topic).toList())));
         for (String f : files) {
             if (!f.equals("-") && !Files.isReadable(Path.of(f))) {

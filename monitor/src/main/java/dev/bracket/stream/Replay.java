@@ -1,5 +1,13 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SeenIds;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.WindowReport;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -89,7 +97,7 @@ public final class Replay {
     public Result finish() {
         MergedPartials merged = new MergedPartials();
         for (PartitionState s : sources) {
-            s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+            s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();

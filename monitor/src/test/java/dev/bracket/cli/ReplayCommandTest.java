@@ -112,9 +112,9 @@ class ReplayCommandTest {
         assertThat(badConfig.exitCode()).isEqualTo(2);
         assertThat(badConfig.errLines()).containsExactly("replay: " + broken + ":3:28: studies[0].outcome.max must be greater than min (1.0)");
 
-        CalcCommandTest.Run badTopic = CalcCommandTest.run("replay", "--config", config.toString(), "--topic", "other", "-");
+        CalcCommandTest.Run badTopic = CalcCommandTest.run("replay", "--config", config.toString(), "--fields-of", "other", "-");
         assertThat(badTopic.exitCode()).isEqualTo(2);
-        assertThat(badTopic.errLines()).hasSize(1).first().asString().contains("--topic 'other' is not an input topic");
+        assertThat(badTopic.errLines()).hasSize(1).first().asString().contains("--fields-of 'other' is not an input topic");
 
         CalcCommandTest.Run noConfig = CalcCommandTest.run("monitor", "--config", dir.resolve("absent.yaml").toString());
         assertThat(noConfig.exitCode()).isEqualTo(2);

@@ -16,12 +16,12 @@ class DedupConfigTest {
     @Test
     @DisplayName("deduplication defaults to a 24 h horizon and 100,000 ids per partition; 0 turns it off")
     void defaultsAndOff() {
-        DedupSettings d = BracketConfig.parse("c.yaml", BASE).dedup();
+        DedupConfig d = BracketConfig.parse("c.yaml", BASE).dedup();
         assertThat(d.horizon()).isEqualTo(Duration.ofHours(24));
         assertThat(d.maxIds()).isEqualTo(100_000);
         assertThat(d.enabled()).isTrue();
-        DedupSettings set = BracketConfig.parse("c.yaml", BASE + "dedup-horizon: 2h\ndedup-max-ids: 500\n").dedup();
-        assertThat(set).isEqualTo(new DedupSettings(Duration.ofHours(2), 500));
+        DedupConfig set = BracketConfig.parse("c.yaml", BASE + "dedup-horizon: 2h\ndedup-max-ids: 500\n").dedup();
+        assertThat(set).isEqualTo(new DedupConfig(Duration.ofHours(2), 500));
         assertThat(BracketConfig.parse("c.yaml", BASE + "dedup-horizon: 0s\n").dedup().enabled()).isFalse();
     }
 

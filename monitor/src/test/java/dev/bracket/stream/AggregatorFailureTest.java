@@ -1,8 +1,20 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.Monitor;
+
+import dev.bracket.stream.ingest.StudyEventCounts;
+
+import dev.bracket.stream.transaction.StreamMetrics;
+
+import dev.bracket.stream.transaction.StreamAggregator;
+
+import dev.bracket.app.TopicSetup;
+
+import dev.bracket.stream.transaction.KafkaClients;
+
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;

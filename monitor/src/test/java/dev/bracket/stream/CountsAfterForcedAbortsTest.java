@@ -1,5 +1,10 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.TopicSetup;
+import dev.bracket.stream.ingest.StudyEventCounts;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.stream.transaction.StreamMetrics;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;

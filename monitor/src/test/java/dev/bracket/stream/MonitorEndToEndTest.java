@@ -1,12 +1,16 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.RejectedCopies;
+
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.app.Monitor;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.cli.BracketCommand;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.commons.math3.stat.descriptive.SummaryStatistics;
 import org.apache.kafka.clients.consumer.ConsumerRecord;

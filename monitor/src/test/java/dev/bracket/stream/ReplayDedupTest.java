@@ -1,5 +1,6 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.RejectReason;
 import dev.bracket.config.BracketConfig;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;

@@ -1,5 +1,8 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.TopicSetup;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.RejectedCopies;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.broker.ChildMonitor;

@@ -1,0 +1,36 @@
+package dev.bracket.stream.publish;
+
+import dev.bracket.bands.BandConfig;
+import dev.bracket.config.StudyConfig;
+import dev.bracket.config.WindowSpec;
+import dev.bracket.report.StudyReport;
+
+/**
+ * A study's bounds in one window, computed from merged partial statistics, with confidence bands.
+ *
+ * @param start      first event time in the window (inclusive, epoch millis); {@link Long#MIN_VALUE} for cumulative
+ * @param end        end of the window (exclusive); {@link Long#MAX_VALUE} for cumulative
+ * @param lateEvents events that arrived after the window had closed (grace included) and were left out
+ */
+public record WindowReport(StudyConfig study, WindowSpec window, long start, long end, StudyReport report, long lateEvents) {
+
+    /**
+     * The study's report for the window that holds the current watermark: the whole stream for
+     * cumulative, the watermark's pane for tumbling, and the last {@code size / step} panes
+     * ending with the watermark's pane for sliding.
+     */
+    public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandConfig bands) {
+        long start = Long.MIN_VALUE;
+        long end = Long.MAX_VALUE;
+        if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
+            long watermark = partials.watermark();
+            end = watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
+            start = end - window.size().toMillis();
+        }
+        long from = start;
+        long to = end;
+        StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
+                study.range(), study.assumptions(), bands);
+        return new WindowReport(study, window, start, end, report, partials.late(study.id(), window.name()));
+    }
+}
