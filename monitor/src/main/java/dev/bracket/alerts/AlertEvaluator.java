@@ -15,6 +15,7 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 import java.util.TreeMap;
 
 /**
@@ -86,12 +87,14 @@ public final class AlertEvaluator {
     }
 
     /**
-     * Counts rejected records whose study could not be read (at the clock's time): they count
-     * against every study's data quality, since they may be any study's.
+     * Counts rejected records whose study could not be read against {@code study}'s data quality
+     * (at the clock's time): they may be any study's, so the caller tells every study it judges.
      */
-    public synchronized void recordUnattributed(long rejected) {
-        Instant now = clock.instant();
-        traffic.values().forEach(counts -> counts.recordUnattributed(now, rejected));
+    public synchronized void recordUnattributed(String study, long rejected) {
+        EventCounts counts = traffic.get(study);
+        if (counts != null) {
+            counts.recordUnattributed(clock.instant(), rejected);
+        }
     }
 
     /**
@@ -124,10 +127,15 @@ public final class AlertEvaluator {
     }
 
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
-    public synchronized List<AlertTransition> tick() {
+    public List<AlertTransition> tick() {
+        return tick(studies.keySet());
+    }
+
+    /** Judges the per-study rules of the given studies only (those this instance owns). */
+    public synchronized List<AlertTransition> tick(Set<String> judged) {
         Instant now = clock.instant();
         List<AlertTransition> out = new ArrayList<>();
-        studies.entrySet().stream().sorted(Map.Entry.comparingByKey()).forEach(e -> {
+        studies.entrySet().stream().filter(e -> judged.contains(e.getKey())).sorted(Map.Entry.comparingByKey()).forEach(e -> {
             String study = e.getKey();
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
@@ -157,6 +165,21 @@ public final class AlertEvaluator {
             }
             states.merge(s.key(), s, (mine, theirs) -> theirs.sequence() > mine.sequence() ? theirs : mine);
         }
+    }
+
+    /** The configured studies. */
+    public Set<String> studies() {
+        return studies.keySet();
+    }
+
+    /**
+     * Drops the states and traffic of {@code gone}: another instance judges them now (and a later
+     * owner restores the states from the alerts topic and the last event times from the ledger,
+     * {@link #restoreLastEvents}).
+     */
+    public synchronized void forget(Set<String> gone) {
+        states.keySet().removeIf(k -> gone.contains(k.study()));
+        gone.forEach(study -> traffic.computeIfPresent(study, (s, old) -> new EventCounts(old.period())));
     }
 
     private boolean configured(AlertKey key) {

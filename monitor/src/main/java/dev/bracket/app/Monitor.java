@@ -2,6 +2,7 @@ package dev.bracket.app;
 
 import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.stream.publish.BoundUpdater;
+import dev.bracket.stream.publish.StudyOwnership;
 import dev.bracket.stream.transaction.KafkaClients;
 import dev.bracket.stream.transaction.StreamAggregator;
 import dev.bracket.stream.transaction.StreamMetrics;
@@ -20,7 +21,7 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
-import java.util.Optional;
+import java.util.Set;
 import java.util.concurrent.ConcurrentHashMap;
 import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicBoolean;
@@ -29,8 +30,10 @@ import java.util.stream.Collectors;
 
 /**
  * A running monitor instance against a Kafka cluster: topic setup, {@code group-members} aggregation
- * group members and one bound updater, each on its own thread, and the alert evaluator fed by
- * both (state restored from the alerts topic at start). Start with {@link #start}; stop with
+ * group members and one member of the updater group, each on its own thread, and the alert
+ * evaluator fed by the updater. Instances of one group share the studies: each study is updated
+ * and judged by the instance that owns its partials partition ({@link BoundUpdater}), whose alert
+ * state is restored from the alerts topic and its ledger when it takes the study over. Start with {@link #start}; stop with
  * {@link #close} (final commits, then clients closed, then alert sinks drained).
  *
  * <p>A supervisor thread watches the others once a second. A member or the updater that stops
@@ -104,25 +107,38 @@ public final class Monitor implements AutoCloseable {
             partials = TopicSetup.ensureTopics(admin, config);
         }
         StreamMetrics metrics = new StreamMetrics(registry);
-        AlertService alerts = AlertService.start(
+        AlertService alerts = AlertService.startShared(
                 config.studies().stream().collect(Collectors.toMap(StudyConfig::id, StudyConfig::alerts)),
-                config.alerts(), Optional.of(config.kafka()), registry, Clock.systemUTC());
+                config.alerts(), config.kafka(), registry, Clock.systemUTC());
         List<StreamAggregator> aggregators = new ArrayList<>();
         for (int member = 0; member < config.groupMembers(); member++) {
-            aggregators.add(new StreamAggregator(clients, metrics, partials, member, new StudyEventCounts() {
-                @Override
-                public void counted(String study, long accepted, long rejected, long outOfRange) {
-                    alerts.recordEvents(study, accepted, rejected, outOfRange);
-                }
-
-                @Override
-                public void unattributed(long rejected) {
-                    alerts.recordUnattributed(rejected);
-                }
-            }));
+            aggregators.add(new StreamAggregator(clients, metrics, partials, member));
         }
+        StudyOwnership ownership = new StudyOwnership() {
+            @Override
+            public void taken(Set<String> studies) {
+                alerts.take(studies);
+            }
+
+            @Override
+            public void released(Set<String> studies) {
+                alerts.release(studies);
+            }
+        };
+        StudyEventCounts traffic = new StudyEventCounts() {
+            @Override
+            public void counted(String study, long accepted, long rejected, long outOfRange) {
+                alerts.recordEvents(study, accepted, rejected, outOfRange);
+            }
+
+            @Override
+            public void unattributed(String study, long rejected) {
+                alerts.recordUnattributed(study, rejected);
+            }
+        };
         Monitor m = new Monitor(config, aggregators,
-                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport), metrics, alerts,
+                new BoundUpdater(clients, metrics, latest, partials, Clock.systemUTC(), alerts::onReport, ownership, traffic),
+                metrics, alerts,
                 new BrokerProbe(clients.admin()));
         m.threads.forEach(Thread::start);
         m.supervisor.start();

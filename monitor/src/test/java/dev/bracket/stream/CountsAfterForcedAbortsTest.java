@@ -1,7 +1,12 @@
 package dev.bracket.stream;
 
 import dev.bracket.app.TopicSetup;
-import dev.bracket.stream.ingest.StudyEventCounts;
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
+import dev.bracket.stream.ingest.StudyTraffic;
+import dev.bracket.stream.transaction.PartialsCodec;
 import dev.bracket.stream.transaction.KafkaClients;
 import dev.bracket.stream.transaction.StreamAggregator;
 import dev.bracket.stream.transaction.StreamMetrics;
@@ -20,8 +25,6 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
-import java.util.concurrent.ConcurrentHashMap;
-import java.util.concurrent.atomic.AtomicLong;
 import java.util.concurrent.atomic.AtomicReference;
 
 import static org.assertj.core.api.Assertions.assertThat;
@@ -32,8 +35,8 @@ import static org.awaitility.Awaitility.await;
  * aggregation member's transactions are made to abort on purpose — a second producer with the
  * member's transactional id fences it (what a zombie instance meets), so its open transaction is
  * aborted and its input read again — and afterwards the meters (accepted, rejected by reason,
- * late) and the per-study counts told to the data-quality listener equal the numbers of events
- * produced, counted here from the generated list.
+ * late) and the per-study counts committed for the data-quality rule (in the progress record the
+ * studies' owner reads) equal the numbers of events produced, counted here from the generated list.
  */
 class CountsAfterForcedAbortsTest {
 
@@ -86,27 +89,9 @@ class CountsAfterForcedAbortsTest {
                 + rejectedByReason.getOrDefault("out-of-range", 0L);
         long unattributed = rejected - checkoutRejected;
 
-        Map<String, long[]> told = new ConcurrentHashMap<>();
-        AtomicLong toldUnattributed = new AtomicLong();
-        StudyEventCounts listener = new StudyEventCounts() {
-            @Override
-            public void counted(String study, long accepted, long rejectedCount, long outOfRange) {
-                long[] c = told.computeIfAbsent(study, s -> new long[3]);
-                synchronized (c) {
-                    c[0] += accepted;
-                    c[1] += rejectedCount;
-                    c[2] += outOfRange;
-                }
-            }
-
-            @Override
-            public void unattributed(long n) {
-                toldUnattributed.addAndGet(n);
-            }
-        };
         SimpleMeterRegistry registry = new SimpleMeterRegistry();
         StreamMetrics metrics = new StreamMetrics(registry);
-        StreamAggregator aggregator = new StreamAggregator(clients, metrics, partials, 0, listener);
+        StreamAggregator aggregator = new StreamAggregator(clients, metrics, partials, 0);
         Thread thread = new Thread(aggregator, "test-aggregator");
         thread.start();
         AtomicReference<Throwable> producerFailure = new AtomicReference<>();
@@ -136,15 +121,35 @@ class CountsAfterForcedAbortsTest {
             rejectedByReason.forEach((reason, n) ->
                     assertThat(metrics.total("bracket.events.rejected", "reason", reason)).as(reason).isEqualTo(n));
             assertThat(metrics.total("bracket.events.late", "window", "hourly")).isEqualTo(late.size());
-            assertThat(told.get("checkout")).containsExactly(checkoutAccepted, checkoutRejected,
-                    rejectedByReason.getOrDefault("out-of-range", 0L));
-            assertThat(told.get("registry")).containsExactly(registryAccepted, 0, 0);
-            assertThat(toldUnattributed.get()).isEqualTo(unattributed);
+            // The data-quality counts: what the studies' owner reads from the committed progress record.
+            SourceProgress committed = committedProgress("aborts-partials");
+            assertThat(committed.traffic().get("checkout")).isEqualTo(new StudyTraffic(checkoutAccepted, checkoutRejected,
+                    rejectedByReason.getOrDefault("out-of-range", 0L)));
+            assertThat(committed.traffic().get("registry")).isEqualTo(new StudyTraffic(registryAccepted, 0, 0));
+            assertThat(committed.unattributed()).isEqualTo(unattributed);
         } finally {
             producing.interrupt();
             aggregator.close(Duration.ofSeconds(30));
         }
         assertThat(aggregator.status().failure()).isNull();
+    }
+
+    /** The newest committed progress record of the one input partition, as a read_committed reader (the studies' owner) sees it. */
+    private static SourceProgress committedProgress(String partialsTopic) {
+        AtomicReference<SourceProgress> last = new AtomicReference<>();
+        PartialsCodec.Sink sink = new PartialsCodec.Sink() {
+            @Override
+            public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
+            }
+
+            @Override
+            public void progress(SourcePartition source, SourceProgress progress) {
+                last.set(progress);
+            }
+        };
+        KafkaTestSupport.readAll(KAFKA.broker(), partialsTopic).forEach(r -> PartialsCodec.decode(r.key(), r.value(), sink));
+        assertThat(last.get()).as("a committed progress record").isNotNull();
+        return last.get();
     }
 
     /** Starts a producer with the member's transactional id: the broker aborts the member's open transaction and fences it. */

@@ -67,17 +67,23 @@ public final class AlertLedger implements AutoCloseable {
 
     private final Producer<String, String> producer;
     private final String topic;
+    /** Client properties and timeout for reading the topic again ({@link #reread}); null in memory. */
+    private final Map<String, String> clientProperties;
+    private final Duration timeout;
     private final Map<String, Done> done = new HashMap<>();
     private final Map<String, Instant> lastEvents = new HashMap<>();
 
-    private AlertLedger(Producer<String, String> producer, String topic) {
+    private AlertLedger(Producer<String, String> producer, String topic, Map<String, String> clientProperties,
+                        Duration timeout) {
         this.producer = producer;
         this.topic = topic;
+        this.clientProperties = clientProperties;
+        this.timeout = timeout;
     }
 
     /** A ledger that remembers nothing beyond the process (no Kafka cluster for alerts). */
     public static AlertLedger inMemory() {
-        return new AlertLedger(null, null);
+        return new AlertLedger(null, null, null, null);
     }
 
     /** The ledger topic of an alerts topic. */
@@ -94,14 +100,31 @@ public final class AlertLedger implements AutoCloseable {
      */
     public static AlertLedger open(Map<String, String> clientProperties, String topic, Duration timeout) {
         create(clientProperties, topic, timeout);
-        AlertLedger ledger = new AlertLedger(KafkaAlertSink.producer(clientProperties, "bracket-alerts-ledger"), topic);
-        try (KafkaConsumer<String, String> consumer = AlertHistory.reader(clientProperties, "bracket-alerts-ledger-restore")) {
-            ledger.restore(AlertHistory.readToEnd(consumer, topic, timeout));
+        AlertLedger ledger = new AlertLedger(KafkaAlertSink.producer(clientProperties, "bracket-alerts-ledger"), topic,
+                clientProperties, timeout);
+        try {
+            ledger.reread();
         } catch (RuntimeException e) {
             ledger.close();
             throw e;
         }
         return ledger;
+    }
+
+    /**
+     * Reads the topic to its end again, taking in what other instances recorded since (a study
+     * taken over from another instance: its webhook positions and last event time). Does nothing
+     * in memory.
+     *
+     * @throws IllegalStateException when the topic cannot be read within the timeout given at open
+     */
+    public void reread() {
+        if (clientProperties == null) {
+            return;
+        }
+        try (KafkaConsumer<String, String> consumer = AlertHistory.reader(clientProperties, "bracket-alerts-ledger-restore")) {
+            restore(AlertHistory.readToEnd(consumer, topic, timeout));
+        }
     }
 
     private static void create(Map<String, String> clientProperties, String topic, Duration timeout) {
@@ -177,7 +200,7 @@ public final class AlertLedger implements AutoCloseable {
         write(key, o);
     }
 
-    /** When each study's last event arrived, as recorded before this start. */
+    /** When each study's last event arrived, as recorded here or read from the topic. */
     public synchronized Map<String, Instant> lastEvents() {
         return Map.copyOf(lastEvents);
     }

@@ -18,6 +18,11 @@ public final class LatestReports {
         byStudy.computeIfAbsent(report.study(), k -> new ConcurrentHashMap<>()).put(report.window(), report);
     }
 
+    /** Drops a study's reports (another instance publishes them now). */
+    public void forget(String study) {
+        byStudy.remove(study);
+    }
+
     /** The study's reports, one per window, in window-name order. */
     public List<PublishedReport> study(String study) {
         return byStudy.getOrDefault(study, new ConcurrentHashMap<>()).values().stream()

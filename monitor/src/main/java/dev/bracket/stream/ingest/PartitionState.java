@@ -35,6 +35,8 @@ public final class PartitionState {
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
     private final Map<PaneKey, PaneAccumulator> panes = new HashMap<>();
     private final Map<LateKey, Long> late = new HashMap<>();
+    private final Map<String, StudyTraffic> traffic = new HashMap<>();
+    private long unattributed;
     // A direct-mapped cache in front of the pane map. Events repeat a few panes, and their
     // strings are the parser's canonical instances, so comparing by identity finds most panes
     // without making a key and looking it up. A miss (or an equal string that is another
@@ -172,8 +174,21 @@ public final class PartitionState {
         return streamTime;
     }
 
+    /** Adds a batch of a study's events to its traffic counts (once per poll, not per event). */
+    public void countTraffic(String study, long accepted, long rejected, long outOfRange) {
+        traffic.merge(study, StudyTraffic.NONE.plus(accepted, rejected, outOfRange),
+                (a, b) -> a.plus(b.accepted(), b.rejected(), b.outOfRange()));
+        progressDirty = true;
+    }
+
+    /** Adds rejected records whose study could not be read (once per poll, not per record). */
+    public void countUnattributed(long rejected) {
+        unattributed += rejected;
+        progressDirty = true;
+    }
+
     public SourceProgress progress() {
-        return new SourceProgress(streamTime, late);
+        return new SourceProgress(streamTime, late, traffic, unattributed);
     }
 
     /** Puts back a pane read from the partials topic (not marked as changed). */
@@ -184,10 +199,13 @@ public final class PartitionState {
         clearCache();
     }
 
-    /** Puts back the stream time and late counts read from the partials topic. */
+    /** Puts back the stream time, late counts and traffic read from the partials topic. */
     public void restoreProgress(SourceProgress progress) {
         streamTime = progress.streamTime();
         late.clear();
         late.putAll(progress.late());
+        traffic.clear();
+        traffic.putAll(progress.traffic());
+        unattributed = progress.unattributed();
     }
 }

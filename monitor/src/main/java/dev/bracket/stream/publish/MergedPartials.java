@@ -12,6 +12,8 @@ import java.util.HashMap;
 import java.util.HashSet;
 import java.util.Map;
 import java.util.Set;
+import java.util.SortedSet;
+import java.util.TreeSet;
 import java.util.function.LongPredicate;
 
 /**
@@ -23,21 +25,23 @@ import java.util.function.LongPredicate;
  */
 public final class MergedPartials implements PartialsCodec.Sink {
 
-    private final Map<String, Map<PaneKey, Map<SourcePartition, ObservedArms>>> byStudy = new HashMap<>();
+    private final Map<String, Map<PaneKey, PaneSources>> byStudy = new HashMap<>();
     private final Map<SourcePartition, SourceProgress> progress = new HashMap<>();
     private final Set<String> changed = new HashSet<>();
     private boolean watermarkChanged;
 
     @Override
     public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
-        Map<PaneKey, Map<SourcePartition, ObservedArms>> panes = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+        Map<PaneKey, PaneSources> panes = byStudy.computeIfAbsent(key.study(), k -> new HashMap<>());
+        PaneSources sources = panes.get(key);
         if (arms == null) {
-            Map<SourcePartition, ObservedArms> sources = panes.get(key);
-            if (sources != null && sources.remove(source) != null && sources.isEmpty()) {
+            if (sources != null && sources.remove(source)) {
                 panes.remove(key);
             }
+        } else if (sources == null) {
+            panes.put(key, new PaneSources(source, arms));
         } else {
-            panes.computeIfAbsent(key, k -> new HashMap<>()).put(source, arms);
+            sources.put(source, arms);
         }
         changed.add(key.study());
     }
@@ -80,17 +84,24 @@ public final class MergedPartials implements PartialsCodec.Sink {
         return progress.values().stream().mapToLong(p -> p.late().getOrDefault(key, 0L)).sum();
     }
 
+    /** Start times of the study's panes of one window, in order. */
+    public SortedSet<Long> paneStarts(String study, String window) {
+        SortedSet<Long> out = new TreeSet<>();
+        for (PaneKey k : byStudy.getOrDefault(study, Map.of()).keySet()) {
+            if (k.window().equals(window)) {
+                out.add(k.paneStart());
+            }
+        }
+        return out;
+    }
+
     /** The study's panes of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
         StudyCells out = StudyCells.empty();
-        for (Map.Entry<PaneKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
+        for (Map.Entry<PaneKey, PaneSources> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
             PaneKey k = e.getKey();
             if (k.window().equals(window) && panes.test(k.paneStart())) {
-                ObservedArms sum = ObservedArms.empty();
-                for (ObservedArms a : e.getValue().values()) {
-                    sum = sum.merge(a);
-                }
-                out = out.with(k.stratum(), k.level(), sum);
+                out = out.with(k.stratum(), k.level(), e.getValue().sum());
             }
         }
         return out;

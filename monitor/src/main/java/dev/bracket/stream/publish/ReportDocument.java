@@ -23,7 +23,7 @@ public final class ReportDocument {
     }
 
     /**
-     * @param revision   increases with every document this publisher wrote for the study and window
+     * @param revision   increases with every document the study's current owner wrote for the window (1 after a move)
      * @param computedAt when the numbers were computed; null leaves the field out (replay)
      */
     public static ObjectNode toJson(WindowReport r, long revision, Instant computedAt) {

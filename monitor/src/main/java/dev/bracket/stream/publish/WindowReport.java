@@ -20,17 +20,25 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
      * ending with the watermark's pane for sliding.
      */
     public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandConfig bands) {
-        long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
             long watermark = partials.watermark();
             end = watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
-            start = end - window.size().toMillis();
         }
-        long from = start;
-        long to = end;
+        return ending(study, window, end, partials, bands);
+    }
+
+    /**
+     * The study's report for the window that ends at {@code end} (exclusive; a pane boundary):
+     * its pane for tumbling, the last {@code size / step} panes for sliding. {@code end} is
+     * ignored for cumulative.
+     */
+    public static WindowReport ending(StudyConfig study, WindowSpec window, long end, MergedPartials partials, BandConfig bands) {
+        boolean cumulative = window.kind() == WindowSpec.Kind.CUMULATIVE;
+        long to = cumulative ? Long.MAX_VALUE : end;
+        long from = cumulative ? Long.MIN_VALUE : end - window.size().toMillis();
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
                 study.range(), study.assumptions(), bands);
-        return new WindowReport(study, window, start, end, report, partials.late(study.id(), window.name()));
+        return new WindowReport(study, window, from, to, report, partials.late(study.id(), window.name()));
     }
 }

@@ -48,6 +48,32 @@ public final class KafkaClients {
         return new KafkaConsumer<>(p, new ByteArrayDeserializer(), new ByteArrayDeserializer());
     }
 
+    /**
+     * A member of the updater group ({@code GROUP-updaters}) reading the partials topic: the group
+     * protocol hands each partials partition, and with it each study, to exactly one live
+     * instance. Nothing is committed (an owner reads its partitions from the beginning).
+     */
+    public KafkaConsumer<byte[], byte[]> updaterConsumer() {
+        Map<String, Object> p = base();
+        if (!"consumer".equalsIgnoreCase(String.valueOf(p.get(ConsumerConfig.GROUP_PROTOCOL_CONFIG)))) {
+            // A joining instance takes partitions over without every owner pausing.
+            p.putIfAbsent(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG,
+                    "org.apache.kafka.clients.consumer.CooperativeStickyAssignor");
+        }
+        p.remove(ConsumerConfig.GROUP_INSTANCE_ID_CONFIG);
+        p.put(ConsumerConfig.GROUP_ID_CONFIG, updaterGroup());
+        p.put(ConsumerConfig.CLIENT_ID_CONFIG, "bracket-updater-" + config.instance());
+        p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
+        p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
+        p.put(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
+        return new KafkaConsumer<>(p, new ByteArrayDeserializer(), new ByteArrayDeserializer());
+    }
+
+    /** The consumer group whose members own studies: {@code GROUP-updaters}. */
+    public String updaterGroup() {
+        return config.group() + "-updaters";
+    }
+
     /** A consumer outside any group that reads committed records only (partials restore, updater). */
     public KafkaConsumer<byte[], byte[]> committedReader() {
         Map<String, Object> p = base();

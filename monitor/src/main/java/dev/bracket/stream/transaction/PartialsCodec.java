@@ -6,6 +6,7 @@ import dev.bracket.stream.ingest.LateKey;
 import dev.bracket.stream.ingest.PaneKey;
 import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.ingest.SourceProgress;
+import dev.bracket.stream.ingest.StudyTraffic;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ArrayNode;
@@ -28,18 +29,24 @@ import java.util.Map;
  * key   ["cell", topic, partition, study, stratum, level, window, paneStart]
  * value {"treated": {"n", "mean", "m2", "min", "max"}, "control": {...}}
  * key   ["progress", topic, partition]
- * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}]}
+ * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}],
+ *        "traffic": [{"study", "accepted", "rejected", "outOfRange"}], "unattributed": n}
+ *                                             (traffic and unattributed absent in older records)
  * key   ["seen", topic, partition, study, id]                  (added in format 2: deduplication by id)
  * value {"t": eventTimeMillis}
  * </pre>
  *
  * A "seen" record holds one event id the source partition has counted; {@code null} forgets it.
- * Readers that do not restore ids (the bound updater) skip them through the sink's default
- * method; format 1 readers log them as unknown and go on.
+ * It is placed with its study's panes; the aggregators' restore reads every partials partition,
+ * so it finds them there. Readers that do not restore ids (the bound updater) skip them through
+ * the sink's default method; format 1 readers log them as unknown and go on.
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
- * All records of one source partition go to the same partials partition ({@link #partitionFor}),
- * so restoring a source reads one partials partition only.
+ *
+ * <p>Placement: every pane record of one study goes to the partials partition chosen by the
+ * study alone ({@link #partitionFor(String, int)}), so the member of the updater group that owns
+ * that partition sees all of the study's numbers and nobody else does. A source's progress record
+ * concerns every study, so it is written to every partials partition.
  */
 public final class PartialsCodec {
 
@@ -59,9 +66,13 @@ public final class PartialsCodec {
     private PartialsCodec() {
     }
 
-    /** The partials partition holding {@code source}'s records (stable: String.hashCode is specified). */
-    public static int partitionFor(SourcePartition source, int partitions) {
-        return Math.floorMod(source.topic().hashCode() * 31 + source.partition(), partitions);
+    /**
+     * The partials partition holding every pane of {@code study}. Chosen here rather than by the
+     * producer's default partitioner, whose hash of the whole key would scatter one study's panes;
+     * String.hashCode is specified by the JDK, so every instance and version agrees.
+     */
+    public static int partitionFor(String study, int partitions) {
+        return Math.floorMod(study.hashCode(), partitions);
     }
 
     public static byte[] paneKey(SourcePartition s, PaneKey k) {
@@ -112,6 +123,10 @@ public final class PartialsCodec {
         }
         ArrayNode late = o.putArray("late");
         p.late().forEach((k, n) -> late.addObject().put("study", k.study()).put("window", k.window()).put("n", n));
+        ArrayNode traffic = o.putArray("traffic");
+        p.traffic().forEach((study, t) -> traffic.addObject().put("study", study)
+                .put("accepted", t.accepted()).put("rejected", t.rejected()).put("outOfRange", t.outOfRange()));
+        o.put("unattributed", p.unattributed());
         return bytes(o);
     }
 
@@ -155,8 +170,15 @@ public final class PartialsCodec {
                     JsonNode v = MAPPER.readTree(value);
                     Map<LateKey, Long> late = new HashMap<>();
                     v.get("late").forEach(l -> late.put(new LateKey(l.get("study").asText(), l.get("window").asText()), l.get("n").asLong()));
+                    Map<String, StudyTraffic> traffic = new HashMap<>();
+                    JsonNode counted = v.get("traffic");
+                    if (counted != null) {
+                        counted.forEach(c -> traffic.put(c.get("study").asText(), new StudyTraffic(
+                                c.get("accepted").asLong(), c.get("rejected").asLong(), c.get("outOfRange").asLong())));
+                    }
                     JsonNode t = v.get("streamTime");
-                    sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late));
+                    sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late, traffic,
+                            v.path("unattributed").asLong(0)));
                 }
                 case "seen" -> sink.seen(source, new SeenIds.Key(k.get(3).asText(), k.get(4).asText()),
                         value == null ? null : MAPPER.readTree(value).get("t").asLong());

@@ -31,7 +31,7 @@ import java.util.concurrent.TimeoutException;
 /**
  * Rebuilds source partitions' panes from the partials topic, reading committed records only.
  *
- * <p>It reads each relevant partials partition from the beginning up to its high watermark
+ * <p>It reads every partials partition (panes are placed by study, not by source) from the beginning up to its high watermark
  * taken BEFORE reading (not the last stable offset): a transaction of another instance that is
  * still open would otherwise hide records committed after it started. The read_committed
  * consumer waits at that open transaction until it ends, then skips aborted records, so when it
@@ -68,9 +68,9 @@ final class PartialsRestorer implements AutoCloseable {
             panes.put(s, new HashMap<>());
             seen.put(s, new LinkedHashMap<>());
         });
+        // A source's panes are spread over the partitions of their studies: read them all.
         Set<TopicPartition> tps = new HashSet<>();
-        sources.forEach(s -> tps.add(new TopicPartition(topic, PartialsCodec.partitionFor(s, partitions))));
-        Map<TopicPartition, Long> highWatermarks = highWatermarks(tps);
+        Map<Integer, PartialsCodec.Sink> checks = new HashMap<>();
         PartialsCodec.Sink sink = new PartialsCodec.Sink() {
             @Override
             public void pane(SourcePartition source, PaneKey key, ObservedArms arms) {
@@ -102,6 +102,11 @@ final class PartialsRestorer implements AutoCloseable {
                 }
             }
         };
+        for (int p = 0; p < partitions; p++) {
+            tps.add(new TopicPartition(topic, p));
+            checks.put(p, new PlacementCheck(topic, p, partitions, sink));
+        }
+        Map<TopicPartition, Long> highWatermarks = highWatermarks(tps);
         consumer.assign(tps);
         consumer.seekToBeginning(tps);
         long deadline = System.nanoTime() + LIMIT.toNanos();
@@ -112,7 +117,7 @@ final class PartialsRestorer implements AutoCloseable {
                 }
                 for (ConsumerRecord<byte[], byte[]> r : consumer.poll(Duration.ofMillis(100))) {
                     try {
-                        PartialsCodec.decode(r.key(), r.value(), sink);
+                        PartialsCodec.decode(r.key(), r.value(), checks.get(r.partition()));
                     } catch (IllegalArgumentException e) {
                         LOG.warn("skipping record {}-{}@{} of the partials topic: {}", r.topic(), r.partition(), r.offset(), e.getMessage());
                     }

@@ -7,7 +7,6 @@ import dev.bracket.stream.ingest.ParsedEvent;
 import dev.bracket.stream.ingest.PartitionState;
 import dev.bracket.stream.ingest.RejectReason;
 import dev.bracket.stream.ingest.SourcePartition;
-import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import dev.bracket.retry.Backoff;
@@ -28,6 +27,7 @@ import org.slf4j.LoggerFactory;
 
 import java.time.Duration;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.HashSet;
@@ -43,8 +43,10 @@ import java.util.concurrent.ThreadLocalRandom;
  * cumulative statistics to the partials topic and commits the input offsets in the same Kafka
  * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
  * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
- * transactions. Event counts (meters, the progress line, data quality) are kept per transaction
- * ({@link CommittedCounts}) and shown only once it commits. Event ids counted ({@link SeenIds},
+ * transactions. The meters' event counts (and so the progress line) are kept per transaction
+ * ({@link CommittedCounts}) and added only once it commits; the per-study counts the alert rules
+ * judge travel in each partition's progress record, so they are committed or dropped with the
+ * transaction too. Event ids counted ({@link SeenIds},
  * for rejecting an at-least-once producer's retries) are written in the same transactions.
  *
  * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
@@ -62,13 +64,16 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private final KafkaClients clients;
     private final StreamMetrics metrics;
     private final int partialsPartitions;
-    private final StudyEventCounts eventCounts;
     private final int member;
     private volatile int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final RejectedCopies rejectedCopies;
-    /** The open transaction's event counts: shown (meters, listener) when it commits, dropped when it aborts. */
+    /** The open transaction's meter counts: added to the meters when it commits, dropped when it aborts. */
     private final CommittedCounts counts;
+    /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per partition of a poll. */
+    private final long[][] studyCounts;
+    /** Rejected records without a readable study, per partition of a poll. */
+    private long unattributed;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
     /** Per assigned partition, the event ids counted (absent when deduplication is off). */
     private final Map<TopicPartition, SeenIds> seenIds = new HashMap<>();
@@ -97,17 +102,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /**
      * @param member      this member's number within the instance (0 for the first); part of its transactional id
-     * @param eventCounts told each committed transaction's per-study event counts (alerts on stalls and data quality)
      */
-    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member,
-                            StudyEventCounts eventCounts) {
-        this.eventCounts = eventCounts;
+    public StreamAggregator(KafkaClients clients, StreamMetrics metrics, int partialsPartitions, int member) {
         this.config = clients.config();
         this.clients = clients;
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
         this.member = member;
-        this.counts = new CommittedCounts(config.studies());
+        this.counts = new CommittedCounts();
+        this.studyCounts = new long[config.studies().size()][3];
         this.rejectedCopies = new RejectedCopies(config.topics().rejected(), RejectedCopies.limit(config.kafka()));
         for (InputTopic in : config.inputs()) {
             parsers.put(in.topic(), EventParser.forInput(config, in.fields()));
@@ -197,17 +200,36 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 if (seen != null) {
                     seen.check(e, state.streamTime());
                 }
+                int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
-                    counts.accepted(tp.topic(), e.studyIndex());
+                    counts.accepted(tp.topic());
+                    studyCounts[study][0]++;
                 } else {
-                    counts.rejected(tp.topic(), e.rejection(), e.studyIndex());
+                    counts.rejected(tp.topic(), e.rejection());
+                    if (study >= 0) {
+                        studyCounts[study][1]++;
+                        studyCounts[study][2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
+                    } else {
+                        unattributed++;
+                    }
                     reject(r, e);
                 }
                 next = r.offset() + 1;
             }
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
+            }
+            for (int i = 0; i < studyCounts.length; i++) {
+                long[] c = studyCounts[i];
+                if (c[0] + c[1] > 0) {
+                    state.countTraffic(config.studies().get(i).id(), c[0], c[1], c[2]);
+                    Arrays.fill(c, 0);
+                }
+            }
+            if (unattributed > 0) {
+                state.countUnattributed(unattributed);
+                unattributed = 0;
             }
         }
     }
@@ -240,22 +262,26 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             String partials = config.topics().partials();
             for (PartitionState s : states.values()) {
                 SourcePartition src = s.source();
-                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
                 for (PaneKey closed : s.evictClosed()) {
-                    producer.send(new ProducerRecord<>(partials, partition, PartialsCodec.paneKey(src, closed), null));
+                    producer.send(new ProducerRecord<>(partials, PartialsCodec.partitionFor(closed.study(), partialsPartitions),
+                            PartialsCodec.paneKey(src, closed), null));
                 }
-                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials, partition,
+                s.forEachDirty((key, arms) -> producer.send(new ProducerRecord<>(partials,
+                        PartialsCodec.partitionFor(key.study(), partialsPartitions),
                         PartialsCodec.paneKey(src, key), PartialsCodec.paneValue(arms))));
                 if (s.progressChanged()) {
-                    producer.send(new ProducerRecord<>(partials, partition,
-                            PartialsCodec.progressKey(src), PartialsCodec.progressValue(s.progress())));
+                    byte[] key = PartialsCodec.progressKey(src);
+                    byte[] value = PartialsCodec.progressValue(s.progress());
+                    for (int partition = 0; partition < partialsPartitions; partition++) {
+                        producer.send(new ProducerRecord<>(partials, partition, key, value));
+                    }
                 }
             }
             seenIds.forEach((tp, seen) -> {
                 SourcePartition src = states.get(tp).source();
-                int partition = PartialsCodec.partitionFor(src, partialsPartitions);
                 seen.forgetExpired(states.get(tp).streamTime());
-                seen.forEachChange((key, time) -> producer.send(new ProducerRecord<>(partials, partition,
+                seen.forEachChange((key, time) -> producer.send(new ProducerRecord<>(partials,
+                        PartialsCodec.partitionFor(key.study(), partialsPartitions),
                         PartialsCodec.seenKey(src, key), PartialsCodec.seenValue(time))));
             });
             if (!pendingOffsets.isEmpty()) {
@@ -271,7 +297,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             upToDateMillis = System.currentTimeMillis();
             metrics.committed();
             metrics.commitTimer().record(Duration.ofNanos(System.nanoTime() - start));
-            counts.publish(metrics, eventCounts);
+            counts.publish(metrics);
         } catch (KafkaException | IllegalStateException e) {
             if (e instanceof InterruptException) {
                 throw e;

@@ -126,6 +126,34 @@ class AlertServiceTest {
     }
 
     @Test
+    @DisplayName("a released study is not judged and drops its state; taken again, its silence counts from the take-over")
+    void judgesOwnedStudiesOnly() {
+        MutableClock clock = new MutableClock(Snapshots.T0);
+        StudyAlertConfig c = new StudyAlertConfig(30, BandMethod.ANYTIME, 1, List.of(),
+                Optional.of(new StreamStalledRule(Duration.ofMinutes(1))), Optional.empty(), List.of());
+        RecentAlerts recent = new RecentAlerts(10);
+        AlertService service = new AlertService(new AlertEvaluator(Map.of("rollout", c, "other", c), clock),
+                new AlertDispatcher(List.of(recent), Map.of(), new SimpleMeterRegistry()), recent,
+                new AlertsConfig("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
+        service.release(java.util.Set.of("other"));
+        clock.advance(Duration.ofMinutes(2));
+        service.tick();
+        assertThat(recent.newestFirst()).extracting(t -> t.key().study()).containsExactly("rollout");
+        assertThat(service.firing()).extracting(s -> s.key().study()).containsExactly("rollout");
+        service.release(java.util.Set.of("rollout"));
+        assertThat(service.firing()).as("state of a released study is dropped").isEmpty();
+        service.take(java.util.Set.of("other"));
+        clock.advance(Duration.ofSeconds(59));
+        service.tick();
+        assertThat(recent.newestFirst()).as("59 s after the take-over: not yet stalled").hasSize(1);
+        clock.advance(Duration.ofSeconds(2));
+        service.tick();
+        service.close();
+        assertThat(recent.newestFirst()).extracting(t -> t.key().study() + " " + t.kind())
+                .containsExactly("other " + TransitionKind.FIRING, "rollout " + TransitionKind.FIRING);
+    }
+
+    @Test
     @DisplayName("the recent list keeps the newest, up to its capacity")
     void recentIsBounded() {
         RecentAlerts recent = new RecentAlerts(2);

@@ -69,7 +69,7 @@ public final class Receiver implements AutoCloseable {
         server.start();
     }
 
-    void start(IntUnaryOperator behaviour) throws IOException {
+    public void start(IntUnaryOperator behaviour) throws IOException {
         start(behaviour, n -> 0);
     }
 

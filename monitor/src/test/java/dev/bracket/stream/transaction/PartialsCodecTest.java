@@ -4,6 +4,7 @@ import dev.bracket.stream.ingest.LateKey;
 import dev.bracket.stream.ingest.PaneKey;
 import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.ingest.SourceProgress;
+import dev.bracket.stream.ingest.StudyTraffic;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.ObservedArms;
 import org.junit.jupiter.api.DisplayName;
@@ -50,13 +51,14 @@ class PartialsCodecTest {
     }
 
     @Test
-    @DisplayName("a null value deletes a cell; progress keeps stream time and late counts")
+    @DisplayName("a null value deletes a cell; progress keeps stream time, late counts, traffic and unattributed records")
     void tombstonesAndProgress() {
         SourcePartition src = new SourcePartition("t", 0);
         PaneKey key = new PaneKey("s", "", "", "hourly", 3_600_000);
         PartialsCodec.decode(PartialsCodec.paneKey(src, key), null, sink);
         assertThat(seen.get(0)[2]).isNull();
-        SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L));
+        SourceProgress p = new SourceProgress(123_456L, Map.of(new LateKey("s", "hourly"), 4L),
+                Map.of("s", new StudyTraffic(10, 3, 1)), 5);
         PartialsCodec.decode(PartialsCodec.progressKey(src), PartialsCodec.progressValue(p), sink);
         assertThat(seen.get(1)[1]).isEqualTo(p);
         PartialsCodec.decode(PartialsCodec.progressKey(src), PartialsCodec.progressValue(SourceProgress.NONE), sink);
@@ -64,11 +66,14 @@ class PartialsCodecTest {
     }
 
     @Test
-    @DisplayName("one source partition always maps to the same partials partition")
-    void stablePartitioning() {
-        SourcePartition src = new SourcePartition("outcomes", 5);
-        int p = PartialsCodec.partitionFor(src, 3);
-        assertThat(p).isBetween(0, 2).isEqualTo(PartialsCodec.partitionFor(new SourcePartition("outcomes", 5), 3));
+    @DisplayName("a study's cells go to the partition given by the JDK's specified String hash, whatever the source")
+    void partitionByStudy() {
+        // String.hashCode is specified in the JDK javadoc as s[0]*31^(n-1) + ... + s[n-1]:
+        // "ab" -> 97*31 + 98 = 3105, and 3105 mod 4 = 1.
+        assertThat(PartialsCodec.partitionFor("ab", 4)).isEqualTo(1);
+        // A negative hash still gives a partition in range: "zzzzzz" -> -685785664 by the same
+        // formula in 32-bit arithmetic, and floor(-685785664 mod 5) = 1 (Java's % would give -4).
+        assertThat(PartialsCodec.partitionFor("zzzzzz", 5)).isEqualTo(1);
     }
 
     @Test
