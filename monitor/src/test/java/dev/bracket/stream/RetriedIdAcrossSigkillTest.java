@@ -109,6 +109,9 @@ class RetriedIdAcrossSigkillTest {
         AtomicReference<Throwable> failure = new AtomicReference<>();
         // About 5,000 per second, so that the kill lands mid-stream.
         Thread producing = new Thread(() -> KafkaTestSupport.producePaced(KAFKA.broker(), sent, 5_000, failure), "test-producer");
+        // The stream starts once the child reads its partitions: on a busy machine a slow child would
+        // otherwise read most of the stream as one backlog in one commit, and the kill would come too late.
+        await().atMost(Duration.ofSeconds(120)).until(() -> ChildMonitor.log(logs.get(0)).contains("restored"));
         producing.start();
         try (Admin admin = Admin.create(Map.of(AdminClientConfig.BOOTSTRAP_SERVERS_CONFIG, KAFKA.bootstrapServers()))) {
             long killAt = sent.size() / 2;
