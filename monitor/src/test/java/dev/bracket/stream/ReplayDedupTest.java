@@ -10,7 +10,7 @@ import java.nio.charset.StandardCharsets;
 
 import static org.assertj.core.api.Assertions.assertThat;
 
-/** Deduplication by id when replaying files: the same rule as the monitor's, per input. */
+/** Deduplication by id when replaying files: the same rule as the monitor's, per partition (a file, or the files of one partition). */
 class ReplayDedupTest {
 
     private static final String STUDIES = """
@@ -49,5 +49,25 @@ class ReplayDedupTest {
         Replay.Result r = replay("dedup-horizon: 0s\n");
         assertThat(r.accepted()).isEqualTo(6);
         assertThat(r.rejectedByReason()).isEmpty();
+    }
+
+    @Test
+    @DisplayName("files read as one partition share their ids; files read as two partitions do not")
+    void idsAreRememberedPerPartition() throws Exception {
+        BracketConfig config = BracketConfig.parse("r.yaml", STUDIES);
+        String event = "{\"study\":\"s\",\"id\":\"e-1\",\"unit\":1,\"treated\":true,\"outcome\":0.2,\"time\":1000}\n";
+
+        Replay onePartition = new Replay(config, config.inputs().get(0).fields(), 10, 0);
+        onePartition.newPartition("a.jsonl");
+        onePartition.readMore("a.jsonl", new ByteArrayInputStream(event.getBytes(StandardCharsets.UTF_8)));
+        onePartition.readMore("b.jsonl", new ByteArrayInputStream(event.getBytes(StandardCharsets.UTF_8)));
+        Replay.Result one = onePartition.finish();
+        assertThat(one.accepted()).isEqualTo(1);
+        assertThat(one.rejectedByReason()).containsExactlyEntriesOf(java.util.Map.of(RejectReason.DUPLICATE, 1L));
+
+        Replay twoPartitions = new Replay(config, config.inputs().get(0).fields(), 10, 0);
+        twoPartitions.read("a.jsonl", new ByteArrayInputStream(event.getBytes(StandardCharsets.UTF_8)));
+        twoPartitions.read("b.jsonl", new ByteArrayInputStream(event.getBytes(StandardCharsets.UTF_8)));
+        assertThat(twoPartitions.finish().accepted()).isEqualTo(2); // as on two input partitions of the monitor
     }
 }
