@@ -20,6 +20,7 @@ import dev.bracket.stream.ReportDocument;
 import dev.bracket.stream.SourcePartition;
 import dev.bracket.stream.SourceProgress;
 import dev.bracket.stream.WindowReport;
+import dev.bracket.stream.WindowSpans;
 
 import java.io.IOException;
 import java.lang.management.ManagementFactory;
@@ -138,9 +139,10 @@ public final class UpdateBenchmark {
         }
     }
 
-    /** The studies the updater recomputes after these changes (its own rule). */
+    /** The studies the bound updater recomputes after these changes: the changed ones, all when a window's span moved. */
     private static List<StudyConfig> dueStudies(Publisher p, MergedPartials.Changes changes) {
-        Set<String> due = changes.watermarkMoved() ? p.studies.stream().map(StudyConfig::id).collect(Collectors.toSet()) : changes.studies();
+        boolean all = changes.watermarkMoved() && p.spans.moved(p.merged.watermark());
+        Set<String> due = all ? p.studies.stream().map(StudyConfig::id).collect(Collectors.toSet()) : changes.studies();
         return p.studies.stream().filter(s -> due.contains(s.id())).toList();
     }
 
@@ -212,6 +214,7 @@ public final class UpdateBenchmark {
         final BracketConfig config;
         final List<StudyConfig> studies;
         final MergedPartials merged = new MergedPartials();
+        final WindowSpans spans;
         final int strata;
         long watermark = T0;
         long documentBytes;
@@ -236,11 +239,13 @@ public final class UpdateBenchmark {
                     """);
             config = BracketConfig.parse("updates.yaml", yaml.toString());
             studies = config.studies();
+            spans = new WindowSpans(config.windows());
             for (StudyConfig s : studies) {
                 fill(s.id(), rng);
             }
             progress();
             merged.takeChanges();
+            spans.moved(merged.watermark());
         }
 
         /** Every source's statistics of every stratum of the study in every window (the current pane). */

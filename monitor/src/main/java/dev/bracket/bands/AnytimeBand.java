@@ -10,8 +10,11 @@ import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 
+import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 import java.util.Optional;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The anytime-valid band: with probability at least {@code level}, at every look at once, the
@@ -59,6 +62,13 @@ public final class AnytimeBand {
     private final EmpiricalBernsteinBoundary singleCellBox;
     private final String perEndBasis;
     private final String singleCellBoxBasis;
+    /** Box boundaries and descriptions by number of sequences (times two, plus one with stratum shares): built once, not per band. */
+    private final Map<Integer, EmpiricalBernsteinBoundary> boxBoundaries = new ConcurrentHashMap<>();
+    private final Map<Integer, String> boxBases = new ConcurrentHashMap<>();
+
+    /** Bands by settings: building one costs more than a band, and the settings rarely change. */
+    private static final Map<List<Object>, AnytimeBand> SHARED = new ConcurrentHashMap<>();
+    private static final int MAX_SHARED = 16;
 
     /**
      * @param level        confidence level 1 - alpha, in (0, 1)
@@ -82,6 +92,19 @@ public final class AnytimeBand {
         this.singleCellBox = boxBoundary(3);
         this.perEndBasis = basis(true, false, 2);
         this.singleCellBoxBasis = basis(false, false, 3);
+    }
+
+    /** The band for these settings, built once and then reused (see the constructor). */
+    public static AnytimeBand shared(double level, long plannedCount, VarianceBasis variance) {
+        List<Object> key = List.of(level, plannedCount, variance);
+        AnytimeBand band = SHARED.get(key);
+        if (band == null) {
+            if (SHARED.size() >= MAX_SHARED) {
+                SHARED.clear();
+            }
+            band = SHARED.computeIfAbsent(key, k -> new AnytimeBand(level, plannedCount, variance));
+        }
+        return band;
     }
 
     /** The band from observed spreads, tuned for {@link #DEFAULT_PLANNED_COUNT}. */
@@ -109,7 +132,8 @@ public final class AnytimeBand {
         int shares = BoxProjection.shareCount(cells);
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
-                : sequences == 3 ? singleCellBoxBasis : basis(false, shares > 0, sequences);
+                : sequences == 3 ? singleCellBoxBasis
+                : boxBases.computeIfAbsent(2 * sequences + (shares > 0 ? 1 : 0), k -> basis(false, shares > 0, sequences));
         // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
@@ -117,7 +141,7 @@ public final class AnytimeBand {
         if (ends.isPresent()) {
             return perEnd(cells.pooled(), range, ends.get(), basis);
         }
-        EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundary(sequences);
+        EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundaries.computeIfAbsent(sequences, this::boxBoundary);
         return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, boundary),
                 (units, all) -> share(units, all, boundary)), basis);
     }

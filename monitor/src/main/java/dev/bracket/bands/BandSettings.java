@@ -66,7 +66,7 @@ public record BandSettings(double level, Set<BandMethod> methods, VarianceBasis 
         for (BandMethod m : methods) {
             out.add(switch (m) {
                 case FIXED_HORIZON -> FixedHorizonBand.of(cells, range, assumptions, level, variance, estimate);
-                case ANYTIME -> new AnytimeBand(level, plannedCount, variance).of(cells, range, assumptions, estimate);
+                case ANYTIME -> AnytimeBand.shared(level, plannedCount, variance).of(cells, range, assumptions, estimate);
             });
         }
         return List.copyOf(out);

@@ -57,7 +57,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     /** study + stratum already warned about for having units in one arm only. */
     private final Set<String> oneArmedWarned = new HashSet<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
-    private final boolean windowed;
+    private final WindowSpans spans;
     private final Consumer<PublishedReport> listener;
     private volatile boolean running = true;
     private volatile KafkaConsumer<byte[], byte[]> consumer;
@@ -81,7 +81,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         this.latest = latest;
         this.partialsPartitions = partialsPartitions;
         this.clock = clock;
-        this.windowed = config.windows().stream().anyMatch(w -> w.kind() != WindowSpec.Kind.CUMULATIVE);
+        this.spans = new WindowSpans(config.windows());
     }
 
     @Override
@@ -114,7 +114,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                 }
                 MergedPartials.Changes changes = merged.takeChanges();
                 pending.addAll(changes.studies());
-                if (windowed && changes.watermarkMoved()) {
+                if (changes.watermarkMoved() && spans.moved(merged.watermark())) { // a pane closed: time alone changed every study
                     config.studies().forEach(s -> pending.add(s.id()));
                 }
                 long now = System.nanoTime();

@@ -23,8 +23,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         long start = Long.MIN_VALUE;
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
-            long watermark = partials.watermark();
-            end = watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
+            end = end(window, partials.watermark());
             start = end - window.size().toMillis();
         }
         long from = start;
@@ -32,5 +31,10 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
                 study.range(), study.assumptions(), bands);
         return new WindowReport(study, window, start, end, report, partials.late(study.id(), window.name()));
+    }
+
+    /** End (exclusive) of a time window's span at {@code watermark}: the end of the watermark's pane; 0 before any event. */
+    static long end(WindowSpec window, long watermark) {
+        return watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
     }
 }
