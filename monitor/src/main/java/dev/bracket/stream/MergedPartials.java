@@ -77,7 +77,7 @@ public final class MergedPartials implements PartialsCodec.Sink {
 
     /** The study's cells of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
-        StudyCells out = StudyCells.empty();
+        StudyCells.Builder out = new StudyCells.Builder();
         for (Map.Entry<CellKey, Map<SourcePartition, ObservedArms>> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
             CellKey k = e.getKey();
             if (k.window().equals(window) && panes.test(k.paneStart())) {
@@ -85,9 +85,9 @@ public final class MergedPartials implements PartialsCodec.Sink {
                 for (ObservedArms a : e.getValue().values()) {
                     sum = sum.merge(a);
                 }
-                out = out.with(k.stratum(), k.level(), sum);
+                out.add(k.stratum(), k.level(), sum);
             }
         }
-        return out;
+        return out.build();
     }
 }
