@@ -12,7 +12,6 @@ import dev.bracket.bounds.StudyCells;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
-import dev.bracket.report.ReportJson;
 import dev.bracket.report.StudyReport;
 import dev.bracket.stream.CellKey;
 import dev.bracket.stream.MergedPartials;
@@ -288,11 +287,7 @@ public final class UpdateBenchmark {
             for (StudyConfig study : due) {
                 for (WindowSpec window : config.windows()) {
                     WindowReport report = WindowReport.current(study, window, merged, config.bands());
-                    try {
-                        bytes += ReportJson.mapper().writeValueAsBytes(ReportDocument.toJson(report, ++revision, now)).length;
-                    } catch (IOException e) {
-                        throw new IllegalStateException(e);
-                    }
+                    bytes += ReportDocument.bytes(report, ++revision, now).length;
                     docs++;
                 }
             }

@@ -1,13 +1,11 @@
 package dev.bracket.stream;
 
-import com.fasterxml.jackson.core.JsonProcessingException;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.LatestReports;
 import dev.bracket.report.PublishedReport;
-import dev.bracket.report.ReportJson;
 import dev.bracket.report.StudyReport;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
@@ -149,16 +147,12 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             WindowReport report = WindowReport.current(study, window, merged, config.bands());
             String key = study.id() + "/" + window.name();
             long revision = revisions.merge(key, 1L, Long::sum);
-            try {
-                byte[] doc = ReportJson.mapper().writeValueAsBytes(ReportDocument.toJson(report, revision, now));
-                producer.send(new ProducerRecord<>(config.topics().bounds(), key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
-                    if (e != null) {
-                        LOG.warn("publishing {} failed: {}", key, e.toString());
-                    }
-                });
-            } catch (JsonProcessingException e) {
-                throw new IllegalStateException("cannot encode the report of " + key, e);
-            }
+            byte[] doc = ReportDocument.bytes(report, revision, now);
+            producer.send(new ProducerRecord<>(config.topics().bounds(), key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
+                if (e != null) {
+                    LOG.warn("publishing {} failed: {}", key, e.toString());
+                }
+            });
             boolean cumulative = window.kind() == WindowSpec.Kind.CUMULATIVE;
             warnOneArmed(study.id(), report.report());
             PublishedReport published = new PublishedReport(study.id(), window.name(),
