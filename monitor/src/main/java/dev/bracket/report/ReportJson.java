@@ -1,6 +1,7 @@
 package dev.bracket.report;
 
 import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.io.SerializedString;
 import com.fasterxml.jackson.core.util.ByteArrayBuilder;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
@@ -14,6 +15,7 @@ import java.io.IOException;
 import java.io.UncheckedIOException;
 import java.util.Map;
 import java.util.TreeMap;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The versioned JSON form of a {@link StudyReport}. Field names are a public contract:
@@ -26,6 +28,8 @@ public final class ReportJson {
     public static final String SCHEMA = "bracket.bounds/2";
 
     private static final ObjectMapper MAPPER = new ObjectMapper();
+    private static final Map<String, SerializedString> FIXED_TEXTS = new ConcurrentHashMap<>();
+    private static final int MAX_FIXED_TEXTS = 1024;
 
     private ReportJson() {
     }
@@ -131,7 +135,7 @@ public final class ReportJson {
             g.writeString(id);
         }
         g.writeEndArray();
-        g.writeStringField("meaning", row.assumptions().meaning());
+        fixedText(g, "meaning", row.assumptions().meaning());
         if (instrumentLevels) {
             g.writeStringField("instrument", row.assumptions().instrument().id());
         } else {
@@ -170,7 +174,7 @@ public final class ReportJson {
         number(g, "width", band.width());
         g.writeBooleanField("excludesZero", band.excludesZero());
         g.writeStringField("sign", BoundRow.signWord(band.sign()));
-        g.writeStringField("basis", band.basis());
+        fixedText(g, "basis", band.basis());
         g.writeEndObject();
     }
 
@@ -180,6 +184,22 @@ public final class ReportJson {
         number(g, "upper", iv.upper());
         number(g, "width", iv.width());
         g.writeBooleanField("excludesZero", iv.excludesZero());
+    }
+
+    /**
+     * A text from a small fixed set (assumption meanings, band descriptions): escaped and encoded
+     * once, then copied; long texts written afresh were a good part of a document's cost.
+     */
+    private static void fixedText(JsonGenerator g, String field, String value) throws IOException {
+        SerializedString encoded = FIXED_TEXTS.get(value);
+        if (encoded == null) {
+            if (FIXED_TEXTS.size() >= MAX_FIXED_TEXTS) {
+                FIXED_TEXTS.clear();
+            }
+            encoded = FIXED_TEXTS.computeIfAbsent(value, SerializedString::new);
+        }
+        g.writeFieldName(field);
+        g.writeString(encoded);
     }
 
     private static void number(JsonGenerator g, String field, double value) throws IOException {
