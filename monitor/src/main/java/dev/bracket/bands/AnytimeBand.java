@@ -10,6 +10,7 @@ import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 
+import java.util.IdentityHashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
@@ -65,6 +66,7 @@ public final class AnytimeBand {
     /** Box boundaries and descriptions by number of sequences (times two, plus one with stratum shares): built once, not per band. */
     private final Map<Integer, EmpiricalBernsteinBoundary> boxBoundaries = new ConcurrentHashMap<>();
     private final Map<Integer, String> boxBases = new ConcurrentHashMap<>();
+    private volatile CellBoxes lastBoxes;
 
     /** Bands by settings: building one costs more than a band, and the settings rarely change. */
     private static final Map<List<Object>, AnytimeBand> SHARED = new ConcurrentHashMap<>();
@@ -142,7 +144,12 @@ public final class AnytimeBand {
             return perEnd(cells.pooled(), range, ends.get(), basis);
         }
         EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundaries.computeIfAbsent(sequences, this::boxBoundary);
-        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, boundary),
+        CellBoxes boxes = lastBoxes;
+        if (boxes == null || boxes.cells() != cells || !boxes.range().equals(range) || boxes.boundary() != boundary) {
+            boxes = new CellBoxes(cells, range, boundary, boxesOf(cells, range, boundary));
+            lastBoxes = boxes;
+        }
+        return band(BoxProjection.study(cells, range, assumptions, boxes.byCell()::get,
                 (units, all) -> share(units, all, boundary)), basis);
     }
 
@@ -168,6 +175,27 @@ public final class AnytimeBand {
         double lower = lo.mean() - perEnd.radius(lo.count(), lo.m2(), ends.lower().max(range) - loMin, lo.mean() - loMin);
         double upper = hi.mean() + perEnd.radius(hi.count(), hi.m2(), hiMax - ends.upper().min(range), hiMax - hi.mean());
         return ConfidenceBand.of(BandMethod.ANYTIME, level, lower, Math.max(lower, upper), basis);
+    }
+
+    /**
+     * The boxes of a study's cells: they do not depend on the assumptions, so a report's
+     * assumption sets share them (the last study's, compared by identity; threads that interleave
+     * studies only compute them again).
+     */
+    private record CellBoxes(StudyCells cells, OutcomeRange range, EmpiricalBernsteinBoundary boundary,
+                             Map<ObservedArms, ObservablesBox> byCell) {
+    }
+
+    private Map<ObservedArms, ObservablesBox> boxesOf(StudyCells cells, OutcomeRange range, EmpiricalBernsteinBoundary boundary) {
+        Map<ObservedArms, ObservablesBox> out = new IdentityHashMap<>();
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            for (ObservedArms arms : levels.values()) {
+                if (arms.total() > 0) { // the projection skips cells without units
+                    out.put(arms, box(arms, range, boundary));
+                }
+            }
+        }
+        return out;
     }
 
     /** Each two-sided sequence of the box route: two one-sided bounds at {@code alpha / (2 sequences)}. */
