@@ -49,7 +49,8 @@ import java.util.concurrent.ConcurrentHashMap;
  * value for outcomes in the declared range. The boundary's tuning is fixed by
  * {@code plannedCount}, chosen before the data are seen.
  *
- * <p>Immutable and thread-safe; build one per configured level and reuse it.
+ * <p>Thread-safe; its results depend on its settings only (it keeps what it built for earlier bands:
+ * boundaries, descriptions and the last study's cell boxes); build one per configured level and reuse it.
  */
 public final class AnytimeBand {
 
