@@ -4,10 +4,10 @@ import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
-import dev.bracket.stream.KafkaClients;
-import dev.bracket.stream.Monitor;
-import dev.bracket.stream.TopicSetup;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.Monitor;
+import dev.bracket.app.TopicSetup;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.consumer.ConsumerConfig;
@@ -39,16 +39,20 @@ import java.util.concurrent.TimeUnit;
  * then RUNS rounds of
  *
  * <ol>
- *   <li><b>plain</b>: a consumer (default settings) that polls every record and runs Jackson's
- *       streaming parser over all its tokens, nothing else;</li>
+ *   <li><b>bare</b>: a consumer (default settings) that polls every record and touches its
+ *       length, nothing else: what one consumer thread can take from this broker at all;</li>
+ *   <li><b>plain</b>: the same consumer running Jackson's streaming parser over all tokens of
+ *       every record, nothing else;</li>
  *   <li><b>streams</b>: {@link StreamsPeer}, the same cell statistics (cumulative and hourly
  *       windows) as a Kafka Streams exactly-once v2 {@code groupByKey().aggregate()} into a
  *       RocksDB store, same commit interval;</li>
  *   <li><b>monitor</b>: Bracket's {@link Monitor} (aggregator with Kafka transactions, bound
- *       updater and alert evaluator running) with its default settings, in a fresh consumer group.</li>
+ *       updater and alert evaluator running) with its default settings, in a fresh consumer group;</li>
+ *   <li><b>monitor x2</b>: the same with {@code group-members: 2}, two aggregation members sharing the
+ *       three partitions (on a 2-core machine they also share the cores with the broker).</li>
  * </ol>
  *
- * Events per second = EVENTS / (time from owning the partitions (2, 3) or the first poll (1)
+ * Events per second = EVENTS / (time from owning the partitions (3, 4, 5) or the first poll (1, 2)
  * until the last event was folded in). The closing transaction of (2) and (3) follows within one
  * commit interval and is waited for but not timed; then the results are checked (the store's
  * counts or the committed offsets add up to EVENTS, else the harness stops with an error). The
@@ -57,7 +61,7 @@ import java.util.concurrent.TimeUnit;
  * judges nothing; not part of the test suite ({@code bench/run} runs it).
  *
  * <pre>
- * AggregationBenchmark [EVENTS] [RUNS] [all|plain|streams|monitor]
+ * AggregationBenchmark [EVENTS] [RUNS] [all|bare|plain|streams|monitor|monitor2]
  * </pre>
  */
 public final class AggregationBenchmark {
@@ -84,43 +88,57 @@ public final class AggregationBenchmark {
             long bytes = produce(broker, events);
             System.out.printf(Locale.ROOT, "%,d events on '%s', %.0f bytes of JSON each on average, 3 partitions; commit interval %d ms%n",
                     events, TOPIC, (double) bytes / events, base.commitInterval().toMillis());
+            double[] bare = new double[runs];
             double[] plain = new double[runs];
             double[] streams = new double[runs];
             double[] monitor = new double[runs];
+            double[] monitor2 = new double[runs];
+            double[] vsBare = new double[runs];
             double[] vsPlain = new double[runs];
             double[] vsStreams = new double[runs];
             if (!only.equals("all")) {
                 for (int r = 0; r < runs; r++) {
                     double rate = switch (only) {
-                        case "plain" -> plainConsumerParsing(broker, events);
+                        case "bare" -> plainConsumer(broker, events, false);
+                        case "plain" -> plainConsumer(broker, events, true);
                         case "streams" -> streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
-                        case "monitor" -> monitor(broker, events, "bench-monitor-" + r);
+                        case "monitor" -> monitor(broker, events, "bench-monitor-" + r, 1);
+                        case "monitor2" -> monitor(broker, events, "bench-monitor2-" + r, 2);
                         default -> throw new IllegalArgumentException("unknown contender " + only);
                     };
                     System.out.printf(Locale.ROOT, "run %d: %s %,.0f events/s (%s)%n", r + 1, only, rate, cpuNote);
                 }
                 return;
             }
-            double warmPlain = plainConsumerParsing(broker, events);
+            double warmBare = plainConsumer(broker, events, false);
+            double warmPlain = plainConsumer(broker, events, true);
             double warmStreams = streamsPeer(broker, events, "bench-streams-warm", dir.resolve("streams-warm"));
-            double warmMonitor = monitor(broker, events, "bench-monitor-warm");
-            System.out.printf(Locale.ROOT, "warm-up (not counted): plain %,.0f/s; Kafka Streams %,.0f/s; monitor %,.0f/s%n",
-                    warmPlain, warmStreams, warmMonitor);
+            double warmMonitor = monitor(broker, events, "bench-monitor-warm", 1);
+            System.out.printf(Locale.ROOT, "warm-up (not counted): bare %,.0f/s; plain %,.0f/s; Kafka Streams %,.0f/s; monitor %,.0f/s%n",
+                    warmBare, warmPlain, warmStreams, warmMonitor);
             for (int r = 0; r < runs; r++) {
-                plain[r] = plainConsumerParsing(broker, events);
+                bare[r] = plainConsumer(broker, events, false);
+                plain[r] = plainConsumer(broker, events, true);
                 streams[r] = streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
-                monitor[r] = monitor(broker, events, "bench-monitor-" + r);
+                monitor[r] = monitor(broker, events, "bench-monitor-" + r, 1);
+                vsBare[r] = monitor[r] / bare[r];
                 vsPlain[r] = monitor[r] / plain[r];
                 vsStreams[r] = monitor[r] / streams[r];
-                System.out.printf(Locale.ROOT, "run %d: plain consumer + parse %,.0f events/s; Kafka Streams EOS %,.0f/s; monitor %,.0f/s;"
-                        + " monitor/plain %.2f, monitor/streams %.2f%n", r + 1, plain[r], streams[r], monitor[r], vsPlain[r], vsStreams[r]);
+                System.out.printf(Locale.ROOT, "run %d: bare consumer %,.0f events/s; plain consumer + parse %,.0f/s; Kafka Streams EOS %,.0f/s;"
+                        + " monitor %,.0f/s; monitor/bare %.2f, monitor/plain %.2f, monitor/streams %.2f%n",
+                        r + 1, bare[r], plain[r], streams[r], monitor[r], vsBare[r], vsPlain[r], vsStreams[r]);
                 System.out.printf(Locale.ROOT, "  monitor's aggregator: %s; machine load average %.1f (this benchmark alone keeps it near 2; well above, other work shared the cores)%n",
                         cpuNote, ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
+                monitor2[r] = monitor(broker, events, "bench-monitor2-" + r, 2);
+                System.out.printf(Locale.ROOT, "  monitor with 2 aggregation members %,.0f events/s (%.2f x one member)%n", monitor2[r], monitor2[r] / monitor[r]);
             }
             System.out.println("over " + runs + " runs, median (min-max):");
+            System.out.println("  bare consumer           " + Stats.summary(bare, "%,.0f") + " events/s");
             System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
             System.out.println("  Kafka Streams EOS       " + Stats.summary(streams, "%,.0f") + " events/s");
             System.out.println("  Bracket monitor         " + Stats.summary(monitor, "%,.0f") + " events/s");
+            System.out.println("  monitor, 2 members      " + Stats.summary(monitor2, "%,.0f") + " events/s");
+            System.out.println("  monitor / bare          " + Stats.summary(vsBare, "%.2f") + "   (no target: the share of one thread's reading limit)");
             System.out.println("  monitor / plain         " + Stats.summary(vsPlain, "%.2f") + "   (target >= 0.80)");
             System.out.println("  monitor / streams       " + Stats.summary(vsStreams, "%.2f") + "   (target >= 2.50)");
         } finally {
@@ -129,6 +147,10 @@ public final class AggregationBenchmark {
     }
 
     private static BracketConfig config(EmbeddedBroker broker, String group) {
+        return config(broker, group, 1);
+    }
+
+    private static BracketConfig config(EmbeddedBroker broker, String group, int members) {
         return BracketConfig.parse("bench.yaml", BenchEvents.STUDIES + """
                 inputs:
                   - topic: %s
@@ -136,11 +158,12 @@ public final class AggregationBenchmark {
                 alerts: {topic: %s-alerts}
                 windows:
                   - {name: hourly, kind: tumbling, size: 1h}
+                group-members: %d
                 group: %s
                 instance: %s
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(TOPIC, group, group, group, group, group, broker.bootstrapServers()));
+                """.formatted(TOPIC, group, group, group, members, group, group, broker.bootstrapServers()));
     }
 
     private static long produce(EmbeddedBroker broker, int events) {
@@ -162,8 +185,8 @@ public final class AggregationBenchmark {
         return bytes;
     }
 
-    /** Reference (1): poll every record and run the streaming parser over all its tokens. */
-    private static double plainConsumerParsing(EmbeddedBroker broker, int events) throws IOException {
+    /** References (1) and (2): poll every record and touch its length, or run the streaming parser over all its tokens. */
+    private static double plainConsumer(EmbeddedBroker broker, int events, boolean parse) throws IOException {
         try (KafkaConsumer<byte[], byte[]> c = new KafkaConsumer<>(Map.of(
                 ConsumerConfig.BOOTSTRAP_SERVERS_CONFIG, broker.bootstrapServers(),
                 ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false),
@@ -179,10 +202,14 @@ public final class AggregationBenchmark {
             while (seen < events) {
                 deadline.check();
                 for (ConsumerRecord<byte[], byte[]> r : c.poll(Duration.ofMillis(100))) {
-                    try (JsonParser p = JSON.createParser(r.value())) {
-                        while (p.nextToken() != null) {
-                            tokens++;
+                    if (parse) {
+                        try (JsonParser p = JSON.createParser(r.value())) {
+                            while (p.nextToken() != null) {
+                                tokens++;
+                            }
                         }
+                    } else {
+                        tokens += r.value().length; // bytes, so the loop cannot be optimised away
                     }
                     seen++;
                 }
@@ -219,8 +246,8 @@ public final class AggregationBenchmark {
     }
 
     /** Bracket's monitor in a fresh consumer group. */
-    private static double monitor(EmbeddedBroker broker, int events, String group) throws Exception {
-        BracketConfig config = config(broker, group);
+    private static double monitor(EmbeddedBroker broker, int events, String group, int members) throws Exception {
+        BracketConfig config = config(broker, group, members);
         try (Admin admin = new KafkaClients(config).admin();
              Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), new LatestReports())) {
             Deadline.await(Duration.ofSeconds(60), "the monitor's partition assignment", () -> monitor.assignedPartitions() >= 3);

@@ -1,13 +1,16 @@
 package dev.bracket.bench;
 
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.TopicSetup;
+import dev.bracket.app.Monitor;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.ReportJson;
-import dev.bracket.stream.KafkaClients;
-import dev.bracket.stream.Monitor;
-import dev.bracket.stream.TopicSetup;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.render.ReportJson;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.Monitor;
+import dev.bracket.app.TopicSetup;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.HdrHistogram.Histogram;
 import org.apache.kafka.clients.admin.Admin;

@@ -1,12 +1,16 @@
 package dev.bracket.bench;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.SourcePartition;
 import com.fasterxml.jackson.core.JsonFactory;
 import com.fasterxml.jackson.core.JsonParser;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.stream.EventParser;
-import dev.bracket.stream.ParsedEvent;
-import dev.bracket.stream.PartitionState;
-import dev.bracket.stream.SourcePartition;
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.SourcePartition;
 
 import java.io.IOException;
 import java.util.Locale;
@@ -72,7 +76,7 @@ public final class HotPathBenchmark {
                 }
             }
             long t3 = System.nanoTime();
-            if (tokens == 0 || usable != events || state.cells().isEmpty()) {
+            if (tokens == 0 || usable != events || state.panes().isEmpty()) {
                 throw new IllegalStateException("events not read as expected");
             }
             System.out.printf(Locale.ROOT, "round %d: Jackson tokens %.0f ns/event; EventParser %.0f ns; parse + fold %.0f ns%n",

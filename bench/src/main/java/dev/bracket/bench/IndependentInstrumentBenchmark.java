@@ -1,6 +1,6 @@
 package dev.bracket.bench;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -49,7 +49,7 @@ public final class IndependentInstrumentBenchmark {
     public static void main(String[] args) {
         int calls = args.length > 0 ? Integer.parseInt(args[0]) : 300;
         int rounds = args.length > 1 ? Integer.parseInt(args[1]) : 5;
-        BandSettings bands = BandSettings.both(0.95);
+        BandConfig bands = BandConfig.both(0.95);
         for (boolean measure : new boolean[] {false, true}) {
             if (measure) {
                 System.out.println("CPU microseconds per study per publish (interval + fixed-horizon + anytime band), median of "
@@ -73,7 +73,7 @@ public final class IndependentInstrumentBenchmark {
         }
     }
 
-    private static double time(int levels, List<AssumptionSet> sets, BandSettings bands, int calls, int rounds) {
+    private static double time(int levels, List<AssumptionSet> sets, BandConfig bands, int calls, int rounds) {
         SplittableRandom rng = new SplittableRandom(7);
         List<StudyCells> inputs = new ArrayList<>();
         for (int i = 0; i < calls; i++) {

@@ -1,9 +1,11 @@
 package dev.bracket.bench;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.WindowSpec;
-import dev.bracket.stream.EventParser;
-import dev.bracket.stream.ParsedEvent;
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
 import org.apache.kafka.common.serialization.Serdes;
 import org.apache.kafka.common.utils.Bytes;
 import org.apache.kafka.streams.KafkaStreams;
@@ -31,7 +33,7 @@ import java.util.concurrent.TimeUnit;
 import java.util.concurrent.atomic.AtomicLong;
 
 /**
- * The benchmark's peer: the same per-cell statistics written the way a Kafka Streams user
+ * The benchmark's peer: the same per-row statistics written the way a Kafka Streams user
  * would, exactly-once (EOS v2), one stream thread. Each event is parsed by the monitor's own
  * {@link EventParser} (so the comparison is about the aggregation, not the parser), re-keyed by
  * its cells (study, stratum, instrument level, window and pane: one per configured window, as

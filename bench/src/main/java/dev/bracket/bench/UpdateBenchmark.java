@@ -1,6 +1,6 @@
 package dev.bracket.bench;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.ImbensManski;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
@@ -13,13 +13,13 @@ import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.StudyReport;
-import dev.bracket.stream.CellKey;
-import dev.bracket.stream.MergedPartials;
-import dev.bracket.stream.ReportDocument;
-import dev.bracket.stream.SourcePartition;
-import dev.bracket.stream.SourceProgress;
-import dev.bracket.stream.WindowReport;
-import dev.bracket.stream.WindowSpans;
+import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.ReportDocument;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.ingest.SourceProgress;
+import dev.bracket.stream.publish.WindowReport;
+import dev.bracket.stream.publish.WindowSpans;
 
 import java.io.IOException;
 import java.lang.management.ManagementFactory;
@@ -94,8 +94,8 @@ public final class UpdateBenchmark {
         System.out.println("|---|---|---|---|---|");
         SplittableRandom rng = new SplittableRandom(16);
         List<AssumptionSet> seven = AssumptionSet.eachSingle();
-        BandSettings none = BandSettings.none();
-        BandSettings both = BandSettings.both(0.95);
+        BandConfig none = BandConfig.none();
+        BandConfig both = BandConfig.both(0.95);
         List<StudyCells> single = new ArrayList<>();
         List<StudyCells> strata = new ArrayList<>();
         List<StudyCells> levels = new ArrayList<>();
@@ -252,8 +252,8 @@ public final class UpdateBenchmark {
             for (WindowSpec w : config.windows()) {
                 for (SourcePartition source : SOURCES) {
                     for (int s = 0; s < strata; s++) {
-                        CellKey key = new CellKey(study, strata == 1 ? StudyCells.NONE : "s" + s, StudyCells.NONE, w.name(), w.paneStart(watermark));
-                        merged.cell(source, key, arms(rng, 1.0 / SOURCES.size()));
+                        PaneKey key = new PaneKey(study, strata == 1 ? StudyCells.NONE : "s" + s, StudyCells.NONE, w.name(), w.paneStart(watermark));
+                        merged.pane(source, key, arms(rng, 1.0 / SOURCES.size()));
                     }
                 }
             }

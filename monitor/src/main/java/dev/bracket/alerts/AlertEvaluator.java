@@ -15,10 +15,11 @@ import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 import java.util.TreeMap;
 
 /**
- * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-cell rules are
+ * Judges every configured rule and keeps one {@link AlertState} per alert key. Per-row rules are
  * judged on each bound update ({@link #evaluate}); per-study rules on a clock ({@link #tick}),
  * which is injected so tests control time. Pure logic: the transitions it returns go to the sinks
  * through {@link AlertDispatcher}. Thread-safe (one lock; alert traffic is tiny).
@@ -49,7 +50,7 @@ public final class AlertEvaluator {
     }
 
     /**
-     * Judges the per-cell rules of the snapshot's study. Nothing is judged (and no state
+     * Judges the per-row rules of the snapshot's study. Nothing is judged (and no state
      * changes) while either arm has fewer than the study's min-per-arm units, the interval
      * lacks data, or the configured band is missing.
      *
@@ -64,8 +65,8 @@ public final class AlertEvaluator {
             return List.of();
         }
         List<AlertTransition> out = new ArrayList<>();
-        for (CellRule rule : config.cellRules()) {
-            AlertKey key = AlertKey.perCell(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
+        for (RowRule rule : config.rowRules()) {
+            AlertKey key = AlertKey.perRow(snapshot.study(), snapshot.assumptions(), snapshot.window(), rule.rule());
             Verdict verdict = rule.judge(snapshot.interval(), band.get());
             Evidence evidence = new Evidence.OfBand(snapshot.arms(), snapshot.interval(), band.get(), rule.limits());
             apply(key, verdict, evidence, snapshot.at(), config.clearAfter(), snapshot.assumptions().meaning(), out);
@@ -86,12 +87,14 @@ public final class AlertEvaluator {
     }
 
     /**
-     * Counts rejected records whose study could not be read (at the clock's time): they count
-     * against every study's data quality, since they may be any study's.
+     * Counts rejected records whose study could not be read against {@code study}'s data quality
+     * (at the clock's time): they may be any study's, so the caller tells every study it judges.
      */
-    public synchronized void recordUnattributed(long rejected) {
-        Instant now = clock.instant();
-        traffic.values().forEach(counts -> counts.recordUnattributed(now, rejected));
+    public synchronized void recordUnattributed(String study, long rejected) {
+        EventCounts counts = traffic.get(study);
+        if (counts != null) {
+            counts.recordUnattributed(clock.instant(), rejected);
+        }
     }
 
     /**
@@ -119,15 +122,20 @@ public final class AlertEvaluator {
     }
 
     /** The time on the evaluator's clock. */
-    Instant now() {
+    public Instant now() {
         return clock.instant();
     }
 
     /** Judges the per-study rules (stream stalled, data quality) at the clock's time. */
-    public synchronized List<AlertTransition> tick() {
+    public List<AlertTransition> tick() {
+        return tick(studies.keySet());
+    }
+
+    /** Judges the per-study rules of the given studies only (those this instance owns). */
+    public synchronized List<AlertTransition> tick(Set<String> judged) {
         Instant now = clock.instant();
         List<AlertTransition> out = new ArrayList<>();
-        studies.entrySet().stream().sorted(Map.Entry.comparingByKey()).forEach(e -> {
+        studies.entrySet().stream().filter(e -> judged.contains(e.getKey())).sorted(Map.Entry.comparingByKey()).forEach(e -> {
             String study = e.getKey();
             StudyAlertConfig config = e.getValue();
             EventCounts counts = traffic.get(study);
@@ -159,6 +167,21 @@ public final class AlertEvaluator {
         }
     }
 
+    /** The configured studies. */
+    public Set<String> studies() {
+        return studies.keySet();
+    }
+
+    /**
+     * Drops the states and traffic of {@code gone}: another instance judges them now (and a later
+     * owner restores the states from the alerts topic and the last event times from the ledger,
+     * {@link #restoreLastEvents}).
+     */
+    public synchronized void forget(Set<String> gone) {
+        states.keySet().removeIf(k -> gone.contains(k.study()));
+        gone.forEach(study -> traffic.computeIfPresent(study, (s, old) -> new EventCounts(old.period())));
+    }
+
     private boolean configured(AlertKey key) {
         StudyAlertConfig c = studies.get(key.study());
         if (c == null) {
@@ -167,7 +190,7 @@ public final class AlertEvaluator {
         return switch (key.rule()) {
             case STREAM_STALLED -> c.stalled().isPresent();
             case DATA_QUALITY -> c.quality().isPresent();
-            default -> c.cellRules().stream().anyMatch(r -> r.rule() == key.rule());
+            default -> c.rowRules().stream().anyMatch(r -> r.rule() == key.rule());
         };
     }
 
@@ -186,7 +209,7 @@ public final class AlertEvaluator {
                        List<AlertTransition> out) {
         AlertState.Step step = state(key).next(verdict, evidence, at, clearAfter, meaning);
         if (step.state().sequence() == 0) {
-            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with cells
+            states.remove(key); // keys that never fired keep no state: memory grows with alerts, not with rows
         } else {
             states.put(key, step.state());
         }

@@ -21,7 +21,7 @@ public record AlertKey(String study, String assumptions, String window, AlertRul
         }
     }
 
-    public static AlertKey perCell(String study, AssumptionSet assumptions, String window, AlertRule rule) {
+    public static AlertKey perRow(String study, AssumptionSet assumptions, String window, AlertRule rule) {
         return new AlertKey(study, assumptions.toString(), window, rule);
     }
 

@@ -26,13 +26,13 @@ public enum AlertRule {
     DATA_QUALITY("data-quality", false, "rejected share of events above the limit", "rejected share of events back within the limit");
 
     private final String id;
-    private final boolean perCell;
+    private final boolean perRow;
     private final String firingTitle;
     private final String resolvedTitle;
 
-    AlertRule(String id, boolean perCell, String firingTitle, String resolvedTitle) {
+    AlertRule(String id, boolean perRow, String firingTitle, String resolvedTitle) {
         this.id = id;
-        this.perCell = perCell;
+        this.perRow = perRow;
         this.firingTitle = firingTitle;
         this.resolvedTitle = resolvedTitle;
     }
@@ -55,8 +55,8 @@ public enum AlertRule {
      * True for rules judged per study × assumption set × window from a band; false for rules
      * judged per study on a clock (their keys carry {@link AlertKey#ANY} for set and window).
      */
-    public boolean perCell() {
-        return perCell;
+    public boolean perRow() {
+        return perRow;
     }
 
     public static AlertRule fromId(String id) {

@@ -6,7 +6,7 @@ import java.time.Duration;
 import java.util.Locale;
 
 /** How numbers, bands and durations are written in alert sentences. */
-final class AlertText {
+public final class AlertText {
 
     private AlertText() {
     }
@@ -25,7 +25,7 @@ final class AlertText {
     }
 
     /** A duration as people say it, e.g. {@code 5m 30s}. */
-    static String duration(Duration d) {
+    public static String duration(Duration d) {
         long s = d.toSeconds();
         if (s == 0) {
             return d.toMillis() + "ms";

@@ -13,14 +13,14 @@ import java.util.Map;
  * {@link ConfidenceBand}). Sampling error does not explain the contradiction. A refuted point
  * estimate alone does not fire: it can be noise.
  *
- * @param clearMargin a firing alert resolves at once when the band exists again with at least this
+ * @param clearMinWidth a firing alert resolves at once when the band exists again with at least this
  *                    width; 0 disables the margin
  */
-public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
+public record AssumptionsRefutedRule(double clearMinWidth) implements RowRule {
 
     public AssumptionsRefutedRule {
-        if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {
-            throw new IllegalArgumentException("assumptions-refuted clear-margin must be a finite number >= 0, was " + clearMargin);
+        if (!(clearMinWidth >= 0) || Double.isInfinite(clearMinWidth)) {
+            throw new IllegalArgumentException("assumptions-refuted clear-min-width must be a finite number >= 0, was " + clearMinWidth);
         }
     }
 
@@ -36,8 +36,8 @@ public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
             return Verdict.met("", seen + ": no treated share and arm means in the confidence region satisfy the assumptions"
                     + (interval.isBounded() ? "" : ", and the estimate is refuted too"));
         }
-        if (clearMargin > 0 && band.width() >= clearMargin) {
-            return Verdict.clear(seen + " exists, with width at least the clear margin " + AlertText.num(clearMargin));
+        if (clearMinWidth > 0 && band.width() >= clearMinWidth) {
+            return Verdict.clear(seen + " exists, with width at least clear-min-width " + AlertText.num(clearMinWidth));
         }
         return Verdict.unmet(seen + " exists: the contradiction is within sampling error");
     }
@@ -45,7 +45,7 @@ public record AssumptionsRefutedRule(double clearMargin) implements CellRule {
     @Override
     public Map<String, Double> limits() {
         Map<String, Double> m = new LinkedHashMap<>();
-        m.put("clearMargin", clearMargin);
+        m.put("clearMinWidth", clearMinWidth);
         return m;
     }
 }

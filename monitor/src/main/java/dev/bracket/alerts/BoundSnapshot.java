@@ -11,7 +11,7 @@ import java.util.List;
 import java.util.Optional;
 
 /**
- * Everything the per-cell alert rules judge, for one study × assumption set × window at one
+ * Everything the per-row alert rules judge, for one study × assumption set × window at one
  * update: the pooled arms, the estimated identified interval and the confidence bands that were
  * computed (at most one per method).
  */

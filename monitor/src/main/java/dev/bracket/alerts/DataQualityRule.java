@@ -13,10 +13,10 @@ import java.time.Duration;
  * @param period      how far back events are counted
  * @param minEvents   fewer events than this in the period judge nothing (a single bad event out of
  *                    three is not a data-quality finding)
- * @param clearMargin a firing alert resolves at once when the share falls to {@code maxShare - clearMargin}
+ * @param clearShareBelow a firing alert resolves at once when the share falls to {@code maxShare - clearShareBelow}
  *                    or below; 0 disables the margin
  */
-public record DataQualityRule(double maxShare, Duration period, long minEvents, double clearMargin) {
+public record DataQualityRule(double maxShare, Duration period, long minEvents, double clearShareBelow) {
 
     public DataQualityRule {
         if (!(maxShare >= 0 && maxShare < 1)) {
@@ -28,8 +28,8 @@ public record DataQualityRule(double maxShare, Duration period, long minEvents, 
         if (minEvents < 1) {
             throw new IllegalArgumentException("data-quality min-events must be at least 1, was " + minEvents);
         }
-        if (!(clearMargin >= 0 && clearMargin <= maxShare)) {
-            throw new IllegalArgumentException("data-quality clear-margin must lie in [0, max-rejected-share], was " + clearMargin);
+        if (!(clearShareBelow >= 0 && clearShareBelow <= maxShare)) {
+            throw new IllegalArgumentException("data-quality clear-share-below must lie in [0, max-rejected-share], was " + clearShareBelow);
         }
     }
 
@@ -45,8 +45,8 @@ public record DataQualityRule(double maxShare, Duration period, long minEvents, 
         if (counts.rejectedShare() > maxShare) {
             return Verdict.met("", seen);
         }
-        if (clearMargin > 0 && counts.rejectedShare() <= maxShare - clearMargin) {
-            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearMargin));
+        if (clearShareBelow > 0 && counts.rejectedShare() <= maxShare - clearShareBelow) {
+            return Verdict.clear(seen + ", below the limit by clear-share-below " + AlertText.num(clearShareBelow));
         }
         return Verdict.unmet(seen);
     }

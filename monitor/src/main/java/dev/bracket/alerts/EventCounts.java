@@ -22,6 +22,11 @@ final class EventCounts {
     /** Null until an event arrives or a time from before the restart is restored. */
     private Instant lastEventAt;
 
+    /** The counting period. */
+    Duration period() {
+        return period;
+    }
+
     /** @param period the counting period */
     EventCounts(Duration period) {
         this.period = period;

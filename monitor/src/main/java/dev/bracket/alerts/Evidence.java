@@ -14,7 +14,7 @@ import java.util.Map;
 public sealed interface Evidence {
 
     /**
-     * For per-cell rules: the pooled arms, the estimated identified interval, the band that was
+     * For per-row rules: the pooled arms, the estimated identified interval, the band that was
      * judged and the rule's configured limits by name (e.g. {@code width}).
      */
     record OfBand(ObservedArms arms, IdentifiedInterval interval, ConfidenceBand band, Map<String, Double> limits)

@@ -12,17 +12,17 @@ import java.util.Map;
  * the band narrows toward it as data accrue.
  *
  * @param width       the band must be strictly narrower than this
- * @param clearMargin a firing alert resolves at once when the band is at least {@code width + clearMargin}
+ * @param clearExtraWidth a firing alert resolves at once when the band is at least {@code width + clearExtraWidth}
  *                    wide; 0 disables the margin
  */
-public record IntervalNarrowRule(double width, double clearMargin) implements CellRule {
+public record IntervalNarrowRule(double width, double clearExtraWidth) implements RowRule {
 
     public IntervalNarrowRule {
         if (!(width > 0) || Double.isInfinite(width)) {
             throw new IllegalArgumentException("interval-narrow width must be a finite number > 0, was " + width);
         }
-        if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {
-            throw new IllegalArgumentException("interval-narrow clear-margin must be a finite number >= 0, was " + clearMargin);
+        if (!(clearExtraWidth >= 0) || Double.isInfinite(clearExtraWidth)) {
+            throw new IllegalArgumentException("interval-narrow clear-extra-width must be a finite number >= 0, was " + clearExtraWidth);
         }
     }
 
@@ -41,8 +41,8 @@ public record IntervalNarrowRule(double width, double clearMargin) implements Ce
         if (band.width() < width) {
             return Verdict.met("", seen + ", " + widths);
         }
-        if (clearMargin > 0 && band.width() >= width + clearMargin) {
-            return Verdict.clear(seen + ", " + widths + ", beyond the clear margin " + AlertText.num(clearMargin));
+        if (clearExtraWidth > 0 && band.width() >= width + clearExtraWidth) {
+            return Verdict.clear(seen + ", " + widths + ", beyond clear-extra-width " + AlertText.num(clearExtraWidth));
         }
         return Verdict.unmet(seen + ", " + widths);
     }
@@ -51,7 +51,7 @@ public record IntervalNarrowRule(double width, double clearMargin) implements Ce
     public Map<String, Double> limits() {
         Map<String, Double> m = new LinkedHashMap<>();
         m.put("width", width);
-        m.put("clearMargin", clearMargin);
+        m.put("clearExtraWidth", clearExtraWidth);
         return m;
     }
 }

@@ -13,17 +13,17 @@ import java.util.Map;
  *
  * @param low         lower end of the range of practical equivalence
  * @param high        upper end
- * @param clearMargin a firing alert resolves at once when the band reaches beyond the range by at
+ * @param clearOutsideBy a firing alert resolves at once when the band reaches beyond the range by at
  *                    least this much; 0 disables the margin
  */
-public record PracticalEquivalenceRule(double low, double high, double clearMargin) implements CellRule {
+public record PracticalEquivalenceRule(double low, double high, double clearOutsideBy) implements RowRule {
 
     public PracticalEquivalenceRule {
         if (!Double.isFinite(low) || !Double.isFinite(high) || !(low < high)) {
             throw new IllegalArgumentException("practical-equivalence needs finite lower < upper, was [" + low + ", " + high + "]");
         }
-        if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {
-            throw new IllegalArgumentException("practical-equivalence clear-margin must be a finite number >= 0, was " + clearMargin);
+        if (!(clearOutsideBy >= 0) || Double.isInfinite(clearOutsideBy)) {
+            throw new IllegalArgumentException("practical-equivalence clear-outside-by must be a finite number >= 0, was " + clearOutsideBy);
         }
     }
 
@@ -43,8 +43,8 @@ public record PracticalEquivalenceRule(double low, double high, double clearMarg
         if (inside) {
             return Verdict.met("", seen + " lies inside " + range);
         }
-        if (clearMargin > 0 && (band.lower() < low - clearMargin || band.upper() > high + clearMargin)) {
-            return Verdict.clear(seen + " reaches beyond " + range + " by more than the clear margin " + AlertText.num(clearMargin));
+        if (clearOutsideBy > 0 && (band.lower() < low - clearOutsideBy || band.upper() > high + clearOutsideBy)) {
+            return Verdict.clear(seen + " reaches beyond " + range + " by more than clear-outside-by " + AlertText.num(clearOutsideBy));
         }
         return Verdict.unmet(seen + " is not inside " + range);
     }
@@ -54,7 +54,7 @@ public record PracticalEquivalenceRule(double low, double high, double clearMarg
         Map<String, Double> m = new LinkedHashMap<>();
         m.put("equivalenceLower", low);
         m.put("equivalenceUpper", high);
-        m.put("clearMargin", clearMargin);
+        m.put("clearOutsideBy", clearOutsideBy);
         return m;
     }
 }

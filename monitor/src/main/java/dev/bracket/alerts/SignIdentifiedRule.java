@@ -13,14 +13,14 @@ import java.util.Map;
  * interval always contains zero (Manski 1990), so worst-case never fires, even in the rare
  * (probability at most alpha) event that its band misses the truth.
  *
- * @param clearMargin a firing alert resolves at once when zero lies inside the band by at least
+ * @param clearZeroMargin a firing alert resolves at once when zero lies inside the band by at least
  *                    this much on both sides; 0 disables the margin (then only clear-after resolves)
  */
-public record SignIdentifiedRule(double clearMargin) implements CellRule {
+public record SignIdentifiedRule(double clearZeroMargin) implements RowRule {
 
     public SignIdentifiedRule {
-        if (!(clearMargin >= 0) || Double.isInfinite(clearMargin)) {
-            throw new IllegalArgumentException("sign-identified clear-margin must be a finite number >= 0, was " + clearMargin);
+        if (!(clearZeroMargin >= 0) || Double.isInfinite(clearZeroMargin)) {
+            throw new IllegalArgumentException("sign-identified clear-zero-margin must be a finite number >= 0, was " + clearZeroMargin);
         }
     }
 
@@ -45,8 +45,8 @@ public record SignIdentifiedRule(double clearMargin) implements CellRule {
             return Verdict.unmet(seen + " excludes 0 but the estimated interval [" + AlertText.num(interval.lower())
                     + ", " + AlertText.num(interval.upper()) + "] does not");
         }
-        if (clearMargin > 0 && band.lower() <= -clearMargin && band.upper() >= clearMargin) {
-            return Verdict.clear(seen + " contains 0 by at least the clear margin " + AlertText.num(clearMargin));
+        if (clearZeroMargin > 0 && band.lower() <= -clearZeroMargin && band.upper() >= clearZeroMargin) {
+            return Verdict.clear(seen + " contains 0 by at least clear-zero-margin " + AlertText.num(clearZeroMargin));
         }
         return Verdict.unmet(seen + " contains 0");
     }
@@ -54,7 +54,7 @@ public record SignIdentifiedRule(double clearMargin) implements CellRule {
     @Override
     public Map<String, Double> limits() {
         Map<String, Double> m = new LinkedHashMap<>();
-        m.put("clearMargin", clearMargin);
+        m.put("clearZeroMargin", clearZeroMargin);
         return m;
     }
 }

@@ -9,15 +9,15 @@ import java.util.Optional;
  * One study's alert settings (the {@code alerts} section of a study in the YAML configuration,
  * read by {@link AlertConfigReader}).
  *
- * @param minPerArm  no per-cell rule judges a cell with fewer units than this in either arm
- * @param band       which band the per-cell rules read
+ * @param minPerArm  no per-row rule judges a row whose pooled arms hold fewer units than this
+ * @param band       which band the per-row rules read
  * @param clearAfter consecutive evaluations without the condition that resolve a firing alert
- * @param cellRules  the per-cell rules in force
+ * @param rowRules  the per-row rules in force
  * @param stalled    the stream-stalled rule, if in force
  * @param quality    the data-quality rule, if in force
  * @param webhooks   receivers of this study's transitions
  */
-public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, List<CellRule> cellRules,
+public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, List<RowRule> rowRules,
                                Optional<StreamStalledRule> stalled, Optional<DataQualityRule> quality,
                                List<WebhookTarget> webhooks) {
 
@@ -35,9 +35,9 @@ public record StudyAlertConfig(long minPerArm, BandMethod band, int clearAfter, 
         if (band == null || stalled == null || quality == null) {
             throw new IllegalArgumentException("alerts band, stalled and quality must be given (Optional.empty() for none)");
         }
-        cellRules = List.copyOf(cellRules);
+        rowRules = List.copyOf(rowRules);
         webhooks = List.copyOf(webhooks);
-        if (cellRules.stream().map(CellRule::rule).distinct().count() != cellRules.size()) {
+        if (rowRules.stream().map(RowRule::rule).distinct().count() != rowRules.size()) {
             throw new IllegalArgumentException("each alert rule may appear once per study");
         }
     }

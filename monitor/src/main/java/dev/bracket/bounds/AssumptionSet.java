@@ -2,6 +2,7 @@ package dev.bracket.bounds;
 
 import java.util.Collection;
 import java.util.Collections;
+import java.util.ArrayList;
 import java.util.EnumSet;
 import java.util.List;
 import java.util.Set;
@@ -60,6 +61,39 @@ public final class AssumptionSet {
     /** Every single assumption, each as its own set: the default report. */
     public static List<AssumptionSet> eachSingle() {
         return EnumSet.allOf(Assumption.class).stream().map(AssumptionSet::of).collect(Collectors.toList());
+    }
+
+    /**
+     * A list of sets, each written as {@link #parse} takes it; an empty list means
+     * {@link #eachSingle}. A bad entry throws {@link BadEntry}, which says which one.
+     */
+    public static List<AssumptionSet> parseAll(List<String> texts) {
+        if (texts.isEmpty()) {
+            return eachSingle();
+        }
+        List<AssumptionSet> sets = new ArrayList<>(texts.size());
+        for (int i = 0; i < texts.size(); i++) {
+            try {
+                sets.add(parse(texts.get(i)));
+            } catch (IllegalArgumentException e) {
+                throw new BadEntry(i, e.getMessage());
+            }
+        }
+        return sets;
+    }
+
+    /** A list entry that is not an assumption set; {@code index} counts from 0. */
+    public static final class BadEntry extends IllegalArgumentException {
+        private final int index;
+
+        BadEntry(int index, String message) {
+            super(message);
+            this.index = index;
+        }
+
+        public int index() {
+            return index;
+        }
     }
 
     public Set<Assumption> members() {

@@ -4,7 +4,7 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.report.Cautions;
 import dev.bracket.bands.AnytimeBand;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.VarianceBasis;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
@@ -13,8 +13,8 @@ import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeKind;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.ReportJson;
-import dev.bracket.report.ReportTable;
+import dev.bracket.report.render.ReportJson;
+import dev.bracket.report.render.ReportTable;
 import dev.bracket.report.StudyReport;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
@@ -27,9 +27,8 @@ import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
 import java.util.ArrayList;
-import java.util.EnumSet;
 import java.util.List;
-import java.util.Locale;
+import java.util.Set;
 import java.util.concurrent.Callable;
 
 /** {@code bracket calc}: intervals from summary statistics, without a stream. */
@@ -39,7 +38,7 @@ import java.util.concurrent.Callable;
                 "Bounds on the average treatment effect from per-arm summary statistics.",
                 "Give the two arms with --treated-* and --control-*, or many cells (strata, instrument levels) with --cells.",
                 "Without --assume every single assumption is reported.",
-                "Each interval gets confidence bands (--band): a fixed-horizon band, valid",
+                "Each interval gets confidence bands (--bands): a fixed band, valid",
                 "for one look planned in advance, and an anytime band, valid however often",
                 "the data are looked at (the one to act on)."},
         footer = {"",
@@ -92,7 +91,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--treated-mean", paramLabel = "M1", description = "Mean outcome of treated units.")
     Double treatedMean;
 
-    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed-horizon band).")
+    @Option(names = "--treated-sd", paramLabel = "S1", description = "Sample standard deviation of treated outcomes (optional; used by the fixed band).")
     Double treatedSd;
 
     @Option(names = "--control-n", paramLabel = "N0", description = "Units that did not receive treatment.")
@@ -101,7 +100,7 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--control-mean", paramLabel = "M0", description = "Mean outcome of untreated units.")
     Double controlMean;
 
-    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional; used by the fixed-horizon band).")
+    @Option(names = "--control-sd", paramLabel = "S0", description = "Sample standard deviation of untreated outcomes (optional; used by the fixed band).")
     Double controlSd;
 
     @Option(names = "--cells", paramLabel = "FILE",
@@ -115,20 +114,20 @@ public final class CalcCommand implements Callable<Integer> {
     @Option(names = "--json", description = "Print the versioned JSON document instead of the table.")
     boolean json;
 
-    @Option(names = "--level", paramLabel = "L", defaultValue = "0.95",
+    @Option(names = "--band-level", paramLabel = "L", defaultValue = "0.95",
             description = "Confidence level of the bands, strictly between 0 and 1 (default: ${DEFAULT-VALUE}).")
-    double level;
+    double bandLevel;
 
-    @Option(names = "--band", paramLabel = "fixed|anytime|both", defaultValue = "both",
+    @Option(names = "--bands", paramLabel = "both|fixed|anytime|none", defaultValue = "both",
             description = "Which confidence bands to show (default: ${DEFAULT-VALUE}).")
-    String band;
+    String bands;
 
     @Override
     public Integer call() throws IOException {
         OutcomeRange range = range();
         InstrumentAssumption instrumentAssumption = instrument(range);
         List<AssumptionSet> sets = sets().stream().map(set -> set.withInstrument(instrumentAssumption)).toList();
-        BandSettings bands = bands();
+        BandConfig bands = bandConfig();
         CalcInput.Cells input = cellsFile != null ? cellsFromFile(range) : cellsFromFlags(range);
         StudyReport report = StudyReport.of(input.cells(), range, sets,
                 bands.withVariance(input.everySdGiven() ? VarianceBasis.SAMPLE : VarianceBasis.RANGE_BOUND));
@@ -190,31 +189,25 @@ public final class CalcCommand implements Callable<Integer> {
     }
 
     private List<AssumptionSet> sets() {
-        if (assume.isEmpty()) {
-            return AssumptionSet.eachSingle();
+        try {
+            return AssumptionSet.parseAll(assume);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--assume " + e.getMessage());
         }
-        List<AssumptionSet> sets = new ArrayList<>();
-        for (String text : assume) {
-            try {
-                sets.add(AssumptionSet.parse(text));
-            } catch (IllegalArgumentException e) {
-                throw new InputError("--assume " + e.getMessage());
-            }
-        }
-        return sets;
     }
 
-    private BandSettings bands() {
-        if (!(level > 0 && level < 1)) {
-            throw new InputError("--level must lie strictly between 0 and 1 (for example 0.95), was " + CalcInput.fmt(level));
+    private BandConfig bandConfig() {
+        if (!(bandLevel > 0 && bandLevel < 1)) {
+            throw new InputError("--band-level must lie strictly between 0 and 1 (for example 0.95), was "
+                    + CalcInput.fmt(bandLevel));
         }
-        EnumSet<BandMethod> methods = switch (band.trim().toLowerCase(Locale.ROOT)) {
-            case "both" -> EnumSet.allOf(BandMethod.class);
-            case "fixed" -> EnumSet.of(BandMethod.FIXED_HORIZON);
-            case "anytime" -> EnumSet.of(BandMethod.ANYTIME);
-            default -> throw new InputError("--band must be fixed, anytime or both, was '" + band + "'");
-        };
-        return new BandSettings(level, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        Set<BandMethod> methods;
+        try {
+            methods = BandMethod.parseChoice(bands);
+        } catch (IllegalArgumentException e) {
+            throw new InputError("--bands " + e.getMessage());
+        }
+        return new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
     }
 
     private CalcInput.Cells cellsFromFlags(OutcomeRange range) {

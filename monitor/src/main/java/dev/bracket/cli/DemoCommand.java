@@ -5,14 +5,15 @@ import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.DemoProducerCommand;
-import dev.bracket.demo.DurationText;
+import dev.bracket.duration.DurationText;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
 import dev.bracket.demo.ScenarioOptions;
-import dev.bracket.demo.ScenarioSettings;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
+import dev.bracket.demo.ShutdownGate;
+import dev.bracket.demo.ScenarioConfig;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.app.Monitor;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
@@ -31,9 +32,6 @@ import java.time.Duration;
 import java.util.Comparator;
 import java.util.Optional;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
-import java.util.concurrent.TimeUnit;
-import java.util.concurrent.atomic.AtomicBoolean;
 import java.util.stream.Stream;
 
 /**
@@ -70,9 +68,9 @@ public final class DemoCommand implements Callable<Integer> {
     @CommandLine.Mixin
     ScenarioOptions scenarioOptions;
 
-    @Option(names = "--port", paramLabel = "PORT", defaultValue = "8080",
+    @Option(names = "--http-port", paramLabel = "PORT", defaultValue = "8080",
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
-    int port;
+    int httpPort;
 
     @Override
     public Integer call() throws Exception {
@@ -87,38 +85,28 @@ public final class DemoCommand implements Callable<Integer> {
         LatestReports latest = new LatestReports();
         PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
         // First the port, so a busy one fails before anything else starts.
-        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", port, "--port")) {
+        try (WebServer web = HttpServing.start(latest, registry, "127.0.0.1", httpPort)) {
             Path dataDir = Files.createTempDirectory("bracket-demo-");
-            AtomicBoolean stop = new AtomicBoolean();
-            CountDownLatch finished = new CountDownLatch(1);
-            Thread hook = new Thread(() -> {
-                stop.set(true);
-                awaitQuietly(finished, 60);
-            }, "bracket-demo-stop");
-            Runtime.getRuntime().addShutdownHook(hook);
-            try {
-                out.println("Starting a Kafka broker in this process (a few seconds)...");
-                out.flush();
-                try (EmbeddedBroker broker = EmbeddedBroker.start(dataDir, 0)) {
-                    run(scenario, broker, web, latest, stop, out);
-                }
-                out.println("Stopped; the demo's broker data are removed.");
-                out.flush();
-                return 0;
-            } finally {
-                deleteTree(dataDir);
-                finished.countDown();
+            // The gate closes last, so a Ctrl-C waits for the broker data to be removed too.
+            try (ShutdownGate gate = new ShutdownGate("bracket-demo-stop", Duration.ofMinutes(1))) {
                 try {
-                    Runtime.getRuntime().removeShutdownHook(hook);
-                } catch (IllegalStateException shuttingDown) {
-                    // Ctrl-C: the hook is running and returns now that we are done
+                    out.println("Starting a Kafka broker in this process (a few seconds)...");
+                    out.flush();
+                    try (EmbeddedBroker broker = EmbeddedBroker.start(dataDir, 0)) {
+                        run(scenario, broker, web, latest, gate, out);
+                    }
+                    out.println("Stopped; the demo's broker data are removed.");
+                    out.flush();
+                    return 0;
+                } finally {
+                    deleteTree(dataDir);
                 }
             }
         }
     }
 
     private void run(RolloutScenario scenario, EmbeddedBroker broker, WebServer web, LatestReports latest,
-                     AtomicBoolean stop, PrintWriter out) throws InterruptedException {
+                     ShutdownGate gate, PrintWriter out) throws InterruptedException {
         BracketConfig config = BracketConfig.parse("bracket demo", configYaml()).withBootstrapServers(broker.bootstrapServers());
         try (Monitor monitor = Monitor.start(config, web.registry(), latest);
              Producer<String, String> kafka = DemoProducer.kafkaProducer(broker.bootstrapServers())) {
@@ -127,23 +115,23 @@ public final class DemoCommand implements Callable<Integer> {
             web.showHealth(monitor::liveness, monitor::readiness);
             DemoProducer sender = new DemoProducer(kafka, TOPIC, rate, Clock.systemUTC());
             Thread producerThread = new Thread(() -> sender.run(new ScenarioFeed(scenario, STUDY),
-                    new DemoProducer.Limits(0, duration), stop::get), "bracket-demo-producer");
+                    new DemoProducer.Limits(0, duration), gate::stopRequested), "bracket-demo-producer");
             TerminalView view = new TerminalView(out, System.console() != null);
             long start = System.nanoTime();
             producerThread.start();
-            while (producerThread.isAlive() && !stop.get()) {
+            while (producerThread.isAlive() && !gate.stopRequested()) {
                 view.show(DemoScreen.render(screen(scenario, sender, start, web, latest, monitor)));
                 producerThread.join(view.refreshMillis());
             }
             producerThread.join();
             // Let the monitor take in the last events, so the final screen counts all of them.
             long drainUntil = System.nanoTime() + DRAIN_LIMIT.toNanos();
-            while (!stop.get() && System.nanoTime() < drainUntil && reportedUnits(latest) < sender.acknowledged()) {
+            while (!gate.stopRequested() && System.nanoTime() < drainUntil && reportedUnits(latest) < sender.acknowledged()) {
                 Thread.sleep(250);
             }
             view.show(DemoScreen.render(screen(scenario, sender, start, web, latest, monitor)));
             out.printf("%nDemo %s: %,d events sent, %,d in the last report. Stopping the monitor and the broker...%n",
-                    stop.get() ? "interrupted" : "finished", sender.sent(), reportedUnits(latest));
+                    gate.stopRequested() ? "interrupted" : "finished", sender.sent(), reportedUnits(latest));
             out.flush();
         }
     }
@@ -159,8 +147,8 @@ public final class DemoCommand implements Callable<Integer> {
         return latest.get(STUDY, "cumulative").map(r -> r.report().pooled().total()).orElse(0L);
     }
 
-    private ScenarioSettings settings() {
-        return scenarioOptions.settings(ScenarioSettings.DEFAULT_HOSTS, ScenarioSettings.DEFAULT_ROLLOUT_SHARE, false,
+    private ScenarioConfig settings() {
+        return scenarioOptions.settings(ScenarioConfig.DEFAULT_HOSTS, ScenarioConfig.DEFAULT_ROLLOUT_SHARE, false,
                 spec.commandLine());
     }
 
@@ -185,14 +173,6 @@ public final class DemoCommand implements Callable<Integer> {
                 group: bracket-demo
                 instance: demo
                 """.formatted(STUDY, TOPIC);
-    }
-
-    private static void awaitQuietly(CountDownLatch latch, long seconds) {
-        try {
-            latch.await(seconds, TimeUnit.SECONDS);
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-        }
     }
 
     private static void deleteTree(Path dir) {

@@ -8,7 +8,7 @@ import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.demo.TrueEffects;
 import dev.bracket.report.BoundRow;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 
 import java.time.Duration;
 import java.time.ZoneOffset;

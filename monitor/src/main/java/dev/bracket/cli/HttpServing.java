@@ -1,6 +1,6 @@
 package dev.bracket.cli;
 
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 
@@ -10,12 +10,10 @@ final class HttpServing {
     private HttpServing() {
     }
 
-    /**
-     * @param portFlag the option that chose the port, named in the error message
-     */
-    static WebServer start(LatestReports latest, PrometheusMeterRegistry registry, String bind, int port, String portFlag) {
+    /** Serves on {@code bind:port}; {@code --http-port}, which chose the port, is named in the error message. */
+    static WebServer start(LatestReports latest, PrometheusMeterRegistry registry, String bind, int port) {
         if (port < 0 || port > 65_535) {
-            throw new InputError(portFlag + " must be a TCP port (0-65535; 0 picks a free one), was " + port);
+            throw new InputError("--http-port must be a TCP port (0-65535; 0 picks a free one), was " + port);
         }
         WebServer web = new WebServer(latest, registry, WebServer.DEFAULT_HISTORY);
         try {
@@ -23,7 +21,7 @@ final class HttpServing {
         } catch (RuntimeException e) {
             web.close();
             throw new InputError("cannot serve HTTP on " + bind + ":" + port + " (" + rootMessage(e) + "); choose another with "
-                    + portFlag + ", or 0 for any free port", e);
+                    + "--http-port, or 0 for any free port", e);
         }
     }
 

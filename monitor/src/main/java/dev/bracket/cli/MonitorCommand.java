@@ -4,11 +4,12 @@ import dev.bracket.report.Cautions;
 import dev.bracket.broker.EmbeddedBroker;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
+import dev.bracket.demo.ShutdownGate;
 import dev.bracket.report.BoundRow;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
-import dev.bracket.stream.StreamMetrics;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.app.Monitor;
+import dev.bracket.stream.transaction.StreamMetrics;
 import dev.bracket.web.WebServer;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
@@ -18,12 +19,11 @@ import picocli.CommandLine.Option;
 
 import java.io.PrintWriter;
 import java.nio.file.Path;
+import java.time.Duration;
 import java.time.LocalTime;
 import java.time.temporal.ChronoUnit;
 import java.util.Locale;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
-import java.util.concurrent.TimeUnit;
 import java.util.stream.Collectors;
 
 /** {@code bracket monitor}: the streaming monitor; runs until stopped (Ctrl-C or SIGTERM). */
@@ -44,9 +44,9 @@ public final class MonitorCommand implements Callable<Integer> {
     @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
     Path configFile;
 
-    @Option(names = "--http-port", paramLabel = "PORT",
-            description = "Serve the web page, the JSON API and Prometheus /metrics on this port (0: any free port; default: no HTTP).")
-    Integer httpPort;
+    @Option(names = "--http-port", paramLabel = "PORT", defaultValue = "8080",
+            description = "Serve the web page, the JSON API and Prometheus /metrics on this port; 0 picks a free one (default: ${DEFAULT-VALUE}).")
+    int httpPort;
 
     @Option(names = "--http-bind", paramLabel = "ADDRESS", defaultValue = "127.0.0.1",
             description = "Address the HTTP server listens on; 0.0.0.0 for every interface (default: ${DEFAULT-VALUE}).")
@@ -58,11 +58,9 @@ public final class MonitorCommand implements Callable<Integer> {
         PrintWriter out = spec.commandLine().getOut();
         LatestReports latest = new LatestReports();
         PrometheusMeterRegistry registry = new PrometheusMeterRegistry(PrometheusConfig.DEFAULT);
-        WebServer web = httpPort == null ? null : HttpServing.start(latest, registry, httpBind, httpPort, "--http-port");
-        if (web != null) {
-            out.println("web page, JSON API and Prometheus metrics at " + web.address() + " (metrics: " + web.address() + "metrics)");
-            out.flush();
-        }
+        WebServer web = HttpServing.start(latest, registry, httpBind, httpPort);
+        out.println("web page, JSON API and Prometheus metrics at " + web.address() + " (metrics: " + web.address() + "metrics)");
+        out.flush();
         EmbeddedBroker broker = null;
         if (config.usesEmbeddedBroker()) {
             out.println("starting a Kafka broker in this process, data in " + config.brokerDataDir());
@@ -73,38 +71,28 @@ public final class MonitorCommand implements Callable<Integer> {
         }
         Monitor monitor = Monitor.start(config, registry, latest);
         exitWhenFailed(monitor, spec.commandLine().getErr());
-        if (web != null) {
-            web.showAlerts(monitor.alerts()::apiView);
-            web.showHealth(monitor::liveness, monitor::readiness);
-        }
+        web.showAlerts(monitor.alerts()::apiView);
+        web.showHealth(monitor::liveness, monitor::readiness);
         out.printf(Locale.ROOT, "monitoring %d stud%s from %s; reports to topic %s; instance %s of group %s%n",
                 config.studies().size(), config.studies().size() == 1 ? "y" : "ies",
                 config.inputs().stream().map(InputTopic::topic).collect(Collectors.joining(", ")),
                 config.topics().bounds(), config.instance(), config.group());
         out.flush();
-        CountDownLatch stop = new CountDownLatch(1);
-        CountDownLatch stopped = new CountDownLatch(1);
-        EmbeddedBroker ownBroker = broker;
-        // SIGTERM and Ctrl-C run this hook; the JVM halts when it returns, so it reports itself.
-        Runtime.getRuntime().addShutdownHook(new Thread(() -> {
-            stop.countDown();
-            monitor.close();
-            if (web != null) {
-                web.close();
+        // SIGTERM and Ctrl-C end the loop below; the JVM waits for the final commit before it halts.
+        try (ShutdownGate gate = new ShutdownGate("bracket-shutdown", Duration.ofMinutes(1))) {
+            Duration every = config.progressInterval();
+            while (!gate.awaitStop(every)) {
+                out.println(progressLine(monitor, latest));
+                out.flush();
             }
-            if (ownBroker != null) {
-                ownBroker.close();
+            monitor.close();
+            web.close();
+            if (broker != null) {
+                broker.close();
             }
             out.println(monitor.failed() ? "stopped after a failure; nothing was committed after it" : "stopped after a final commit");
             out.flush();
-            stopped.countDown();
-        }, "bracket-shutdown"));
-        long every = config.progressInterval().toMillis();
-        while (!stop.await(every, TimeUnit.MILLISECONDS)) {
-            out.println(progressLine(monitor, latest));
-            out.flush();
         }
-        stopped.await(60, TimeUnit.SECONDS);
         return 0;
     }
 

@@ -5,11 +5,11 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
-import dev.bracket.report.ReportJson;
-import dev.bracket.report.ReportTable;
+import dev.bracket.report.render.ReportJson;
+import dev.bracket.report.render.ReportTable;
 import dev.bracket.stream.Replay;
-import dev.bracket.stream.ReportDocument;
-import dev.bracket.stream.WindowReport;
+import dev.bracket.stream.publish.ReportDocument;
+import dev.bracket.stream.publish.WindowReport;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
@@ -21,6 +21,7 @@ import java.io.PrintWriter;
 import java.nio.file.Files;
 import java.nio.file.NoSuchFileException;
 import java.nio.file.Path;
+import java.util.ArrayList;
 import java.util.List;
 import java.util.Locale;
 import java.util.concurrent.Callable;
@@ -30,13 +31,16 @@ import java.util.concurrent.Callable;
         mixinStandardHelpOptions = true,
         description = {
                 "Computes the bounds the monitor would publish, from files of JSON events (one per line).",
-                "Each file counts as one partition read in order; '-' reads standard input.",
+                "Reports every window that holds events (each hour of a day, say), not only the newest.",
+                "Each file counts as one partition read in order; '-' reads standard input. --partition declares",
+                "files that are one partition, read one after the other (order matters for late events).",
                 "Unusable lines are counted and listed on standard error, as the monitor sends them to its rejected topic."},
         footer = {"",
                 Cautions.TEXT,
                 "",
                 "Example:",
-                "  bracket replay --config bracket.yaml events-monday.jsonl events-tuesday.jsonl --json"})
+                "  bracket replay --config bracket.yaml events-monday.jsonl events-tuesday.jsonl --json",
+                "  bracket replay --config bracket.yaml --partition p0-mon.jsonl,p0-tue.jsonl --partition p1-mon.jsonl,p1-tue.jsonl"})
 public final class ReplayCommand implements Callable<Integer> {
 
     private static final int SHOW_REJECTED = 20;
@@ -47,36 +51,54 @@ public final class ReplayCommand implements Callable<Integer> {
     @Option(names = "--config", required = true, paramLabel = "FILE", description = "The monitor's YAML configuration.")
     Path configFile;
 
-    @Option(names = "--topic", paramLabel = "NAME",
-            description = "Read events with the field names of this configured input topic (default: the first input).")
-    String topic;
+    @Option(names = "--fields-of", paramLabel = "TOPIC",
+            description = "Read events with the field names configured for this input topic (default: the first input's).")
+    String fieldsOf;
 
-    @Option(names = "--json", description = "Print one JSON document with every study's and window's report instead of tables.")
+    @Option(names = "--json", description = "Print one JSON document with every study's report per window instead of tables.")
     boolean json;
 
-    @Parameters(arity = "1..*", paramLabel = "EVENTS", description = "Files of JSON lines; '-' for standard input.")
-    List<String> files;
+    @Option(names = "--partition", paramLabel = "FILE[,FILE...]",
+            description = "These files, in this order, are one partition (repeat for more partitions).")
+    List<String> partitions = new ArrayList<>();
+
+    @Parameters(arity = "0..*", paramLabel = "EVENTS", description = "Files of JSON lines, one partition each; '-' for standard input.")
+    List<String> files = new ArrayList<>();
 
     @Override
     public Integer call() throws IOException {
         BracketConfig config = ConfigFiles.load(configFile);
-        InputTopic input = config.inputs().stream().filter(i -> topic == null || i.topic().equals(topic)).findFirst()
-                .orElseThrow(() -> new InputError("--topic '" + topic + "' is not an input topic of " + configFile
+        InputTopic input = config.inputs().stream().filter(i -> fieldsOf == null || i.topic().equals(fieldsOf)).findFirst()
+                .orElseThrow(() -> new InputError("--fields-of '" + fieldsOf + "' is not an input topic of " + configFile
                         + "; configured: " + String.join(", ", config.inputs().stream().map(InputTopic::topic).toList())));
-        for (String f : files) {
-            if (!f.equals("-") && !Files.isReadable(Path.of(f))) {
-                throw new InputError(f + ": no such file or not readable");
+        List<List<String>> inputs = new ArrayList<>();
+        partitions.forEach(p -> inputs.add(List.of(p.split(",", -1))));
+        files.forEach(f -> inputs.add(List.of(f)));
+        if (inputs.isEmpty()) {
+            throw new InputError("no events to replay: give files of JSON lines, '-' for standard input, or --partition FILE,FILE");
+        }
+        for (List<String> partition : inputs) {
+            for (String f : partition) {
+                if (f.isBlank()) {
+                    throw new InputError("--partition " + String.join(",", partition) + ": an empty file name (two commas in a row?)");
+                }
+                if (!f.equals("-") && !Files.isReadable(Path.of(f))) {
+                    throw new InputError(f + ": no such file or not readable");
+                }
             }
         }
         Replay replay = new Replay(config, input.fields(), SHOW_REJECTED, System.currentTimeMillis());
-        for (String f : files) {
-            if (f.equals("-")) {
-                replay.read("stdin", System.in);
-            } else {
-                try (InputStream in = Files.newInputStream(Path.of(f))) {
-                    replay.read(f, in);
-                } catch (NoSuchFileException e) {
-                    throw new InputError(f + ": no such file");
+        for (List<String> partition : inputs) {
+            replay.newPartition(String.join("+", partition));
+            for (String f : partition) {
+                if (f.equals("-")) {
+                    replay.readMore("stdin", System.in);
+                } else {
+                    try (InputStream in = Files.newInputStream(Path.of(f))) {
+                        replay.readMore(f, in);
+                    } catch (NoSuchFileException e) {
+                        throw new InputError(f + ": no such file");
+                    }
                 }
             }
         }
@@ -94,7 +116,7 @@ public final class ReplayCommand implements Callable<Integer> {
 
     private static ObjectNode toJson(Replay.Result result) {
         ObjectNode root = ReportJson.mapper().createObjectNode();
-        root.put("schema", "bracket.replay/2");
+        root.put("schema", "bracket.replay/3");
         root.put("accepted", result.accepted());
         ObjectNode rejected = root.putObject("rejected");
         rejected.put("total", result.rejectedTotal());

@@ -2,16 +2,13 @@ package dev.bracket.config;
 
 import com.fasterxml.jackson.core.JsonPointer;
 import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.duration.DurationText;
 
-import java.math.BigDecimal;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Iterator;
 import java.util.List;
-import java.util.Locale;
 import java.util.Set;
-import java.util.regex.Matcher;
-import java.util.regex.Pattern;
 
 /**
  * One node of the configuration with its place in the file. Typed accessors check the rule for
@@ -19,10 +16,7 @@ import java.util.regex.Pattern;
  */
 final class ConfigNode {
 
-    /** The longest duration a configuration may give. */
-    static final Duration MAX_DURATION = Duration.ofDays(36_500);
 
-    private static final Pattern DURATION = Pattern.compile("(\\d+(?:\\.\\d+)?)\\s*(ms|s|m|h|d)");
 
     private final YamlDocument doc;
     private final JsonNode node;
@@ -161,49 +155,15 @@ final class ConfigNode {
         return node.asLong();
     }
 
-    /**
-     * A duration such as {@code 500ms}, {@code 30s}, {@code 5m}, {@code 1h}, {@code 7d} or ISO-8601
-     * {@code PT1H}, in whole milliseconds (the unit of Kafka timestamps and of window panes) and at
-     * most {@link #MAX_DURATION}: longer spans mean nothing for a stream and would overflow the time
-     * arithmetic done with them (a Duration's nanoseconds overflow after about 292 years).
-     */
+    /** A duration in the grammar of {@link DurationText}, e.g. {@code 500ms}, {@code 5m} or {@code PT1H}. */
     Duration duration(Duration fallback) {
         if (isMissing()) {
             return fallback;
         }
-        String s = text().trim().toLowerCase(Locale.ROOT);
-        Matcher m = DURATION.matcher(s);
-        BigDecimal millis;
         try {
-            millis = m.matches()
-                    ? new BigDecimal(m.group(1)).multiply(BigDecimal.valueOf(switch (m.group(2)) {
-                        case "ms" -> 1L;
-                        case "s" -> 1_000L;
-                        case "m" -> 60_000L;
-                        case "h" -> 3_600_000L;
-                        default -> 86_400_000L;
-                    }))
-                    : isoMillis(Duration.parse(s.toUpperCase(Locale.ROOT)));
-        } catch (RuntimeException e) {
-            if (e.getCause() instanceof ArithmeticException) {
-                throw tooLong();
-            }
-            throw fail("must be a duration like 500ms, 30s, 5m, 1h, 7d or PT1H, was '" + node.asText() + "'");
+            return DurationText.parse(text());
+        } catch (IllegalArgumentException e) {
+            throw fail(e.getMessage());
         }
-        if (millis.abs().compareTo(BigDecimal.valueOf(MAX_DURATION.toMillis())) > 0) {
-            throw tooLong();
-        }
-        if (millis.stripTrailingZeros().scale() > 0) {
-            throw fail("must be a whole number of milliseconds, was '" + node.asText() + "'");
-        }
-        return Duration.ofMillis(millis.longValueExact());
-    }
-
-    private static BigDecimal isoMillis(Duration d) {
-        return BigDecimal.valueOf(d.getSeconds()).movePointRight(3).add(BigDecimal.valueOf(d.getNano()).movePointLeft(6));
-    }
-
-    private ConfigError tooLong() {
-        return fail("is too long: at most " + MAX_DURATION.toDays() + "d (100 years), was '" + node.asText() + "'");
     }
 }

@@ -43,7 +43,7 @@ public record BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, M
     }
 
     /** The word for a sign: +1 "positive", -1 "negative", otherwise "undetermined". Shared with the bands. */
-    static String signWord(int sign) {
+    public static String signWord(int sign) {
         return switch (sign) {
             case 1 -> "positive";
             case -1 -> "negative";

@@ -1,6 +1,6 @@
 package dev.bracket.report;
 
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
@@ -12,7 +12,7 @@ import java.util.Map;
 
 /**
  * The bounds of one study for a list of assumption sets, with the pooled arms that produced
- * them. Built by {@link #of}; rendered by {@link ReportJson} and {@link ReportTable}.
+ * them. Built by {@link #of}; rendered by {@link dev.bracket.report.render.ReportJson} and {@link dev.bracket.report.render.ReportTable}.
  */
 public record StudyReport(OutcomeRange range, ObservedArms pooled, StudyCells cells, List<BoundRow> rows) {
 
@@ -22,11 +22,11 @@ public record StudyReport(OutcomeRange range, ObservedArms pooled, StudyCells ce
 
     /** Computes every assumption set's interval over the study's cells, without confidence bands. */
     public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets) {
-        return of(cells, range, sets, BandSettings.none());
+        return of(cells, range, sets, BandConfig.none());
     }
 
     /** Computes every assumption set's interval and the requested confidence bands around it. */
-    public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets, BandSettings bands) {
+    public static StudyReport of(StudyCells cells, OutcomeRange range, List<AssumptionSet> sets, BandConfig bands) {
         List<BoundRow> rows = sets.stream().map(set -> {
             StratifiedBounds.Result r = StratifiedBounds.interval(cells, range, set);
             Map<String, ?> strata = r.perStratum();

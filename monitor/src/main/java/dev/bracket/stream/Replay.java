@@ -1,5 +1,12 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.stream.ingest.ParsedEvent;
+import dev.bracket.stream.ingest.PartitionState;
+import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SourcePartition;
+import dev.bracket.stream.publish.MergedPartials;
+import dev.bracket.stream.publish.WindowReport;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.FieldMapping;
 import dev.bracket.config.StudyConfig;
@@ -12,15 +19,21 @@ import java.util.ArrayList;
 import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
+import java.util.SortedSet;
+import java.util.TreeSet;
 
 /**
  * The monitor's computation over files instead of topics: the same {@link EventParser},
- * {@link PartitionState} and {@link MergedPartials} as the live path, with each input (file or
- * standard input) standing for one source partition read in order. Events without a time field
- * get the time the replay started, and that time is also the clock for {@code max-clock-skew}:
+ * {@link PartitionState} and {@link MergedPartials} as the live path. Each partition is read in
+ * order from one or more inputs (files or standard input), one after the other, so lateness is
+ * judged across them as the monitor judges it within one input partition. Events without a time
+ * field get the time the replay started, and that time is also the clock for {@code max-clock-skew}:
  * historical files replay unchanged, while an event dated after the replay's start plus the skew
  * is rejected as {@code time-too-far-ahead}. Lines are split by {@link JsonLines}, as
  * {@code demo-producer --from-file} splits them; blank lines are not events.
+ *
+ * <p>Unlike the monitor, which reports the window holding the newest event, a replay reports
+ * every window that holds events: all the hours of a day replayed, say.
  */
 public final class Replay {
 
@@ -58,9 +71,22 @@ public final class Replay {
 
     /** Reads one input of JSON lines to its end as one more source partition; lines split as {@link JsonLines} does. */
     public void read(String name, InputStream in) throws IOException {
-        PartitionState state = new PartitionState(new SourcePartition(name, sources.size()), config.windows(),
-                config.grace().toMillis(), (s, w) -> { });
-        sources.add(state);
+        newPartition(name);
+        readMore(name, in);
+    }
+
+    /** Starts another source partition; {@link #readMore} adds inputs to it in order. */
+    public void newPartition(String name) {
+        sources.add(new PartitionState(new SourcePartition(name, sources.size()), config.windows(),
+                config.grace().toMillis(), (s, w) -> { }));
+    }
+
+    /** Reads one input to its end as the continuation of the newest source partition. */
+    public void readMore(String name, InputStream in) throws IOException {
+        if (sources.isEmpty()) {
+            throw new IllegalStateException("no partition started");
+        }
+        PartitionState state = sources.get(sources.size() - 1);
         JsonLines lines = new JsonLines(in);
         for (JsonLines.Line line = lines.next(); line != null; line = lines.next()) {
             accept(state, name, line.number(), line.bytes());
@@ -80,17 +106,31 @@ public final class Replay {
         }
     }
 
-    /** The reports of every study and window over all inputs read so far. */
+    /**
+     * The reports of every study and window over all inputs read so far: the cumulative window
+     * once, and each windowed one for every window end that has events (a sliding window's
+     * every position), in time order.
+     */
     public Result finish() {
         MergedPartials merged = new MergedPartials();
         for (PartitionState s : sources) {
-            s.cells().forEach((k, arms) -> merged.cell(s.source(), k, arms));
+            s.panes().forEach((k, arms) -> merged.pane(s.source(), k, arms));
             merged.progress(s.source(), s.progress());
         }
         List<WindowReport> reports = new ArrayList<>();
         for (StudyConfig study : config.studies()) {
             for (WindowSpec w : config.windows()) {
-                reports.add(WindowReport.current(study, w, merged, config.bands()));
+                if (w.kind() == WindowSpec.Kind.CUMULATIVE) {
+                    reports.add(WindowReport.current(study, w, merged, config.bands()));
+                    continue;
+                }
+                SortedSet<Long> ends = new TreeSet<>();
+                for (long pane : merged.paneStarts(study.id(), w.name())) {
+                    for (long end = pane + w.paneMillis(); end <= pane + w.size().toMillis(); end += w.paneMillis()) {
+                        ends.add(end);
+                    }
+                }
+                ends.forEach(end -> reports.add(WindowReport.ending(study, w, end, merged, config.bands())));
             }
         }
         return new Result(reports, accepted, new EnumMap<>(rejectedByReason), List.copyOf(rejected));

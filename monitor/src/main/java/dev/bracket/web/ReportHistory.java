@@ -5,7 +5,7 @@ import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.report.BoundRow;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 
 import java.util.ArrayDeque;
 import java.util.ArrayList;

@@ -4,9 +4,9 @@ import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.bands.BandMethod;
 import dev.bracket.bounds.ObservedArms;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.report.render.ReportJson;
 
 import java.time.Instant;
 import java.util.Comparator;

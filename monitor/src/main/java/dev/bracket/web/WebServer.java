@@ -2,9 +2,9 @@ package dev.bracket.web;
 
 import com.fasterxml.jackson.core.JsonProcessingException;
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.report.render.ReportJson;
 import io.javalin.Javalin;
 import io.javalin.http.Context;
 import io.javalin.http.HttpStatus;

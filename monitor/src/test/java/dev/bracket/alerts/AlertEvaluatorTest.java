@@ -30,7 +30,7 @@ class AlertEvaluatorTest {
     private static final ObservedArms UP = Snapshots.arms(100, 0.6, 100, 0.4);
     private static final ObservedArms DOWN = Snapshots.arms(100, 0.4, 100, 0.6);
 
-    private static StudyAlertConfig config(long minPerArm, int clearAfter, CellRule... rules) {
+    private static StudyAlertConfig config(long minPerArm, int clearAfter, RowRule... rules) {
         return new StudyAlertConfig(minPerArm, BandMethod.ANYTIME, clearAfter, List.of(rules),
                 Optional.empty(), Optional.empty(), List.of());
     }
@@ -87,8 +87,8 @@ class AlertEvaluatorTest {
         }
 
         @Test
-        @DisplayName("resolves at once when the band contains 0 by the clear margin")
-        void clearMargin() {
+        @DisplayName("resolves at once when the band contains 0 by clear-zero-margin")
+        void clearZeroMargin() {
             AlertEvaluator e = evaluator(config(30, 3, new SignIdentifiedRule(0.02)));
             List<AlertTransition> ts = feed(e, "mts-negative", UP, bands(0.05, 0.75, -0.01, 0.75, -0.03, 0.75));
             assertThat(ts).extracting(AlertTransition::kind).containsExactly(TransitionKind.FIRING, TransitionKind.RESOLVED);
@@ -180,7 +180,7 @@ class AlertEvaluatorTest {
     class Narrow {
 
         @Test
-        @DisplayName("interval-narrow fires below the width, holds, resolves when wider by the clear margin")
+        @DisplayName("interval-narrow fires below the width, holds, resolves when wider by clear-extra-width")
         void narrow() {
             AlertEvaluator e = evaluator(config(30, 3, new IntervalNarrowRule(0.5, 0.05)));
             List<AlertTransition> ts = feed(e, "mts-negative", UP, bands(0.1, 0.65, 0.12, 0.61, 0.12, 0.62, 0.10, 0.62, 0.1, 0.66));

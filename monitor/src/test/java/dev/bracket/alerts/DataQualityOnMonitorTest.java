@@ -3,10 +3,10 @@ package dev.bracket.alerts;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
-import dev.bracket.stream.EventParser;
-import dev.bracket.stream.Monitor;
-import dev.bracket.stream.ParsedEvent;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.stream.ingest.EventParser;
+import dev.bracket.app.Monitor;
+import dev.bracket.stream.ingest.ParsedEvent;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
@@ -80,7 +80,7 @@ class DataQualityOnMonitorTest {
                 publish-interval: 200ms
                 group: quality
                 instance: quality-1
-                alerts: {topic: quality-alerts, tick: 200ms}
+                alerts: {topic: quality-alerts, check-interval: 200ms}
                 kafka:
                   bootstrap.servers: %s
                 """.formatted(KAFKA.bootstrapServers()));

@@ -55,13 +55,13 @@ class ConfidenceBandTest {
         assertThrows(IllegalArgumentException.class, () -> ConfidenceBand.of(BandMethod.ANYTIME, 0.95, 0.3, 0.2, "x"));
         assertThrows(IllegalArgumentException.class, () -> ConfidenceBand.of(BandMethod.ANYTIME, 1.0, 0.1, 0.2, "x"));
         assertThrows(IllegalArgumentException.class, () -> ConfidenceBand.of(BandMethod.ANYTIME, 0.95, Double.NaN, 0.2, "x"));
-        assertThrows(IllegalArgumentException.class, () -> new BandSettings(0, BandSettings.both(0.9).methods(), VarianceBasis.SAMPLE, 10));
+        assertThrows(IllegalArgumentException.class, () -> new BandConfig(0, BandConfig.both(0.9).methods(), VarianceBasis.SAMPLE, 10));
     }
 
     @Test
     @DisplayName("tiny and empty cells give insufficient data or a finite band, never NaN and never an exception")
     void degenerateCellsNeverCrash() {
-        BandSettings settings = BandSettings.both(0.95);
+        BandConfig settings = BandConfig.both(0.95);
         List<ArmStatistics> arms = new ArrayList<>();
         arms.add(ArmStatistics.empty());
         arms.add(ArmStatistics.of(0.0));
@@ -94,7 +94,7 @@ class ConfidenceBandTest {
         ObservedArms arms = new ObservedArms(ArmStatistics.ofSummary(300, 0.6, 0.4), ArmStatistics.ofSummary(500, 0.4, 0.45));
         StudyCells one = StudyCells.single(arms);
         StudyCells withEmpty = StudyCells.empty().with("a", StudyCells.NONE, arms).with("b", StudyCells.NONE, ObservedArms.empty());
-        BandSettings settings = BandSettings.both(0.95);
+        BandConfig settings = BandConfig.both(0.95);
         AssumptionSet set = AssumptionSet.parse("mtr-positive");
         List<ConfidenceBand> expected = settings.bands(one, UNIT, set);
         List<ConfidenceBand> actual = settings.bands(withEmpty, UNIT, set);

@@ -197,7 +197,7 @@ class IndependentInstrumentBandsTest {
         }
         AssumptionSet set = independent("worst-case");
         for (BandMethod method : BandMethod.values()) {
-            BandSettings settings = new BandSettings(LEVEL, java.util.EnumSet.of(method), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
+            BandConfig settings = new BandConfig(LEVEL, java.util.EnumSet.of(method), VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
             ConfidenceBand fromMerged = settings.bands(merged, BINARY, set).get(0);
             ConfidenceBand fromOnePass = settings.bands(onePass, BINARY, set).get(0);
             assertEquals(fromOnePass.lower(), fromMerged.lower(), 1e-9, method.id());

@@ -60,7 +60,7 @@ class MergeabilityTest {
                 }
             }
         }
-        BandSettings settings = BandSettings.both(0.9);
+        BandConfig settings = BandConfig.both(0.9);
         for (String set : List.of("worst-case", "mtr-positive", "mts-negative,optimizing-selection")) {
             AssumptionSet assumptions = AssumptionSet.parse(set);
             List<ConfidenceBand> expected = settings.bands(onePass, RANGE, assumptions);

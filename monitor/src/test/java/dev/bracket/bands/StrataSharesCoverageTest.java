@@ -61,7 +61,7 @@ class StrataSharesCoverageTest {
         AssumptionSet assumptions = AssumptionSet.parse(set);
         IdentifiedInterval target = PopulationCell.interval(population, UNIT, assumptions);
         assertTrue(target.isBounded(), "the population interval exists: " + target);
-        BandSettings settings = BandSettings.both(LEVEL);
+        BandConfig settings = BandConfig.both(LEVEL);
         SplittableRandom rng = new SplittableRandom(1_000L * n + set.hashCode());
         int[][] covered = new int[2][2]; // [fixed, anytime][lower, upper]
         for (int r = 0; r < REPLICATIONS; r++) {

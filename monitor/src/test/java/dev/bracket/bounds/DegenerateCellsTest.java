@@ -13,8 +13,8 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 /**
  * Cells with no treated or no untreated units yet, or a single unit, must give "insufficient
- * data" or a finite interval: never NaN, never an exception (project design notes, degenerate
- * cells).
+ * data" or a finite interval: never NaN, never an exception (the README's "insufficient-data"
+ * status).
  */
 class DegenerateCellsTest {
 

@@ -22,7 +22,7 @@ public final class ChildMonitor {
         String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
         String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
         return new ProcessBuilder(java, "-Xmx" + maxHeap, "-cp", classpath, "dev.bracket.cli.BracketCommand",
-                "monitor", "--config", config.toString())
+                "monitor", "--config", config.toString(), "--http-port", "0")
                 .redirectErrorStream(true)
                 .redirectOutput(log.toFile())
                 .start();

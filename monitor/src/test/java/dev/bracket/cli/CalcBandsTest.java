@@ -17,7 +17,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-/** {@code bracket calc --level/--band}: confidence bands in the JSON rows and the table. */
+/** {@code bracket calc --band-level/--bands}: confidence bands in the JSON rows and the table. */
 class CalcBandsTest {
 
     private static final ObjectMapper JSON = new ObjectMapper();
@@ -78,17 +78,22 @@ class CalcBandsTest {
     }
 
     @Test
-    @DisplayName("--band picks the bands and --level sets their level")
+    @DisplayName("--bands picks the bands and --band-level sets their level")
     void bandAndLevelFlags() throws IOException {
-        JsonNode anytime = bands("--band", "anytime", "--level", "0.9", "--assume", "worst-case", "--json");
+        JsonNode anytime = bands("--bands", "anytime", "--band-level", "0.9", "--assume", "worst-case", "--json");
         assertEquals(1, anytime.size());
         assertEquals("anytime", anytime.get(0).get("method").asText());
         assertEquals(0.9, anytime.get(0).get("level").asDouble(), 0);
-        JsonNode wider = bands("--band", "anytime", "--level", "0.99", "--assume", "worst-case", "--json");
+        JsonNode wider = bands("--bands", "anytime", "--band-level", "0.99", "--assume", "worst-case", "--json");
         assertTrue(wider.get(0).get("width").asDouble() > anytime.get(0).get("width").asDouble());
-        JsonNode fixed = bands("--band", "fixed", "--assume", "worst-case", "--json");
+        JsonNode fixed = bands("--bands", "fixed", "--assume", "worst-case", "--json");
         assertEquals(1, fixed.size());
         assertEquals("fixed", fixed.get(0).get("method").asText());
+        CalcCommandTest.Run none = run(args("--bands", "none", "--assume", "worst-case", "--json"));
+        assertEquals(0, none.exitCode(), none.err());
+        JsonNode row = JSON.readTree(none.out()).get("bounds").get(0);
+        assertEquals("bounded", row.path("status").asText(), row.toString());
+        assertFalse(row.has("bands"), "--bands none, as bands: none in the configuration: " + row);
     }
 
     @Test
@@ -124,22 +129,22 @@ class CalcBandsTest {
         }
     }
 
-    @ParameterizedTest(name = "--level {0}")
+    @ParameterizedTest(name = "--band-level {0}")
     @ValueSource(strings = {"0", "1", "-0.5", "1.5", "NaN", "ninety"})
-    @DisplayName("a level outside (0, 1) is one line naming --level, exit code 2")
+    @DisplayName("a level outside (0, 1) is one line naming --band-level, exit code 2")
     void badLevel(String level) {
-        CalcCommandTest.Run r = run(args("--level", level));
+        CalcCommandTest.Run r = run(args("--band-level", level));
         assertEquals(2, r.exitCode(), r.err());
         assertEquals(1, r.errLines().size(), r.err());
-        assertTrue(r.err().contains("--level"), r.err());
+        assertTrue(r.err().contains("--band-level"), r.err());
         assertEquals("", r.out());
     }
 
     @Test
     void badBand() {
-        CalcCommandTest.Run r = run(args("--band", "sometimes"));
+        CalcCommandTest.Run r = run(args("--bands", "sometimes"));
         assertEquals(2, r.exitCode());
         assertEquals(1, r.errLines().size(), r.err());
-        assertTrue(r.err().contains("--band") && r.err().contains("fixed, anytime or both"), r.err());
+        assertTrue(r.err().contains("--bands") && r.err().contains("both, fixed, anytime or none"), r.err());
     }
 }

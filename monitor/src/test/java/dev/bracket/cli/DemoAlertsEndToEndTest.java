@@ -10,11 +10,11 @@ import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
-import dev.bracket.demo.ScenarioSettings;
+import dev.bracket.demo.ScenarioConfig;
 import dev.bracket.report.BoundRow;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.stream.Monitor;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.app.Monitor;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.Producer;
 import org.junit.jupiter.api.DisplayName;
@@ -50,7 +50,7 @@ class DemoAlertsEndToEndTest {
     @Test
     @DisplayName("fires for the sets that identify the sign, with the band's side, never for worst case")
     void signAlertsFollowTheBands() throws Exception {
-        RolloutScenario scenario = new RolloutScenario(ScenarioSettings.defaults(7));
+        RolloutScenario scenario = new RolloutScenario(ScenarioConfig.defaults(7));
         LatestReports latest = new LatestReports();
         try (EmbeddedBroker broker = EmbeddedBroker.start(dir.resolve("kafka"), 0)) {
             BracketConfig config = BracketConfig.parse("bracket demo", DemoCommand.configYaml())

@@ -30,7 +30,7 @@ class DemoCommandTest {
     @Test
     @DisplayName("a short demo ends by itself, with every sent event in the final report and the truth inside the worst-case interval")
     void shortDemoRunsToTheEnd() {
-        Run r = run("demo", "--duration", "6s", "--rate", "300", "--port", "0", "--seed", "3");
+        Run r = run("demo", "--duration", "6s", "--rate", "300", "--http-port", "0", "--seed", "3");
 
         assertThat(r.code()).as(r.err()).isZero();
         Matcher done = Pattern.compile("Demo finished: ([\\d,]+) events sent, ([\\d,]+) in the last report").matcher(r.out());
@@ -51,9 +51,9 @@ class DemoCommandTest {
         assertThat(selection.code()).isEqualTo(2);
         assertThat(selection.err()).contains("--selection").contains("[-1, 1]");
 
-        Run port = run("demo", "--port", "70000");
+        Run port = run("demo", "--http-port", "70000");
         assertThat(port.code()).isEqualTo(2);
-        assertThat(port.err()).contains("--port must be a TCP port");
+        assertThat(port.err()).contains("--http-port must be a TCP port");
 
         Run rate = run("demo", "--rate", "0");
         assertThat(rate.code()).isEqualTo(2);

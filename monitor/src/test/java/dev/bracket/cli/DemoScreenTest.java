@@ -1,7 +1,7 @@
 package dev.bracket.cli;
 
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
@@ -9,7 +9,7 @@ import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
 import dev.bracket.demo.TrueEffects;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 import dev.bracket.report.StudyReport;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
@@ -45,7 +45,7 @@ class DemoScreenTest {
                 ArmStatistics.ofSummary(400, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
         StudyReport report = StudyReport.of(cells, new OutcomeRange(0, 1),
                 List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mtr-positive,mts-positive")),
-                BandSettings.both(0.95));
+                BandConfig.both(0.95));
         ConfidenceBand anytime = report.rows().get(0).bands().stream()
                 .filter(b -> b.method() == BandMethod.ANYTIME).findFirst().orElseThrow();
         String screen = DemoScreen.render(state(Optional.of(new PublishedReport("host-rollout", "cumulative",

@@ -96,13 +96,14 @@ class MonitorCommandTest {
 
     /** The command line in this JVM (the runner of {@link CalcCommandTest} takes any subcommand). */
     private static CalcCommandTest.Run runInProcess(Path config) {
-        return CalcCommandTest.run("monitor", "--config", config.toString());
+        return CalcCommandTest.run("monitor", "--config", config.toString(), "--http-port", "0");
     }
 
     private static String runUntilProgressThenStop(Path config, Path log) throws IOException, InterruptedException {
         String java = Path.of(System.getProperty("java.home"), "bin", "java").toString();
         String classpath = System.getProperty("surefire.test.class.path", System.getProperty("java.class.path"));
-        Process p = new ProcessBuilder(java, "-Xmx384m", "-cp", classpath, "dev.bracket.cli.BracketCommand", "monitor", "--config", config.toString())
+        Process p = new ProcessBuilder(java, "-Xmx384m", "-cp", classpath, "dev.bracket.cli.BracketCommand", "monitor", "--config", config.toString(),
+                "--http-port", "0")
                 .redirectErrorStream(true).redirectOutput(log.toFile()).start();
         try {
             await().atMost(Duration.ofSeconds(90)).until(() -> Files.readString(log).contains("partitions 3"));

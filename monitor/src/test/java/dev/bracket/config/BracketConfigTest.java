@@ -39,7 +39,7 @@ class BracketConfigTest {
             bands: anytime
             commit-interval: 250ms
             publish-interval: 2s
-            threads: 2
+            group-members: 2
             group: checkout-monitor
             instance: host-a
             kafka:
@@ -80,7 +80,7 @@ class BracketConfigTest {
         assertThat(c.publishInterval()).isEqualTo(Duration.ofSeconds(2));
         assertThat(c.bandLevel()).isEqualTo(0.9);
         assertThat(c.bands().methods()).containsExactly(BandMethod.ANYTIME);
-        assertThat(c.threads()).isEqualTo(2);
+        assertThat(c.groupMembers()).isEqualTo(2);
         assertThat(c.group()).isEqualTo("checkout-monitor");
         assertThat(c.instance()).isEqualTo("host-a");
         assertThat(c.kafka()).containsEntry("security.protocol", "SASL_SSL").containsEntry("sasl.mechanism", "SCRAM-SHA-512");
@@ -95,7 +95,7 @@ class BracketConfigTest {
         assertThat(c.inputs()).containsExactly(new InputTopic("bracket-events", FieldMapping.DEFAULT));
         assertThat(c.windows()).containsExactly(WindowSpec.CUMULATIVE);
         assertThat(c.commitInterval()).isEqualTo(Duration.ofSeconds(1));
-        assertThat(c.threads()).isEqualTo(1);
+        assertThat(c.groupMembers()).isEqualTo(1);
         assertThat(c.publishInterval()).isEqualTo(Duration.ofMillis(500));
         assertThat(c.bandLevel()).isEqualTo(0.95);
         assertThat(c.bands().methods()).containsExactlyInAnyOrder(BandMethod.values());
@@ -147,7 +147,7 @@ class BracketConfigTest {
         assertError(ONE_STUDY + "grace: 99999999999999999999d\n", "c.yaml:4:8: grace is too long");
         assertError(ONE_STUDY + "commit-interval: PT9999999999999999H\n", "c.yaml:4:18: commit-interval is too long");
         assertError(ONE_STUDY + "windows:\n  - {name: w, kind: tumbling, size: 200000d}\n", "c.yaml:5:37: windows[0].size is too long");
-        assertError(ONE_STUDY + "alerts: {tick: 36501d}\n", "c.yaml:4:16: alerts.tick is too long");
+        assertError(ONE_STUDY + "alerts: {check-interval: 36501d}\n", "c.yaml:4:26: alerts.check-interval is too long");
         assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: 36500d\n").grace()).isEqualTo(Duration.ofDays(36_500));
         assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: 1.5s\n").grace()).isEqualTo(Duration.ofMillis(1_500));
         assertThat(BracketConfig.parse("c.yaml", ONE_STUDY + "grace: PT0.25S\n").grace()).isEqualTo(Duration.ofMillis(250));

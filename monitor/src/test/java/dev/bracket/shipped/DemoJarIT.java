@@ -38,7 +38,7 @@ class DemoJarIT {
     @Test
     @DisplayName("runs end to end: exit 0, every event in the final report, the bounds shown, the mts-positive sign alert fired")
     void demoEndToEnd() throws Exception {
-        try (JarProcess demo = JarProcess.start(dir, "demo", "demo", "--duration", "15s", "--rate", "4000", "--port", "0", "--seed", "1")) {
+        try (JarProcess demo = JarProcess.start(dir, "demo", "demo", "--duration", "15s", "--rate", "4000", "--http-port", "0", "--seed", "1")) {
             await().atMost(Duration.ofSeconds(60)).until(() -> PAGE.matcher(demo.out()).find() || !demo.isAlive());
             Matcher address = PAGE.matcher(demo.out());
             assertThat(address.find()).as("page address; stdout:%n%s%nstderr:%n%s", demo.out(), demo.err()).isTrue();
@@ -97,7 +97,7 @@ class DemoJarIT {
                 }
             }
         }
-        try (JarProcess demo = JarProcess.start(broken, dir, "broken-demo", "demo", "--duration", "30s", "--port", "0")) {
+        try (JarProcess demo = JarProcess.start(broken, dir, "broken-demo", "demo", "--duration", "30s", "--http-port", "0")) {
             // This child is meant to miss a class, so its end is awaited without the jar check.
             await().atMost(Duration.ofSeconds(45)).until(() -> !demo.isAlive());
             assertThat(demo.exitCode()).isEqualTo(1);

@@ -1,8 +1,15 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.Monitor;
+import dev.bracket.app.TopicSetup;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.stream.transaction.StreamAggregator;
+import dev.bracket.stream.transaction.StreamMetrics;
+import io.micrometer.core.instrument.Counter;
+import io.micrometer.core.instrument.Meter;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
@@ -18,8 +25,8 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.awaitility.Awaitility.await;
 
 /**
- * An aggregation member that fails with an unexpected error (here its event-count listener
- * throws after the cells of a poll were added) records the failure, aborts its open
+ * An aggregation member that fails with an unexpected error (here its accepted-events counter
+ * throws after the panes of a poll were added) records the failure, aborts its open
  * transaction and commits nothing on its way out, not even when closing its consumer revokes
  * its partitions; a monitor started afterwards counts every event exactly once.
  */
@@ -59,22 +66,13 @@ class AggregatorFailureTest {
             }
             producer.flush();
         }
-        StreamAggregator failing = new StreamAggregator(new KafkaClients(config), new StreamMetrics(new SimpleMeterRegistry()),
-                partials, 0, new StudyEventCounts() {
-                    @Override
-                    public void counted(String study, long accepted, long rejected, long outOfRange) {
-                        throw new IllegalArgumentException("listener failed on purpose");
-                    }
-
-                    @Override
-                    public void unattributed(long rejected) {
-                    }
-                });
+        StreamAggregator failing = new StreamAggregator(new KafkaClients(config), new StreamMetrics(new FailingCounters()),
+                partials, 0);
         Thread thread = new Thread(failing, "test-aggregator");
         thread.start();
         thread.join(Duration.ofSeconds(60).toMillis());
         assertThat(thread.isAlive()).isFalse();
-        assertThat(failing.status().failure()).hasMessage("listener failed on purpose");
+        assertThat(failing.status().failure()).hasMessage("counter failed on purpose");
 
         LatestReports latest = new LatestReports();
         try (Monitor monitor = Monitor.start(config, new SimpleMeterRegistry(), latest)) {
@@ -83,6 +81,29 @@ class AggregatorFailureTest {
             Thread.sleep(1_000); // room for a double count to show
             assertThat(latest.get("s1", "cumulative").get().report().pooled().total()).isEqualTo(200);
             assertThat(monitor.liveness().get("status")).isEqualTo("ok");
+        }
+    }
+
+    /** A registry whose counters throw when counted: an unexpected error inside a poll's processing. */
+    private static final class FailingCounters extends SimpleMeterRegistry {
+        @Override
+        protected Counter newCounter(Meter.Id id) {
+            return new Counter() {
+                @Override
+                public void increment(double amount) {
+                    throw new IllegalArgumentException("counter failed on purpose");
+                }
+
+                @Override
+                public double count() {
+                    return 0;
+                }
+
+                @Override
+                public Meter.Id getId() {
+                    return id;
+                }
+            };
         }
     }
 }

@@ -1,5 +1,7 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.TopicSetup;
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.broker.ChildMonitor;

@@ -1,5 +1,9 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.TopicSetup;
+
+import dev.bracket.stream.transaction.KafkaClients;
+
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import dev.bracket.config.BracketConfig;

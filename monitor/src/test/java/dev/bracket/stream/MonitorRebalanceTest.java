@@ -1,9 +1,12 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.transaction.KafkaClients;
+import dev.bracket.app.TopicSetup;
+import dev.bracket.app.Monitor;
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.producer.KafkaProducer;
@@ -45,7 +48,7 @@ class MonitorRebalanceTest {
                 commit-interval: 200ms
                 publish-interval: 200ms
                 max-event-bytes: 1024
-                threads: %d
+                group-members: %d
                 group: rb
                 instance: %s
                 kafka:

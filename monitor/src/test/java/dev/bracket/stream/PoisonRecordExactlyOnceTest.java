@@ -1,9 +1,15 @@
 package dev.bracket.stream;
 
+import dev.bracket.app.Monitor;
+
+import dev.bracket.app.TopicSetup;
+
+import dev.bracket.stream.transaction.KafkaClients;
+
 import dev.bracket.broker.BrokerPerClass;
 import dev.bracket.config.BracketConfig;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
 import io.micrometer.core.instrument.simple.SimpleMeterRegistry;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.producer.KafkaProducer;

@@ -1,5 +1,7 @@
 package dev.bracket.stream;
 
+import dev.bracket.stream.ingest.RejectReason;
+
 import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.JsonlFileFeed;

@@ -10,10 +10,10 @@ import java.util.Random;
  * Events for the streaming tests: a simulated stream with known structure (seeded), mixed with
  * unusable events of every kind. Not realistic data; it only exercises the plumbing.
  */
-final class TestEvents {
+public final class TestEvents {
 
     /** One event as bytes, its routing key, and what the monitor should do with it. */
-    record Event(byte[] key, byte[] value, String study, boolean treated, double outcome, String rejectReason) {
+    public record Event(byte[] key, byte[] value, String study, boolean treated, double outcome, String rejectReason) {
         boolean usable() {
             return rejectReason == null;
         }
@@ -29,7 +29,7 @@ final class TestEvents {
      * for two studies — "checkout" in [0, 1] and "registry" in [-5, 5] with two strata and two
      * instrument levels — and an unusable event after every {@code badEvery}-th usable one.
      */
-    static List<Event> stream(int valid, int badEvery, long seed) {
+    public static List<Event> stream(int valid, int badEvery, long seed) {
         Random rnd = new Random(seed);
         List<Event> out = new ArrayList<>(valid + valid / Math.max(1, badEvery) + 1);
         int bad = 0;

@@ -1,21 +1,21 @@
 package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.bracket.alerts.AlertDispatcher;
+import dev.bracket.alerts.delivery.AlertDispatcher;
 import dev.bracket.alerts.AlertEvaluator;
-import dev.bracket.alerts.AlertOptions;
-import dev.bracket.alerts.AlertService;
-import dev.bracket.alerts.RecentAlerts;
+import dev.bracket.alerts.AlertsConfig;
+import dev.bracket.alerts.delivery.AlertService;
+import dev.bracket.alerts.delivery.RecentAlerts;
 import dev.bracket.alerts.StudyAlertConfig;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.report.render.ReportJson;
 import dev.bracket.report.StudyReport;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
@@ -55,14 +55,14 @@ class AlertsEndpointTest {
             AlertService alerts = new AlertService(
                     new AlertEvaluator(Map.of("rollout", StudyAlertConfig.defaults()), Clock.fixed(T0, ZoneOffset.UTC)),
                     new AlertDispatcher(List.of(recent), Map.of(), registry), recent,
-                    new AlertOptions("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
+                    new AlertsConfig("bracket-alerts", Duration.ofHours(1), 10, Duration.ofSeconds(5)));
             server.showAlerts(alerts::apiView);
             // mu1 = 0.6, mu0 = 0.4, 5,000 units per arm on [0, 1]: mts-negative gives [0.2, 0.6]
             // (Manski & Pepper 2000) and its anytime band lies above 0; worst case contains 0 (Manski 1990).
             StudyCells cells = StudyCells.single(new ObservedArms(ArmStatistics.ofSummary(5000, 0.6, 0.3),
                     ArmStatistics.ofSummary(5000, 0.4, 0.3)));
             alerts.onReport(new PublishedReport("rollout", "cumulative", T0, StudyReport.of(cells, new OutcomeRange(0, 1),
-                    List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mts-negative")), BandSettings.both(0.95))));
+                    List.of(AssumptionSet.parse("worst-case"), AssumptionSet.parse("mts-negative")), BandConfig.both(0.95))));
 
             HttpResponse<String> after = client.send(get, HttpResponse.BodyHandlers.ofString());
             assertThat(after.statusCode()).isEqualTo(200);

@@ -1,8 +1,8 @@
 package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.render.ReportJson;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 import org.junit.jupiter.api.DisplayName;

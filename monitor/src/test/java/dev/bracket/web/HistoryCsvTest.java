@@ -5,7 +5,7 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.PublishedReport;
+import dev.bracket.report.store.PublishedReport;
 import dev.bracket.report.StudyReport;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;

@@ -5,9 +5,9 @@ import dev.bracket.config.BracketConfig;
 import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
-import dev.bracket.demo.ScenarioSettings;
-import dev.bracket.report.LatestReports;
-import dev.bracket.stream.Monitor;
+import dev.bracket.demo.ScenarioConfig;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.app.Monitor;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
 import org.apache.kafka.clients.producer.Producer;
@@ -99,7 +99,7 @@ class PageInBrowserTest {
                 inputs:
                   - topic: page-events
                 topics: {rejected: page-rejected, partials: page-partials, bounds: page-bounds, partitions: 2}
-                alerts: {topic: page-alerts, tick: 500ms}
+                alerts: {topic: page-alerts, check-interval: 500ms}
                 commit-interval: 300ms
                 publish-interval: 300ms
                 group: page
@@ -172,7 +172,7 @@ class PageInBrowserTest {
             // The demo rollout: true ATE -0.08 with selection on health, so mts-positive identifies a
             // negative sign (the demo's documented behaviour, checked in DemoAlertsEndToEndTest).
             DemoProducer sender = new DemoProducer(kafka, "page-events", 0, Clock.systemUTC());
-            sender.run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(7)), ROLLOUT),
+            sender.run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(7)), ROLLOUT),
                     new DemoProducer.Limits(40_000, null), () -> false);
         }
 

@@ -2,16 +2,16 @@ package dev.bracket.web;
 
 import com.fasterxml.jackson.databind.JsonNode;
 import dev.bracket.bands.BandMethod;
-import dev.bracket.bands.BandSettings;
+import dev.bracket.bands.BandConfig;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
-import dev.bracket.report.LatestReports;
-import dev.bracket.report.PublishedReport;
-import dev.bracket.report.ReportJson;
+import dev.bracket.report.store.LatestReports;
+import dev.bracket.report.store.PublishedReport;
+import dev.bracket.report.render.ReportJson;
 import dev.bracket.report.StudyReport;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
 import io.micrometer.prometheusmetrics.PrometheusMeterRegistry;
@@ -46,7 +46,7 @@ class WebServerTest {
     private static StudyReport report(long treatedN) {
         StudyCells cells = StudyCells.single(new ObservedArms(
                 ArmStatistics.ofSummary(treatedN, 0.62, 0.2), ArmStatistics.ofSummary(600, 0.48, 0.2)));
-        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandSettings.both(0.95));
+        return StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandConfig.both(0.95));
     }
 
     @BeforeAll

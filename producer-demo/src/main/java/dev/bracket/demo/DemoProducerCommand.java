@@ -1,5 +1,6 @@
 package dev.bracket.demo;
 
+import dev.bracket.duration.DurationText;
 import org.apache.kafka.clients.producer.Producer;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
@@ -15,8 +16,6 @@ import java.time.Clock;
 import java.time.Duration;
 import java.util.Optional;
 import java.util.concurrent.Callable;
-import java.util.concurrent.CountDownLatch;
-import java.util.concurrent.atomic.AtomicBoolean;
 
 /** Sends the simulated rollout (or a file of JSON lines) to the outcomes topic. */
 @Command(name = "demo-producer",
@@ -60,11 +59,11 @@ public final class DemoProducerCommand implements Callable<Integer> {
     @CommandLine.Mixin
     ScenarioOptions scenarioOptions;
 
-    @Option(names = "--hosts", paramLabel = "N", defaultValue = "" + ScenarioSettings.DEFAULT_HOSTS,
+    @Option(names = "--hosts", paramLabel = "N", defaultValue = "" + ScenarioConfig.DEFAULT_HOSTS,
             description = "Hosts in the simulated service (default: ${DEFAULT-VALUE}).")
     int hosts;
 
-    @Option(names = "--rollout-share", paramLabel = "P", defaultValue = "" + ScenarioSettings.DEFAULT_ROLLOUT_SHARE,
+    @Option(names = "--rollout-share", paramLabel = "P", defaultValue = "" + ScenarioConfig.DEFAULT_ROLLOUT_SHARE,
             description = "Share of hosts that get the setting (default: ${DEFAULT-VALUE}).")
     double rolloutShare;
 
@@ -105,7 +104,7 @@ public final class DemoProducerCommand implements Callable<Integer> {
         return send(new ScenarioFeed(scenario, study), limits);
     }
 
-    private ScenarioSettings scenario() {
+    private ScenarioConfig scenario() {
         return scenarioOptions.settings(hosts, rolloutShare, strata, spec.commandLine());
     }
 
@@ -132,28 +131,11 @@ public final class DemoProducerCommand implements Callable<Integer> {
             err.println("demo-producer: cannot reach Kafka: " + down.get() + "; start the broker or correct --bootstrap-servers");
             return 1;
         }
-        AtomicBoolean stop = new AtomicBoolean();
-        CountDownLatch finished = new CountDownLatch(1);
-        Thread hook = new Thread(() -> {
-            stop.set(true);
-            try {
-                finished.await();
-            } catch (InterruptedException e) {
-                Thread.currentThread().interrupt();
-            }
-        });
-        Runtime.getRuntime().addShutdownHook(hook);
         DemoProducer sender;
-        try (Producer<String, String> producer = DemoProducer.kafkaProducer(bootstrapServers)) {
+        try (ShutdownGate gate = new ShutdownGate("bracket-producer-stop", Duration.ofMinutes(1));
+             Producer<String, String> producer = DemoProducer.kafkaProducer(bootstrapServers)) {
             sender = new DemoProducer(producer, topic, rate, Clock.systemUTC());
-            sender.run(feed, limits, stop::get);
-        } finally {
-            finished.countDown();
-        }
-        try {
-            Runtime.getRuntime().removeShutdownHook(hook);
-        } catch (IllegalStateException shuttingDown) {
-            // Ctrl-C arrived: the hook is already running and returns once we finish
+            sender.run(feed, limits, gate::stopRequested);
         }
         PrintWriter out = spec.commandLine().getOut();
         out.printf("Sent %d events; the broker acknowledged %d, refused %d.%n", sender.sent(), sender.acknowledged(), sender.failed());

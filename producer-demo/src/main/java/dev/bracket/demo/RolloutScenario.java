@@ -35,13 +35,13 @@ public final class RolloutScenario {
     private static final double NOISE = 0.08;
     private static final double EDGE = 0.02;
 
-    private final ScenarioSettings settings;
+    private final ScenarioConfig settings;
     private final List<Host> hosts;
     private final long[] nextInterval;
     private final SplittableRandom draws;
     private final TrueEffects truth;
 
-    public RolloutScenario(ScenarioSettings settings) {
+    public RolloutScenario(ScenarioConfig settings) {
         this.settings = settings;
         SplittableRandom build = new SplittableRandom(settings.seed());
         this.draws = build.split();
@@ -50,7 +50,7 @@ public final class RolloutScenario {
         this.truth = computeTruth(hosts);
     }
 
-    private static List<Host> buildHosts(ScenarioSettings s, SplittableRandom rng) {
+    private static List<Host> buildHosts(ScenarioConfig s, SplittableRandom rng) {
         int n = s.hosts();
         double[] health = new double[n];
         int[] region = new int[n];
@@ -100,7 +100,7 @@ public final class RolloutScenario {
                 on.stream().mapToDouble(Host::controlMean).average().orElseThrow());
     }
 
-    public ScenarioSettings settings() {
+    public ScenarioConfig settings() {
         return settings;
     }
 

@@ -3,7 +3,7 @@ package dev.bracket.demo;
 /**
  * What the simulation knows and a real study never does, over the population of host-intervals
  * (every host equally likely to report an interval). With {@code p} the treated share,
- * {@code ATE = p*mu1 + (1-p)*m10 - (1-p)*mu0 - p*m01} (the decomposition in DESIGN.md §2).
+ * {@code ATE = p*mu1 + (1-p)*m10 - (1-p)*mu0 - p*m01} (the decomposition by treatment arm, Manski 1990, AER P&P).
  *
  * @param ate              average treatment effect E[Y1 - Y0]
  * @param treatedShare     p, the share of host-intervals on hosts with the setting

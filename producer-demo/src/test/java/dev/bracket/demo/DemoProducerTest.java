@@ -32,7 +32,7 @@ class DemoProducerTest {
     void simulatedEventsHaveTheAgreedShape() throws Exception {
         MockProducer<String, String> kafka = mock();
         DemoProducer sender = new DemoProducer(kafka, "outcomes", 0, FIXED);
-        RolloutScenario scenario = new RolloutScenario(ScenarioSettings.defaults(7));
+        RolloutScenario scenario = new RolloutScenario(ScenarioConfig.defaults(7));
         sender.run(new ScenarioFeed(scenario, "rollout-a"), new DemoProducer.Limits(500, null), () -> false);
 
         List<ProducerRecord<String, String>> sent = kafka.history();
@@ -56,7 +56,7 @@ class DemoProducerTest {
     @DisplayName("with strata on, each event names its host's region")
     void strataAreTheRegions() throws Exception {
         MockProducer<String, String> kafka = mock();
-        RolloutScenario scenario = new RolloutScenario(new ScenarioSettings(400, 0.3, 0.7, -0.02, true, 7));
+        RolloutScenario scenario = new RolloutScenario(new ScenarioConfig(400, 0.3, 0.7, -0.02, true, 7));
         new DemoProducer(kafka, "t", 0, FIXED).run(new ScenarioFeed(scenario, "s"), new DemoProducer.Limits(300, null), () -> false);
         for (ProducerRecord<String, String> r : kafka.history()) {
             assertThat(JSON.readTree(r.value()).get("stratum").asText()).isIn("east", "central", "west");
@@ -69,7 +69,7 @@ class DemoProducerTest {
         MockProducer<String, String> kafka = mock();
         DemoProducer sender = new DemoProducer(kafka, "t", 1000, FIXED);
         long start = System.nanoTime();
-        sender.run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+        sender.run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(1)), "s"),
                 new DemoProducer.Limits(301, null), () -> false);
         double seconds = (System.nanoTime() - start) / 1e9;
         assertThat(kafka.history()).hasSize(301);
@@ -81,7 +81,7 @@ class DemoProducerTest {
     void durationStopsTheFeed() {
         MockProducer<String, String> kafka = mock();
         DemoProducer sender = new DemoProducer(kafka, "t", 100, FIXED);
-        sender.run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+        sender.run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(1)), "s"),
                 new DemoProducer.Limits(0, Duration.ofMillis(300)), () -> false);
         assertThat(kafka.history().size()).isBetween(1, 31);
     }
@@ -90,11 +90,11 @@ class DemoProducerTest {
     @DisplayName("with both a count and a duration, whichever is reached first stops the feed")
     void firstLimitWins() {
         MockProducer<String, String> byCount = mock();
-        new DemoProducer(byCount, "t", 0, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+        new DemoProducer(byCount, "t", 0, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(1)), "s"),
                 new DemoProducer.Limits(50, Duration.ofSeconds(30)), () -> false);
         assertThat(byCount.history()).hasSize(50);
         MockProducer<String, String> byTime = mock();
-        new DemoProducer(byTime, "t", 100, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+        new DemoProducer(byTime, "t", 100, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(1)), "s"),
                 new DemoProducer.Limits(1_000_000, Duration.ofMillis(300)), () -> false);
         assertThat(byTime.history().size()).isBetween(1, 31);
     }
@@ -125,7 +125,7 @@ class DemoProducerTest {
     @DisplayName("a stop request ends sending at once")
     void stopRequestEndsSending() {
         MockProducer<String, String> kafka = mock();
-        new DemoProducer(kafka, "t", 0, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioSettings.defaults(1)), "s"),
+        new DemoProducer(kafka, "t", 0, FIXED).run(new ScenarioFeed(new RolloutScenario(ScenarioConfig.defaults(1)), "s"),
                 DemoProducer.Limits.NONE, () -> true);
         assertThat(kafka.history()).isEmpty();
     }

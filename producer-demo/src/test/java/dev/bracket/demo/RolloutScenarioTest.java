@@ -41,7 +41,7 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("the average of Y1 - Y0 over simulated units converges to the stated true ATE")
     void empiricalAteConvergesToTruth() {
-        RolloutScenario scenario = new RolloutScenario(ScenarioSettings.defaults(11));
+        RolloutScenario scenario = new RolloutScenario(ScenarioConfig.defaults(11));
         Moments effect = new Moments();
         for (int i = 0; i < UNITS; i++) {
             effect.add(scenario.nextUnit().effect());
@@ -54,7 +54,7 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("observed arm means and the two unobservable means converge to mu1, mu0, m10 and m01")
     void armMeansConvergeToTruth() {
-        RolloutScenario scenario = new RolloutScenario(ScenarioSettings.defaults(12));
+        RolloutScenario scenario = new RolloutScenario(ScenarioConfig.defaults(12));
         Moments mu1 = new Moments();
         Moments mu0 = new Moments();
         Moments m10 = new Moments();
@@ -84,9 +84,9 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("the stated truth satisfies ATE = p*mu1 + (1-p)*m10 - (1-p)*mu0 - p*m01")
     void truthSatisfiesTheAteDecomposition() {
-        // Decomposition of the ATE by treatment arm, DESIGN.md section 2 (Manski 1990, AER P&P).
+        // Decomposition of the ATE by treatment arm (Manski 1990, AER P&P).
         for (long seed = 1; seed <= 10; seed++) {
-            TrueEffects t = new RolloutScenario(ScenarioSettings.defaults(seed)).truth();
+            TrueEffects t = new RolloutScenario(ScenarioConfig.defaults(seed)).truth();
             double p = t.treatedShare();
             double decomposed = p * t.treatedMean() + (1 - p) * t.m10() - (1 - p) * t.controlMean() - p * t.m01();
             assertThat(decomposed).isCloseTo(t.ate(), within(1e-12));
@@ -117,7 +117,7 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("the naive difference the monitor sees in the data converges to the stated biased value")
     void observedNaiveDifferenceMatchesStatedBias() {
-        RolloutScenario scenario = new RolloutScenario(new ScenarioSettings(400, 0.3, 0.9, 0.0, false, 5));
+        RolloutScenario scenario = new RolloutScenario(new ScenarioConfig(400, 0.3, 0.9, 0.0, false, 5));
         Moments treated = new Moments();
         Moments control = new Moments();
         for (int i = 0; i < UNITS; i++) {
@@ -133,7 +133,7 @@ class RolloutScenarioTest {
     @DisplayName("with healthy hosts picked first, monotone treatment selection (positive) holds in the population")
     void positiveSelectionSatisfiesMts() {
         // MTS positive as a constraint on the unobservable means: m10 <= mu1 and m01 >= mu0
-        // (Manski & Pepper 2000; DESIGN.md table). The demo relies on it holding here.
+        // (Manski & Pepper 2000). The demo relies on it holding here.
         for (long seed = 1; seed <= 10; seed++) {
             TrueEffects t = truthFor(0.7, seed);
             assertThat(t.m10()).isLessThanOrEqualTo(t.treatedMean());
@@ -144,7 +144,7 @@ class RolloutScenarioTest {
     @Test
     @DisplayName("every potential outcome lies in [0, 1]")
     void outcomesStayInRange() {
-        RolloutScenario scenario = new RolloutScenario(new ScenarioSettings(400, 0.3, 1.0, 0.5, true, 3));
+        RolloutScenario scenario = new RolloutScenario(new ScenarioConfig(400, 0.3, 1.0, 0.5, true, 3));
         for (int i = 0; i < 50_000; i++) {
             SimulatedUnit u = scenario.nextUnit();
             assertThat(u.treatedOutcome()).isBetween(0.0, 1.0);
@@ -156,29 +156,29 @@ class RolloutScenarioTest {
     @DisplayName("the same seed gives the same events, another seed different ones")
     void seededRunsAreReproducible() {
         Instant t = Instant.parse("2026-01-01T00:00:00Z");
-        ScenarioSettings settings = new ScenarioSettings(400, 0.3, 0.7, -0.02, true, 42);
+        ScenarioConfig settings = new ScenarioConfig(400, 0.3, 0.7, -0.02, true, 42);
         assertThat(events(settings, t)).isEqualTo(events(settings, t));
         assertThat(new RolloutScenario(settings).truth()).isEqualTo(new RolloutScenario(settings).truth());
-        ScenarioSettings other = new ScenarioSettings(400, 0.3, 0.7, -0.02, true, 43);
+        ScenarioConfig other = new ScenarioConfig(400, 0.3, 0.7, -0.02, true, 43);
         assertThat(events(other, t)).isNotEqualTo(events(settings, t));
     }
 
     @Test
     @DisplayName("settings outside their ranges are refused with the allowed range in the message")
     void badSettingsAreRefused() {
-        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioSettings(400, 0.3, 1.5, 0, false, 1))
+        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioConfig(400, 0.3, 1.5, 0, false, 1))
                 .hasMessageContaining("selection strength must lie in [-1, 1]");
-        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioSettings(400, 1.0, 0.5, 0, false, 1))
+        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioConfig(400, 1.0, 0.5, 0, false, 1))
                 .hasMessageContaining("rollout share");
-        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioSettings(400, 0.3, 0.5, 0.7, false, 1))
+        org.assertj.core.api.Assertions.assertThatThrownBy(() -> new ScenarioConfig(400, 0.3, 0.5, 0.7, false, 1))
                 .hasMessageContaining("effect must lie in [-0.5, 0.5]");
     }
 
     private static TrueEffects truthFor(double selection, long seed) {
-        return new RolloutScenario(new ScenarioSettings(400, 0.3, selection, -0.02, false, seed)).truth();
+        return new RolloutScenario(new ScenarioConfig(400, 0.3, selection, -0.02, false, seed)).truth();
     }
 
-    private static List<String> events(ScenarioSettings settings, Instant t) {
+    private static List<String> events(ScenarioConfig settings, Instant t) {
         RolloutScenario scenario = new RolloutScenario(settings);
         List<String> out = new ArrayList<>();
         LongStream.range(0, 1000).forEach(i -> out.add(OutcomeEvent.observe("s", scenario.nextUnit(), t, true).toJson()));

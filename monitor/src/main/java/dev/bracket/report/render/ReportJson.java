@@ -1,0 +1,232 @@
+package dev.bracket.report.render;
+
+import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.io.SerializedString;
+import com.fasterxml.jackson.core.util.ByteArrayBuilder;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import com.fasterxml.jackson.databind.util.TokenBuffer;
+import dev.bracket.bands.ConfidenceBand;
+import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.report.BoundRow;
+import dev.bracket.report.StudyReport;
+
+import java.io.IOException;
+import java.io.UncheckedIOException;
+import java.util.Map;
+import java.util.TreeMap;
+import java.util.concurrent.ConcurrentHashMap;
+
+/**
+ * The versioned JSON form of a {@link StudyReport}. Field names are a public contract:
+ * automation depends on them. Numbers that do not exist (the ends of a refuted interval, the
+ * mean of an empty arm) are {@code null}, never NaN.
+ */
+public final class ReportJson {
+
+    /** Identifies the document layout; bump the number on incompatible changes. */
+    public static final String SCHEMA = "bracket.bounds/2";
+
+    private static final ObjectMapper MAPPER = new ObjectMapper();
+    private static final Map<String, SerializedString> FIXED_TEXTS = new ConcurrentHashMap<>();
+    private static final int MAX_FIXED_TEXTS = 1024;
+
+    private ReportJson() {
+    }
+
+    public static ObjectMapper mapper() {
+        return MAPPER;
+    }
+
+    /** The whole report: schema, outcome range, pooled arms and one row per assumption set. */
+    public static ObjectNode toJson(StudyReport report) {
+        return tree(g -> {
+            g.writeStartObject();
+            g.writeStringField("schema", SCHEMA);
+            writeFields(g, report);
+            g.writeEndObject();
+        });
+    }
+
+    /**
+     * Writes the report's fields after the schema (outcome range, pooled arms, rows) into the
+     * object {@code g} is in: documents are written straight to bytes, without a tree.
+     */
+    public static void writeFields(JsonGenerator g, StudyReport report) throws IOException {
+        g.writeFieldName("outcome");
+        outcome(g, report.range());
+        g.writeFieldName("arms");
+        arms(g, report);
+        g.writeArrayFieldStart("bounds");
+        boolean instrumentLevels = report.cells().hasInstrument();
+        for (BoundRow row : report.rows()) {
+            row(g, row, instrumentLevels);
+        }
+        g.writeEndArray();
+    }
+
+    /** Something written by a generator. */
+    @FunctionalInterface
+    public interface Writing {
+        void to(JsonGenerator g) throws IOException;
+    }
+
+    /** What {@code writing} writes, as a tree (for callers that add to it). */
+    public static ObjectNode tree(Writing writing) {
+        try (TokenBuffer buffer = new TokenBuffer(MAPPER, false)) {
+            writing.to(buffer);
+            return MAPPER.readTree(buffer.asParser());
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot write a report into memory", e);
+        }
+    }
+
+    /** What {@code writing} writes, as UTF-8 bytes. */
+    public static byte[] bytes(Writing writing) {
+        ByteArrayBuilder out = new ByteArrayBuilder(8192);
+        try (JsonGenerator g = MAPPER.getFactory().createGenerator(out)) {
+            writing.to(g);
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot write a report into memory", e);
+        }
+        return out.toByteArray();
+    }
+
+    private static void outcome(JsonGenerator g, OutcomeRange range) throws IOException {
+        g.writeStartObject();
+        g.writeNumberField("min", range.min());
+        g.writeNumberField("max", range.max());
+        g.writeStringField("better", range.better().id());
+        g.writeStringField("kind", range.kind().id());
+        g.writeEndObject();
+    }
+
+    private static void arms(JsonGenerator g, StudyReport report) throws IOException {
+        g.writeStartObject();
+        g.writeFieldName("treated");
+        arm(g, report.pooled().treated());
+        g.writeFieldName("control");
+        arm(g, report.pooled().control());
+        number(g, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
+        g.writeEndObject();
+    }
+
+    /** One arm: n, mean and sd (null where they do not exist). */
+    public static ObjectNode arm(ArmStatistics s) {
+        return tree(g -> arm(g, s));
+    }
+
+    private static void arm(JsonGenerator g, ArmStatistics s) throws IOException {
+        g.writeStartObject();
+        g.writeNumberField("n", s.count());
+        number(g, "mean", s.isEmpty() ? Double.NaN : s.mean());
+        number(g, "sd", s.count() < 2 ? Double.NaN : s.sd());
+        g.writeEndObject();
+    }
+
+    /**
+     * One row: assumptions, meaning, the instrument assumption (null when the data have no
+     * instrument levels), status, interval, width, sign, per-stratum intervals and any confidence bands.
+     */
+    private static void row(JsonGenerator g, BoundRow row, boolean instrumentLevels) throws IOException {
+        g.writeStartObject();
+        g.writeArrayFieldStart("assumptions");
+        for (String id : row.assumptions().ids()) {
+            g.writeString(id);
+        }
+        g.writeEndArray();
+        fixedText(g, "meaning", row.assumptions().meaning());
+        if (instrumentLevels) {
+            g.writeStringField("instrument", row.assumptions().instrument().id());
+        } else {
+            g.writeNullField("instrument");
+        }
+        interval(g, row.interval());
+        g.writeStringField("sign", row.sign());
+        if (!row.perStratum().isEmpty()) {
+            g.writeArrayFieldStart("strata");
+            for (Map.Entry<String, IdentifiedInterval> e : new TreeMap<>(row.perStratum()).entrySet()) {
+                g.writeStartObject();
+                g.writeStringField("stratum", e.getKey());
+                interval(g, e.getValue());
+                g.writeEndObject();
+            }
+            g.writeEndArray();
+        }
+        if (!row.shownBands().isEmpty()) {
+            g.writeArrayFieldStart("bands");
+            for (ConfidenceBand b : row.shownBands()) {
+                band(g, b);
+            }
+            g.writeEndArray();
+        }
+        g.writeEndObject();
+    }
+
+    /** A confidence band: method, level, status, ends, width, whether it excludes zero, sign, and what it rests on. */
+    private static void band(JsonGenerator g, ConfidenceBand band) throws IOException {
+        g.writeStartObject();
+        g.writeStringField("method", band.method().id());
+        g.writeNumberField("level", band.level());
+        g.writeStringField("status", band.status().id());
+        number(g, "lower", band.lower());
+        number(g, "upper", band.upper());
+        number(g, "width", band.width());
+        g.writeBooleanField("excludesZero", band.excludesZero());
+        g.writeStringField("sign", BoundRow.signWord(band.sign()));
+        fixedText(g, "basis", band.basis());
+        g.writeEndObject();
+    }
+
+    private static void interval(JsonGenerator g, IdentifiedInterval iv) throws IOException {
+        g.writeStringField("status", iv.status().id());
+        number(g, "lower", iv.lower());
+        number(g, "upper", iv.upper());
+        number(g, "width", iv.width());
+        g.writeBooleanField("excludesZero", iv.excludesZero());
+    }
+
+    /**
+     * A text from a small fixed set (assumption meanings, band descriptions): escaped and encoded
+     * once, then copied; long texts written afresh were a good part of a document's cost.
+     */
+    private static void fixedText(JsonGenerator g, String field, String value) throws IOException {
+        SerializedString encoded = FIXED_TEXTS.get(value);
+        if (encoded == null) {
+            if (FIXED_TEXTS.size() >= MAX_FIXED_TEXTS) {
+                FIXED_TEXTS.clear();
+            }
+            encoded = FIXED_TEXTS.computeIfAbsent(value, SerializedString::new);
+        }
+        g.writeFieldName(field);
+        g.writeString(encoded);
+    }
+
+    private static void number(JsonGenerator g, String field, double value) throws IOException {
+        if (Double.isFinite(value)) {
+            g.writeNumberField(field, value);
+        } else {
+            g.writeNullField(field);
+        }
+    }
+
+    /** Writes an interval's status, ends, width and whether it excludes zero into {@code o}. */
+    public static void interval(ObjectNode o, IdentifiedInterval iv) {
+        o.setAll(tree(g -> {
+            g.writeStartObject();
+            interval(g, iv);
+            g.writeEndObject();
+        }));
+    }
+
+    /** Writes a number, or null where it does not exist. */
+    public static void number(ObjectNode o, String field, double value) {
+        if (Double.isFinite(value)) {
+            o.put(field, value);
+        } else {
+            o.putNull(field);
+        }
+    }
+}

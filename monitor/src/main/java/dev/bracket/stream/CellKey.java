@@ -1,9 +1,0 @@
-package dev.bracket.stream;
-
-/**
- * Names one cell of statistics: study, stratum, instrument level, window and the start of the
- * window's pane in event time (0 for the cumulative window). Empty stratum or level means the
- * data carry none.
- */
-public record CellKey(String study, String stratum, String level, String window, long paneStart) {
-}

@@ -1,5 +1,0 @@
-package dev.bracket.stream;
-
-/** A study and window whose late events are counted together. */
-public record LateKey(String study, String window) {
-}

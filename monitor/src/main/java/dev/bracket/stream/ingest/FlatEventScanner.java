@@ -1,0 +1,418 @@
+package dev.bracket.stream.ingest;
+
+import dev.bracket.config.FieldMapping;
+
+import java.nio.charset.StandardCharsets;
+
+/**
+ * The parser's fast path: reads an event of the usual shape straight from its bytes — one flat
+ * JSON object, ASCII text without escapes, strings, numbers, true, false and null as values —
+ * in one pass with no parser object, and declines everything else: nesting, escapes, non-ASCII
+ * bytes, a value of the wrong type, a malformed or very long number, content after the object.
+ * A declined event is read again by Jackson, which then finds the same values or says exactly
+ * what is wrong. Fields mean what they mean on the Jackson path of {@link EventParser} (the same
+ * order of field names, null skipped, a repeated field's last value kept); the test compares the
+ * two paths on every input it makes.
+ */
+final class FlatEventScanner {
+
+    /** Numbers longer than this are left to Jackson (which also enforces its own length limit). */
+    private static final int MAX_NUMBER_LENGTH = 64;
+    /** Exact powers of ten as doubles (10^22 is the largest one a double holds exactly). */
+    private static final double[] POWERS_OF_TEN = new double[23];
+    private static final long EXACT_MANTISSA = 1L << 53;
+
+    static {
+        double p = 1;
+        for (int i = 0; i < POWERS_OF_TEN.length; i++) {
+            POWERS_OF_TEN[i] = p;
+            p *= 10;
+        }
+    }
+
+    // Field numbers in the order EventParser compares names.
+    private static final int STUDY = 0;
+    private static final int UNIT = 1;
+    private static final int TREATED = 2;
+    private static final int OUTCOME = 3;
+    private static final int TIME = 4;
+    private static final int STRATUM = 5;
+    private static final int INSTRUMENT = 6;
+    private static final int ID = 7;
+
+    // Value kinds.
+    private static final int STRING = 0;
+    private static final int INT = 1;
+    private static final int FLOAT = 2;
+    private static final int TRUE = 3;
+    private static final int FALSE = 4;
+    private static final int NULL = 5;
+
+    private final byte[][] names;
+    private final TextCache texts;
+    private final char[] chars = new char[64];
+
+    // What scan() found, besides the values it put into the event.
+    String study;
+    boolean hasUnit;
+    boolean hasTreated;
+    boolean hasOutcome;
+
+    // The value just read.
+    private int kind;
+    private int valueStart;
+    private int valueEnd;
+    private long longValue;
+
+    FlatEventScanner(FieldMapping fields, TextCache texts) {
+        this.texts = texts;
+        String[] ordered = {fields.study(), fields.unit(), fields.treated(), fields.outcome(), fields.time(),
+                fields.stratum(), fields.instrument(), fields.id()};
+        names = new byte[ordered.length][];
+        for (int i = 0; i < ordered.length; i++) {
+            names[i] = ordered[i].getBytes(StandardCharsets.UTF_8);
+        }
+    }
+
+    /**
+     * Reads {@code b} into {@code e} (a reset event) and the fields of this scanner.
+     *
+     * @return false when the event is not of the shape read here; {@code e} is then partly filled
+     */
+    boolean scan(byte[] b, ParsedEvent e) {
+        study = null;
+        hasUnit = false;
+        hasTreated = false;
+        hasOutcome = false;
+        int n = b.length;
+        int i = skipSpace(b, 0);
+        if (i >= n || b[i] != '{') {
+            return false;
+        }
+        i = skipSpace(b, i + 1);
+        if (i < n && b[i] == '}') {
+            return skipSpace(b, i + 1) == n;
+        }
+        while (true) {
+            if (i >= n || b[i] != '"') {
+                return false;
+            }
+            int nameStart = i + 1;
+            int nameEnd = stringEnd(b, nameStart);
+            if (nameEnd < 0) {
+                return false;
+            }
+            i = skipSpace(b, nameEnd + 1);
+            if (i >= n || b[i] != ':') {
+                return false;
+            }
+            i = skipSpace(b, i + 1);
+            if (!value(b, i) || !use(b, field(b, nameStart, nameEnd), e)) {
+                return false;
+            }
+            i = skipSpace(b, valueEnd);
+            if (i >= n) {
+                return false;
+            }
+            if (b[i] == '}') {
+                return skipSpace(b, i + 1) == n;
+            }
+            if (b[i] != ',') {
+                return false;
+            }
+            i = skipSpace(b, i + 1);
+        }
+    }
+
+    /** Applies the value just read to the field, as EventParser's Jackson path does; false where that path would reject it. */
+    private boolean use(byte[] b, int field, ParsedEvent e) {
+        if (kind == NULL) {
+            return true;
+        }
+        switch (field) {
+            case STUDY -> {
+                if (kind != STRING) {
+                    return false;
+                }
+                study = text(b);
+            }
+            case UNIT -> {
+                if (kind != STRING && kind != INT) {
+                    return false;
+                }
+                hasUnit = true;
+            }
+            case TREATED -> {
+                if (kind == TRUE || kind == FALSE) {
+                    e.treated = kind == TRUE;
+                } else if (kind == INT && (longValue == 0 || longValue == 1)) {
+                    e.treated = longValue == 1;
+                } else {
+                    return false;
+                }
+                hasTreated = true;
+            }
+            case OUTCOME -> {
+                if (kind == INT) {
+                    e.outcome = longValue; // as Jackson: a whole number becomes a double by conversion
+                } else if (kind == FLOAT) {
+                    e.outcome = floatValue(b);
+                } else {
+                    return false;
+                }
+                hasOutcome = true;
+            }
+            case TIME -> {
+                if (kind == INT && IsoTime.representable(longValue)) {
+                    e.time = longValue;
+                } else if (kind == STRING && valueEnd - valueStart - 2 <= chars.length) {
+                    int len = valueEnd - valueStart - 2;
+                    for (int k = 0; k < len; k++) {
+                        chars[k] = (char) b[valueStart + 1 + k];
+                    }
+                    long t = IsoTime.parseMillis(chars, 0, len);
+                    if (t == IsoTime.INVALID || t == IsoTime.UNREPRESENTABLE) {
+                        return false; // Jackson's path names the problem
+                    }
+                    e.time = t;
+                } else {
+                    return false;
+                }
+            }
+            case STRATUM, INSTRUMENT -> {
+                if (kind != STRING && kind != INT) {
+                    return false;
+                }
+                if (field == STRATUM) {
+                    e.stratum = text(b);
+                } else {
+                    e.instrument = text(b);
+                }
+            }
+            case ID -> {
+                return kind == STRING || kind == INT;
+            }
+            default -> {
+                // a field the mapping does not name: any plain value is skipped
+            }
+        }
+        return true;
+    }
+
+    /** The first mapped field whose name has these bytes, or -1. */
+    private int field(byte[] b, int start, int end) {
+        int len = end - start;
+        for (int f = 0; f < names.length; f++) {
+            byte[] name = names[f];
+            if (name.length == len && equal(b, start, name)) {
+                return f;
+            }
+        }
+        return -1;
+    }
+
+    private static boolean equal(byte[] b, int start, byte[] name) {
+        for (int k = 0; k < name.length; k++) {
+            if (b[start + k] != name[k]) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /** Reads the value at {@code i} into kind, valueStart, valueEnd (and longValue); false when it is not a plain value. */
+    private boolean value(byte[] b, int i) {
+        if (i >= b.length) {
+            return false;
+        }
+        valueStart = i;
+        byte c = b[i];
+        if (c == '"') {
+            int end = stringEnd(b, i + 1);
+            kind = STRING;
+            valueEnd = end + 1;
+            return end >= 0;
+        }
+        if (c == '-' || (c >= '0' && c <= '9')) {
+            return number(b, i);
+        }
+        if (c == 't') {
+            kind = TRUE;
+            return literal(b, i, "true");
+        }
+        if (c == 'f') {
+            kind = FALSE;
+            return literal(b, i, "false");
+        }
+        if (c == 'n') {
+            kind = NULL;
+            return literal(b, i, "null");
+        }
+        return false;
+    }
+
+    private boolean literal(byte[] b, int i, String word) {
+        int end = i + word.length();
+        if (end > b.length) {
+            return false;
+        }
+        for (int k = 1; k < word.length(); k++) {
+            if (b[i + k] != word.charAt(k)) {
+                return false;
+            }
+        }
+        valueEnd = end;
+        return end == b.length || delimits(b[end]);
+    }
+
+    /** JSON's number grammar; whole numbers of up to 18 digits also get longValue. */
+    private boolean number(byte[] b, int i) {
+        int n = b.length;
+        int j = i;
+        boolean negative = b[j] == '-';
+        if (negative) {
+            j++;
+        }
+        if (j >= n) {
+            return false;
+        }
+        int digitsStart = j;
+        if (b[j] == '0') {
+            j++;
+        } else if (b[j] >= '1' && b[j] <= '9') {
+            while (j < n && b[j] >= '0' && b[j] <= '9') {
+                j++;
+            }
+        } else {
+            return false;
+        }
+        int intDigits = j - digitsStart;
+        kind = INT;
+        if (j < n && b[j] == '.') {
+            j++;
+            int fraction = j;
+            while (j < n && b[j] >= '0' && b[j] <= '9') {
+                j++;
+            }
+            if (j == fraction) {
+                return false;
+            }
+            kind = FLOAT;
+        }
+        if (j < n && (b[j] == 'e' || b[j] == 'E')) {
+            j++;
+            if (j < n && (b[j] == '+' || b[j] == '-')) {
+                j++;
+            }
+            int exponent = j;
+            while (j < n && b[j] >= '0' && b[j] <= '9') {
+                j++;
+            }
+            if (j == exponent) {
+                return false;
+            }
+            kind = FLOAT;
+        }
+        valueEnd = j;
+        if (j - i > MAX_NUMBER_LENGTH || j >= n || !delimits(b[j])) {
+            return false;
+        }
+        if (kind == INT) {
+            if (intDigits > 18) {
+                return false; // Jackson decides what a very long whole number becomes
+            }
+            long v = 0;
+            for (int k = digitsStart; k < j; k++) {
+                v = v * 10 + (b[k] - '0');
+            }
+            longValue = negative ? -v : v;
+        }
+        return true;
+    }
+
+    /**
+     * The decimal number just read as the nearest double, as {@link Double#parseDouble} (and so
+     * Jackson's fast double parser) gives it: exactly when mantissa and power of ten are both
+     * exact doubles (one correctly rounded operation; Clinger 1990), else by parseDouble.
+     */
+    private double floatValue(byte[] b) {
+        int j = valueStart;
+        boolean negative = b[j] == '-';
+        if (negative) {
+            j++;
+        }
+        long mantissa = 0;
+        int digits = 0;
+        int scale = 0;
+        boolean fraction = false;
+        for (; j < valueEnd; j++) {
+            byte c = b[j];
+            if (c == '.') {
+                fraction = true;
+            } else if (c == 'e' || c == 'E') {
+                break;
+            } else {
+                if (mantissa != 0 || c != '0') {
+                    digits++;
+                }
+                mantissa = digits > 18 ? mantissa : mantissa * 10 + (c - '0');
+                scale -= fraction ? 1 : 0;
+            }
+        }
+        int exponent = 0;
+        if (j < valueEnd) {
+            j++;
+            boolean minus = b[j] == '-';
+            if (b[j] == '+' || b[j] == '-') {
+                j++;
+            }
+            if (valueEnd - j > 4) {
+                return slowDouble(b);
+            }
+            for (; j < valueEnd; j++) {
+                exponent = exponent * 10 + (b[j] - '0');
+            }
+            exponent = minus ? -exponent : exponent;
+        }
+        int power = scale + exponent;
+        if (digits > 18 || mantissa > EXACT_MANTISSA || power < -22 || power > 22) {
+            return slowDouble(b);
+        }
+        double v = power < 0 ? mantissa / POWERS_OF_TEN[-power] : mantissa * POWERS_OF_TEN[power];
+        return negative ? -v : v;
+    }
+
+    private double slowDouble(byte[] b) {
+        return Double.parseDouble(new String(b, valueStart, valueEnd - valueStart, StandardCharsets.ISO_8859_1));
+    }
+
+    /** The string or number just read, as text (a string without its quotes). */
+    private String text(byte[] b) {
+        return kind == STRING ? texts.get(b, valueStart + 1, valueEnd - valueStart - 2) : texts.get(b, valueStart, valueEnd - valueStart);
+    }
+
+    /** Index of the closing quote of a string of plain ASCII (no escapes, no control characters) starting at {@code i}; else -1. */
+    private static int stringEnd(byte[] b, int i) {
+        for (int n = b.length; i < n; i++) {
+            byte c = b[i];
+            if (c == '"') {
+                return i;
+            }
+            if (c == '\\' || c < 0x20) { // bytes from 0x80 up are negative: left to Jackson as well
+                return -1;
+            }
+        }
+        return -1;
+    }
+
+    private static boolean delimits(byte c) {
+        return c == ',' || c == '}' || c == ' ' || c == '\n' || c == '\r' || c == '\t';
+    }
+
+    private static int skipSpace(byte[] b, int i) {
+        while (i < b.length && (b[i] == ' ' || b[i] == '\n' || b[i] == '\r' || b[i] == '\t')) {
+            i++;
+        }
+        return i;
+    }
+}

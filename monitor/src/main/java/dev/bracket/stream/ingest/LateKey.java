@@ -1,0 +1,5 @@
+package dev.bracket.stream.ingest;
+
+/** A study and window whose late events are counted together. */
+public record LateKey(String study, String window) {
+}

@@ -1,0 +1,206 @@
+package dev.bracket.stream.ingest;
+
+import dev.bracket.bounds.ObservedArms;
+import dev.bracket.config.StudyConfig;
+import dev.bracket.config.WindowSpec;
+
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.HashMap;
+import java.util.Iterator;
+import java.util.List;
+import java.util.Map;
+import java.util.function.BiConsumer;
+
+/**
+ * The panes of one source partition: cumulative statistics per (study, stratum, instrument
+ * level, window, pane), the partition's stream time (largest event time seen) and its late
+ * counts. One writer, no locking.
+ *
+ * <p>An event is late for a windowed (tumbling or sliding) window when every window containing
+ * it has closed: {@code paneStart + size + grace <= streamTime}. It then still counts in the
+ * cumulative window and in windows that are open, and is counted as late for the closed one.
+ * Closed panes can no longer change; {@link #evictClosed} drops them.
+ */
+public final class PartitionState {
+
+    /** Slots of the pane cache (a power of two). */
+    private static final int CACHE_SLOTS = 64;
+
+    private final SourcePartition source;
+    private final WindowSpec[] windows;
+    private final long[] paneMillis;
+    private final long[] sizeMillis;
+    private final long graceMillis;
+    private final BiConsumer<StudyConfig, WindowSpec> onLate;
+    private final Map<PaneKey, PaneAccumulator> panes = new HashMap<>();
+    private final Map<LateKey, Long> late = new HashMap<>();
+    private final Map<String, StudyTraffic> traffic = new HashMap<>();
+    private long unattributed;
+    // A direct-mapped cache in front of the pane map. Events repeat a few panes, and their
+    // strings are the parser's canonical instances, so comparing by identity finds most panes
+    // without making a key and looking it up. A miss (or an equal string that is another
+    // instance) falls through to the map; anything that removes or replaces panes clears it.
+    private final PaneKey[] cachedKeys = new PaneKey[CACHE_SLOTS];
+    private final PaneAccumulator[] cachedPanes = new PaneAccumulator[CACHE_SLOTS];
+    private long streamTime = Long.MIN_VALUE;
+    private boolean progressDirty;
+
+    /**
+     * @param onLate told of each late (event, window) pair, e.g. to count it in a metric
+     */
+    public PartitionState(SourcePartition source, List<WindowSpec> windows, long graceMillis,
+                          BiConsumer<StudyConfig, WindowSpec> onLate) {
+        this.source = source;
+        this.windows = windows.toArray(new WindowSpec[0]);
+        this.paneMillis = new long[this.windows.length];
+        this.sizeMillis = new long[this.windows.length];
+        for (int i = 0; i < this.windows.length; i++) {
+            paneMillis[i] = this.windows[i].paneMillis();
+            sizeMillis[i] = this.windows[i].size().toMillis();
+        }
+        this.graceMillis = graceMillis;
+        this.onLate = onLate;
+    }
+
+    public SourcePartition source() {
+        return source;
+    }
+
+    /** Folds a usable event into its panes, one per window. */
+    public void add(ParsedEvent e) {
+        long t = e.time();
+        if (t > streamTime) {
+            streamTime = t;
+            progressDirty = true;
+        }
+        String study = e.study().id();
+        for (int w = 0; w < windows.length; w++) {
+            long pane = WindowSpec.paneStart(t, paneMillis[w]);
+            if (windows[w].kind() != WindowSpec.Kind.CUMULATIVE && isClosed(sizeMillis[w], pane)) {
+                late.merge(new LateKey(study, windows[w].name()), 1L, Long::sum);
+                progressDirty = true;
+                onLate.accept(e.study(), windows[w]);
+                continue;
+            }
+            pane(study, e.stratum(), e.instrument(), windows[w].name(), pane).add(e.treated(), e.outcome());
+        }
+    }
+
+    private PaneAccumulator pane(String study, String stratum, String level, String window, long paneStart) {
+        int h = ((study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode()) * 31 + window.hashCode();
+        h = h * 31 + Long.hashCode(paneStart);
+        int slot = (h ^ (h >>> 16)) & (CACHE_SLOTS - 1);
+        PaneKey k = cachedKeys[slot];
+        if (k != null && k.paneStart() == paneStart && k.study() == study && k.stratum() == stratum && k.level() == level
+                && k.window() == window) {
+            return cachedPanes[slot];
+        }
+        PaneKey key = new PaneKey(study, stratum, level, window, paneStart);
+        PaneAccumulator pane = panes.get(key);
+        if (pane == null) {
+            pane = new PaneAccumulator();
+            panes.put(key, pane);
+        }
+        cachedKeys[slot] = key;
+        cachedPanes[slot] = pane;
+        return pane;
+    }
+
+    private void clearCache() {
+        Arrays.fill(cachedKeys, null);
+        Arrays.fill(cachedPanes, null);
+    }
+
+    private boolean isClosed(long sizeMillis, long paneStart) {
+        // Saturating: paneStart + size + grace may exceed Long.MAX_VALUE for far-future times.
+        long closesAt = paneStart + sizeMillis;
+        closesAt = closesAt > Long.MAX_VALUE - graceMillis ? Long.MAX_VALUE : closesAt + graceMillis;
+        return closesAt <= streamTime;
+    }
+
+    /**
+     * Removes panes whose panes have closed and returns their keys (for tombstones in the
+     * partials topic). Closed panes lie before every window a report can still be asked for.
+     */
+    public List<PaneKey> evictClosed() {
+        List<PaneKey> closed = new ArrayList<>();
+        Map<String, WindowSpec> byName = new HashMap<>();
+        for (WindowSpec w : windows) {
+            byName.put(w.name(), w);
+        }
+        for (Iterator<Map.Entry<PaneKey, PaneAccumulator>> it = panes.entrySet().iterator(); it.hasNext(); ) {
+            PaneKey key = it.next().getKey();
+            WindowSpec w = byName.get(key.window());
+            if (w != null && w.kind() != WindowSpec.Kind.CUMULATIVE && isClosed(w.size().toMillis(), key.paneStart())) {
+                closed.add(key);
+                it.remove();
+            }
+        }
+        if (!closed.isEmpty()) {
+            clearCache();
+        }
+        return closed;
+    }
+
+    /** Calls {@code sink} with every pane changed since {@link #markClean}. */
+    public void forEachDirty(BiConsumer<PaneKey, ObservedArms> sink) {
+        panes.forEach((k, c) -> {
+            if (c.isDirty()) {
+                sink.accept(k, c.snapshot());
+            }
+        });
+    }
+
+    public boolean progressChanged() {
+        return progressDirty;
+    }
+
+    /** Marks everything as written. */
+    public void markClean() {
+        panes.values().forEach(PaneAccumulator::markClean);
+        progressDirty = false;
+    }
+
+    /** Every pane's current statistics. */
+    public Map<PaneKey, ObservedArms> panes() {
+        Map<PaneKey, ObservedArms> out = new HashMap<>();
+        panes.forEach((k, c) -> out.put(k, c.snapshot()));
+        return out;
+    }
+
+    /** Adds a batch of a study's events to its traffic counts (once per poll, not per event). */
+    public void countTraffic(String study, long accepted, long rejected, long outOfRange) {
+        traffic.merge(study, StudyTraffic.NONE.plus(accepted, rejected, outOfRange),
+                (a, b) -> a.plus(b.accepted(), b.rejected(), b.outOfRange()));
+        progressDirty = true;
+    }
+
+    /** Adds rejected records whose study could not be read (once per poll, not per record). */
+    public void countUnattributed(long rejected) {
+        unattributed += rejected;
+        progressDirty = true;
+    }
+
+    public SourceProgress progress() {
+        return new SourceProgress(streamTime, late, traffic, unattributed);
+    }
+
+    /** Puts back a pane read from the partials topic (not marked as changed). */
+    public void restorePane(PaneKey key, ObservedArms arms) {
+        PaneAccumulator pane = new PaneAccumulator();
+        pane.set(arms);
+        panes.put(key, pane);
+        clearCache();
+    }
+
+    /** Puts back the stream time, late counts and traffic read from the partials topic. */
+    public void restoreProgress(SourceProgress progress) {
+        streamTime = progress.streamTime();
+        late.clear();
+        late.putAll(progress.late());
+        traffic.clear();
+        traffic.putAll(progress.traffic());
+        unattributed = progress.unattributed();
+    }
+}
