@@ -49,8 +49,10 @@ import java.util.function.Consumer;
  * at that moment; only then are its studies handed to {@link StudyOwnership#taken} (alert state)
  * and published, and the first report waits one publish interval, so a hand-over never puts two
  * documents of a study within one interval. From then on it keeps the latest statistics of every
- * source partition per pane and recomputes a study's reports when its numbers changed, at most
- * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
+ * source partition per pane and recomputes a study's reports when its numbers changed, or all of
+ * a partition's studies when a time window moves on to its next pane ({@link WindowSpans}), at
+ * most once per {@code publish-interval} per study; quiet studies are not republished (the
+ * bounds topic is compacted, so their latest document stays readable). Each report goes to the bounds topic as a
  * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and
  * into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on
  * its own thread.
