@@ -1,11 +1,14 @@
 package dev.bracket.stream.publish;
 
 import dev.bracket.report.Cautions;
+import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.render.ReportJson;
 
+import java.io.IOException;
 import java.time.Instant;
+import java.util.Locale;
 
 /**
  * The JSON document published to the bounds topic (and printed by {@code replay --json}) for
@@ -27,26 +30,34 @@ public final class ReportDocument {
      * @param computedAt when the numbers were computed; null leaves the field out (replay)
      */
     public static ObjectNode toJson(WindowReport r, long revision, Instant computedAt) {
-        ObjectNode o = ReportJson.mapper().createObjectNode();
-        ObjectNode body = ReportJson.toJson(r.report());
-        o.set("schema", body.remove("schema"));
-        o.put("study", r.study().id());
-        o.put("window", r.window().name());
-        o.put("windowKind", r.window().kind().name().toLowerCase(java.util.Locale.ROOT));
+        return ReportJson.tree(g -> write(g, r, revision, computedAt));
+    }
+
+    /** The same document as UTF-8 bytes, written without building a tree (what the bound updater publishes). */
+    public static byte[] bytes(WindowReport r, long revision, Instant computedAt) {
+        return ReportJson.bytes(g -> write(g, r, revision, computedAt));
+    }
+
+    private static void write(JsonGenerator g, WindowReport r, long revision, Instant computedAt) throws IOException {
+        g.writeStartObject();
+        g.writeStringField("schema", ReportJson.SCHEMA);
+        g.writeStringField("study", r.study().id());
+        g.writeStringField("window", r.window().name());
+        g.writeStringField("windowKind", r.window().kind().name().toLowerCase(Locale.ROOT));
         if (r.window().kind() == WindowSpec.Kind.CUMULATIVE) {
-            o.putNull("windowStart");
-            o.putNull("windowEnd");
+            g.writeNullField("windowStart");
+            g.writeNullField("windowEnd");
         } else {
-            o.put("windowStart", Instant.ofEpochMilli(r.start()).toString());
-            o.put("windowEnd", Instant.ofEpochMilli(r.end()).toString());
+            g.writeStringField("windowStart", Instant.ofEpochMilli(r.start()).toString());
+            g.writeStringField("windowEnd", Instant.ofEpochMilli(r.end()).toString());
         }
-        o.put("lateEvents", r.lateEvents());
-        o.put("revision", revision);
+        g.writeNumberField("lateEvents", r.lateEvents());
+        g.writeNumberField("revision", revision);
         if (computedAt != null) {
-            o.put("computedAt", computedAt.toString());
+            g.writeStringField("computedAt", computedAt.toString());
         }
-        o.setAll(body);
-        o.put("caution", CAUTION);
-        return o;
+        ReportJson.writeFields(g, r.report());
+        g.writeStringField("caution", CAUTION);
+        g.writeEndObject();
     }
 }
