@@ -20,8 +20,8 @@ import java.util.concurrent.ExecutionException;
 import java.util.concurrent.TimeUnit;
 
 /**
- * Creates the topics the monitor needs when they do not exist: the input topics, the rejected
- * and bounds topics, and the partials, alerts and alert ledger topics with
+ * Creates the topics the monitor needs when they do not exist: the input and rejected topics, and
+ * the bounds, partials, alerts and alert ledger topics with
  * {@code cleanup.policy=compact} (only the latest value per key matters). Existing topics are left as they are.
  */
 public final class TopicSetup {
@@ -36,7 +36,8 @@ public final class TopicSetup {
             wanted.put(in.topic(), Map.of());
         }
         wanted.put(config.topics().rejected(), Map.of());
-        wanted.put(config.topics().bounds(), Map.of());
+        // Compacted: a study is republished only when its numbers change, so a quiet study's latest document must outlive retention.
+        wanted.put(config.topics().bounds(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
         wanted.put(config.topics().partials(), Map.of(TopicConfig.CLEANUP_POLICY_CONFIG, TopicConfig.CLEANUP_POLICY_COMPACT));
         // Alert state and the transitions webhooks may still owe (dev.bracket.alerts.AlertHistory).
         wanted.put(config.alerts().topic(), KafkaAlertSink.TOPIC_CONFIG);

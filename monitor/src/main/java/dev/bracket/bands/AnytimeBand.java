@@ -10,8 +10,12 @@ import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.bounds.StudyCells;
 
+import java.util.IdentityHashMap;
+import java.util.List;
 import java.util.Locale;
+import java.util.Map;
 import java.util.Optional;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The anytime-valid band: with probability at least {@code level}, at every look at once, the
@@ -56,7 +60,10 @@ import java.util.Optional;
  * is not known at all, so pending outcomes then take route 2, whose arm boxes come from the
  * observed outcomes alone and the treated share from all units.
  *
- * <p>Immutable and thread-safe; build one per configured level and reuse it.
+ * <p>Thread-safe; its results depend on its settings only (it keeps what it built for earlier bands:
+ * boundaries, descriptions and the last study's cell boxes, the latter also keyed on whether the
+ * assumptions include {@code missing-at-random}, which changes the boxes of pending outcomes);
+ * build one per configured level and reuse it.
  */
 public final class AnytimeBand {
 
@@ -70,6 +77,14 @@ public final class AnytimeBand {
     private final EmpiricalBernsteinBoundary singleCellBox;
     private final String perEndBasis;
     private final String singleCellBoxBasis;
+    /** Box boundaries and descriptions by number of sequences (times two, plus one with stratum shares): built once, not per band. */
+    private final Map<Integer, EmpiricalBernsteinBoundary> boxBoundaries = new ConcurrentHashMap<>();
+    private final Map<Integer, String> boxBases = new ConcurrentHashMap<>();
+    private volatile CellBoxes lastBoxes;
+
+    /** Bands by settings: building one costs more than a band, and the settings rarely change. */
+    private static final Map<List<Object>, AnytimeBand> SHARED = new ConcurrentHashMap<>();
+    private static final int MAX_SHARED = 16;
 
     /**
      * @param level        confidence level 1 - alpha, in (0, 1)
@@ -93,6 +108,19 @@ public final class AnytimeBand {
         this.singleCellBox = boxBoundary(3);
         this.perEndBasis = basis(true, false, 2);
         this.singleCellBoxBasis = basis(false, false, 3);
+    }
+
+    /** The band for these settings, built once and then reused (see the constructor). */
+    public static AnytimeBand shared(double level, long plannedCount, VarianceBasis variance) {
+        List<Object> key = List.of(level, plannedCount, variance);
+        AnytimeBand band = SHARED.get(key);
+        if (band == null) {
+            if (SHARED.size() >= MAX_SHARED) {
+                SHARED.clear();
+            }
+            band = SHARED.computeIfAbsent(key, k -> new AnytimeBand(level, plannedCount, variance));
+        }
+        return band;
     }
 
     /** The band from observed spreads, tuned for {@link #DEFAULT_PLANNED_COUNT}. */
@@ -121,7 +149,8 @@ public final class AnytimeBand {
         int shares = BoxProjection.shareCount(cells);
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
-                : sequences == 3 ? singleCellBoxBasis : basis(false, shares > 0, sequences);
+                : sequences == 3 ? singleCellBoxBasis
+                : boxBases.computeIfAbsent(2 * sequences + (shares > 0 ? 1 : 0), k -> basis(false, shares > 0, sequences));
         // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
@@ -129,8 +158,15 @@ public final class AnytimeBand {
         if (ends.isPresent()) {
             return perEnd(cells, range, ends.get(), basis);
         }
-        EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundary(sequences);
-        return band(BoxProjection.study(cells, range, assumptions, arms -> box(arms, range, assumptions, boundary),
+        EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundaries.computeIfAbsent(sequences, this::boxBoundary);
+        CellBoxes boxes = lastBoxes;
+        boolean missingAtRandom = assumptions.contains(Assumption.MISSING_AT_RANDOM);
+        if (boxes == null || boxes.cells() != cells || !boxes.range().equals(range) || boxes.boundary() != boundary
+                || boxes.missingAtRandom() != missingAtRandom) {
+            boxes = new CellBoxes(cells, range, boundary, missingAtRandom, boxesOf(cells, range, assumptions, boundary));
+            lastBoxes = boxes;
+        }
+        return band(BoxProjection.study(cells, range, assumptions, boxes.byCell()::get,
                 (units, all) -> share(units, all, boundary)), basis);
     }
 
@@ -165,6 +201,29 @@ public final class AnytimeBand {
         double lower = lo.mean() - perEnd.radius(lo.count(), lo.m2(), ends.lower().max(range) - loMin, lo.mean() - loMin);
         double upper = hi.mean() + perEnd.radius(hi.count(), hi.m2(), hiMax - ends.upper().min(range), hiMax - hi.mean());
         return ConfidenceBand.of(BandMethod.ANYTIME, level, lower, Math.max(lower, upper), basis);
+    }
+
+    /**
+     * The boxes of a study's cells: of the assumptions they depend only on {@code missing-at-random}
+     * (through each arm's {@link dev.bracket.bounds.ArmMeanRange}), so a report's assumption sets
+     * that agree on it share them (the last study's, compared by identity; threads that interleave
+     * studies only compute them again).
+     */
+    private record CellBoxes(StudyCells cells, OutcomeRange range, EmpiricalBernsteinBoundary boundary,
+                             boolean missingAtRandom, Map<ObservedArms, ObservablesBox> byCell) {
+    }
+
+    private Map<ObservedArms, ObservablesBox> boxesOf(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
+                                                      EmpiricalBernsteinBoundary boundary) {
+        Map<ObservedArms, ObservablesBox> out = new IdentityHashMap<>();
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            for (ObservedArms arms : levels.values()) {
+                if (arms.total() > 0) { // the projection skips cells without units
+                    out.put(arms, box(arms, range, assumptions, boundary));
+                }
+            }
+        }
+        return out;
     }
 
     /** Each two-sided sequence of the box route: two one-sided bounds at {@code alpha / (2 sequences)}. */

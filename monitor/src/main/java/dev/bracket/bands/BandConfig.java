@@ -66,7 +66,7 @@ public record BandConfig(double level, Set<BandMethod> methods, VarianceBasis va
         for (BandMethod m : methods) {
             out.add(switch (m) {
                 case FIXED_HORIZON -> FixedHorizonBand.of(cells, range, assumptions, level, variance, estimate);
-                case ANYTIME -> new AnytimeBand(level, plannedCount, variance).of(cells, range, assumptions, estimate);
+                case ANYTIME -> AnytimeBand.shared(level, plannedCount, variance).of(cells, range, assumptions, estimate);
             });
         }
         return List.copyOf(out);

@@ -13,6 +13,7 @@ import dev.bracket.bounds.StudyCells;
 import org.apache.commons.math3.distribution.NormalDistribution;
 
 import java.util.ArrayList;
+import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
@@ -58,6 +59,14 @@ import java.util.Optional;
 public final class FixedHorizonBand {
 
     private static final NormalDistribution STANDARD_NORMAL = new NormalDistribution(0, 1);
+    /** Built once: the text is the same for every band of a variance basis. */
+    private static final Map<VarianceBasis, String> DELTA_BASIS = new EnumMap<>(VarianceBasis.class);
+
+    static {
+        for (VarianceBasis v : VarianceBasis.values()) {
+            DELTA_BASIS.put(v, describeDelta(v));
+        }
+    }
 
     private FixedHorizonBand() {
     }
@@ -185,6 +194,10 @@ public final class FixedHorizonBand {
     }
 
     private static String deltaBasis(VarianceBasis variance) {
+        return DELTA_BASIS.get(variance);
+    }
+
+    private static String describeDelta(VarianceBasis variance) {
         return "Imbens-Manski (2004) interval with Stoye's (2009) width pre-test; delta-method standard errors from "
                 + variance.description() + "; valid at one planned look";
     }

@@ -18,10 +18,13 @@ import java.util.stream.Collectors;
 public final class AssumptionSet {
 
     private final Set<Assumption> members;
+    /** The members in canonical order, for {@link #constrain}: called at every corner of every band's boxes, it should not allocate an iterator. */
+    private final Assumption[] ordered;
     private final InstrumentAssumption instrument;
 
     private AssumptionSet(Set<Assumption> members, InstrumentAssumption instrument) {
         this.members = Collections.unmodifiableSet(members);
+        this.ordered = members.toArray(new Assumption[0]);
         this.instrument = instrument;
     }
 
@@ -127,7 +130,7 @@ public final class AssumptionSet {
     /** Intersects the constraints of every member, starting from the outcome range (Manski 1990). */
     public UnobservedMeans constrain(OutcomeRange range, double mu1, double mu0) {
         UnobservedMeans box = UnobservedMeans.unrestricted(range);
-        for (Assumption a : members) {
+        for (Assumption a : ordered) {
             box = a.constrain(box, mu1, mu0, range.better());
         }
         return box;

@@ -17,9 +17,24 @@ public final class StudyCells {
     private static final StudyCells EMPTY = new StudyCells(Map.of());
 
     private final Map<String, Map<String, ObservedArms>> cells;
+    /** Sums kept from construction: bands and bounds ask for them many times per report. */
+    private final Map<String, ObservedArms> pooledByStratum;
+    private final ObservedArms pooled;
 
     private StudyCells(Map<String, Map<String, ObservedArms>> cells) {
         this.cells = cells;
+        Map<String, ObservedArms> byStratum = new TreeMap<>();
+        ObservedArms all = ObservedArms.empty();
+        for (Map.Entry<String, Map<String, ObservedArms>> e : cells.entrySet()) { // name order, as the sums always were
+            ObservedArms stratum = ObservedArms.empty();
+            for (ObservedArms arms : e.getValue().values()) {
+                stratum = stratum.merge(arms);
+            }
+            byStratum.put(e.getKey(), stratum);
+            all = all.merge(stratum);
+        }
+        this.pooledByStratum = Collections.unmodifiableMap(byStratum);
+        this.pooled = all;
     }
 
     public static StudyCells empty() {
@@ -33,11 +48,28 @@ public final class StudyCells {
 
     /** This study with {@code arms} merged into the cell (stratum, level). */
     public StudyCells with(String stratum, String level, ObservedArms arms) {
-        Map<String, Map<String, ObservedArms>> copy = new TreeMap<>();
-        cells.forEach((s, levels) -> copy.put(s, new TreeMap<>(levels)));
-        copy.computeIfAbsent(stratum, k -> new TreeMap<>()).merge(level, arms, ObservedArms::merge);
-        copy.replaceAll((s, levels) -> Collections.unmodifiableMap(levels));
-        return new StudyCells(Collections.unmodifiableMap(copy));
+        Builder b = new Builder();
+        cells.forEach((s, levels) -> levels.forEach((l, a) -> b.add(s, l, a)));
+        return b.add(stratum, level, arms).build();
+    }
+
+    /**
+     * Collects cells, merging arms added twice to one cell in the order added (as {@link #with}
+     * does), and builds the value once: adding n cells by {@code with} would copy them n times.
+     */
+    public static final class Builder {
+        private final Map<String, Map<String, ObservedArms>> cells = new TreeMap<>();
+
+        public Builder add(String stratum, String level, ObservedArms arms) {
+            cells.computeIfAbsent(stratum, k -> new TreeMap<>()).merge(level, arms, ObservedArms::merge);
+            return this;
+        }
+
+        public StudyCells build() {
+            Map<String, Map<String, ObservedArms>> copy = new TreeMap<>();
+            cells.forEach((s, levels) -> copy.put(s, Collections.unmodifiableMap(new TreeMap<>(levels))));
+            return new StudyCells(Collections.unmodifiableMap(copy));
+        }
     }
 
     /** Stratum name to (instrument level to arms), in name order. */
@@ -52,8 +84,7 @@ public final class StudyCells {
 
     /** All cells of one stratum added together (instrument levels pooled). */
     public ObservedArms pooled(String stratum) {
-        return cells.getOrDefault(stratum, Map.of()).values().stream()
-                .reduce(ObservedArms.empty(), ObservedArms::merge);
+        return pooledByStratum.getOrDefault(stratum, ObservedArms.empty());
     }
 
     /** True when some cell has exposed units whose outcome has not arrived ({@link ObservedArms#pending()}). */
@@ -63,6 +94,6 @@ public final class StudyCells {
 
     /** Every cell added together. */
     public ObservedArms pooled() {
-        return cells.keySet().stream().map(this::pooled).reduce(ObservedArms.empty(), ObservedArms::merge);
+        return pooled;
     }
 }

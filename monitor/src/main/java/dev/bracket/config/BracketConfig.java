@@ -54,6 +54,7 @@ public record BracketConfig(
         Duration progressInterval,
         int maxEventBytes,
         Duration maxClockSkew,
+        DedupConfig dedup,
         int groupMembers,
         String group,
         String instance,
@@ -101,6 +102,7 @@ public record BracketConfig(
         BandConfig bands = new BandConfig(bandLevel, methods, VarianceBasis.SAMPLE, AnytimeBand.DEFAULT_PLANNED_COUNT);
         long maxBytes = Top.MAX_EVENT_BYTES.read(root);
         Duration skew = Top.MAX_CLOCK_SKEW.read(root);
+        DedupConfig dedup = new DedupConfig(Top.DEDUP_HORIZON.read(root), Top.DEDUP_MAX_IDS.read(root).intValue());
         Duration commit = Top.COMMIT_INTERVAL.read(root);
         Duration publish = Top.PUBLISH_INTERVAL.read(root);
         Duration progress = Top.PROGRESS_INTERVAL.read(root);
@@ -115,7 +117,7 @@ public record BracketConfig(
         Map<String, String> kafka = kafka(Top.KAFKA.read(root));
         String dataDir = Broker.DATA_DIR.read(broker);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commit, publish, progress,
-                (int) maxBytes, skew, (int) groupMembers, group, instance == null ? defaultInstance(group) : instance, kafka,
+                (int) maxBytes, skew, dedup, (int) groupMembers, group, instance == null ? defaultInstance(group) : instance, kafka,
                 dataDir == null ? defaultBrokerDir() : expandHome(dataDir), (int) port,
                 AlertConfigReader.alertsConfig(Top.ALERTS.read(root)));
     }
@@ -130,7 +132,7 @@ public record BracketConfig(
         Map<String, String> k = new LinkedHashMap<>(kafka);
         k.put(BOOTSTRAP_SERVERS, servers);
         return new BracketConfig(source, studies, inputs, topics, windows, grace, bands, commitInterval, publishInterval,
-                progressInterval, maxEventBytes, maxClockSkew, groupMembers, group, instance, k, brokerDataDir, brokerPort, alerts);
+                progressInterval, maxEventBytes, maxClockSkew, dedup, groupMembers, group, instance, k, brokerDataDir, brokerPort, alerts);
     }
 
     /** Confidence level of the published bands. */

@@ -4,6 +4,7 @@ import dev.bracket.stream.ingest.EventParser;
 import dev.bracket.stream.ingest.ParsedEvent;
 import dev.bracket.stream.ingest.PartitionState;
 import dev.bracket.stream.ingest.RejectReason;
+import dev.bracket.stream.ingest.SeenIds;
 import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.publish.MergedPartials;
 import dev.bracket.stream.publish.WindowReport;
@@ -57,6 +58,8 @@ public final class Replay {
     private final List<Rejected> rejected = new ArrayList<>();
     private final int keepRejected;
     private long accepted;
+    /** The event ids counted in the newest partition; null when deduplication is off. */
+    private SeenIds seen;
 
     /**
      * @param fields       the field names of the events (those of one configured input topic)
@@ -79,6 +82,8 @@ public final class Replay {
     public void newPartition(String name) {
         sources.add(new PartitionState(new SourcePartition(name, sources.size()), config.windows(),
                 config.grace().toMillis(), (s, w) -> { }));
+        // Each partition is deduplicated by id on its own, as the monitor does each input partition.
+        seen = config.dedup().enabled() ? new SeenIds(config.dedup()) : null;
     }
 
     /** Reads one input to its end as the continuation of the newest source partition. */
@@ -95,6 +100,9 @@ public final class Replay {
 
     private void accept(PartitionState state, String name, long lineNo, byte[] bytes) {
         ParsedEvent e = parser.parse(bytes, startTime);
+        if (seen != null) {
+            seen.check(e, state.streamTime());
+        }
         if (e.isUsable()) {
             state.add(e);
             accepted++;

@@ -1,10 +1,13 @@
 package dev.bracket.bands;
 
+import org.apache.commons.math3.analysis.solvers.BrentSolver;
 import org.apache.commons.math3.distribution.NormalDistribution;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.CsvSource;
 import org.junit.jupiter.api.Test;
+
+import java.util.SplittableRandom;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
@@ -71,5 +74,37 @@ class ImbensManskiTest {
         assertEquals(0, N01.cumulativeProbability(c + 2) - N01.cumulativeProbability(-c) - 0.95, 1e-12);
         assertTrue(c > N01.inverseCumulativeProbability(0.95) + 1e-3 && c < N01.inverseCumulativeProbability(0.975) - 1e-3,
                 "C = " + c + " must lie strictly between the one- and two-sided normal quantiles");
+    }
+
+    /** The critical value as computed before the grid: Brent's method on the paper's equation at every call. */
+    private static double bracketedRoot(double level, double x) {
+        double oneSided = N01.inverseCumulativeProbability(level);
+        double twoSided = N01.inverseCumulativeProbability((1 + level) / 2);
+        if (oneSided + x >= 9) {
+            return oneSided;
+        }
+        return new BrentSolver(1e-14, 1e-13).solve(200,
+                c -> N01.cumulativeProbability(c + x) - N01.cumulativeProbability(-c) - level, oneSided - 1e-9, twoSided + 1e-9);
+    }
+
+    @Test
+    @DisplayName("the grid-and-Newton critical value equals a root search at every call within 1e-12 (random levels and widths)")
+    void sameAsRootSearchAtEveryCall() {
+        SplittableRandom rng = new SplittableRandom(12);
+        double[] levels = {0.5, 0.8, 0.9, 0.95, 0.99, 0.999, 0.3 + 0.69 * rng.nextDouble()};
+        for (double level : levels) {
+            for (int i = 0; i < 2_000; i++) {
+                // Widths on every scale, grid points themselves, and the far end where C is the one-sided value.
+                double x = switch (i % 4) {
+                    case 0 -> rng.nextDouble() * 10;
+                    case 1 -> Math.exp(rng.nextDouble() * 12 - 10);
+                    case 2 -> rng.nextInt(300) / 32.0;
+                    default -> rng.nextDouble() * 0.1;
+                };
+                double expected = bracketedRoot(level, x);
+                double c = ImbensManski.criticalValue(level, x);
+                assertEquals(expected, c, 1e-12 * Math.max(1, Math.abs(expected)), "level " + level + ", x " + x);
+            }
+        }
     }
 }

@@ -25,8 +25,8 @@ import static org.assertj.core.api.Assertions.assertThat;
 import static org.awaitility.Awaitility.await;
 
 /**
- * An aggregation member that fails with an unexpected error (here its accepted-events counter
- * throws after the panes of a poll were added) records the failure, aborts its open
+ * An aggregation member that fails with an unexpected error (here a counter throws when the
+ * meters are first counted, after its first commit, while later polls' panes may be held) records the failure, aborts its open
  * transaction and commits nothing on its way out, not even when closing its consumer revokes
  * its partitions; a monitor started afterwards counts every event exactly once.
  */

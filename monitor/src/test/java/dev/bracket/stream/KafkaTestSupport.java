@@ -6,6 +6,7 @@ import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
+import org.apache.kafka.clients.producer.ProducerRecord;
 import org.apache.kafka.common.TopicPartition;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
@@ -14,6 +15,8 @@ import java.time.Duration;
 import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
+import java.util.concurrent.TimeUnit;
+import java.util.concurrent.atomic.AtomicReference;
 
 /** Clients for tests against a broker started by the test class. */
 final class KafkaTestSupport {
@@ -28,6 +31,37 @@ final class KafkaTestSupport {
                 ProducerConfig.ACKS_CONFIG, "all",
                 ProducerConfig.LINGER_MS_CONFIG, 10),
                 new ByteArraySerializer(), new ByteArraySerializer());
+    }
+
+    /**
+     * Sends {@code records} at about {@code perSecond} (so that faults injected meanwhile land
+     * mid-stream), then flushes; the first send error goes to {@code failure}.
+     */
+    static void producePaced(EmbeddedBroker broker, List<ProducerRecord<byte[], byte[]>> records, int perSecond,
+                             AtomicReference<Throwable> failure) {
+        try (KafkaProducer<byte[], byte[]> producer = producer(broker)) {
+            long start = System.nanoTime();
+            long nanosEach = 1_000_000_000L / perSecond;
+            int n = 0;
+            for (ProducerRecord<byte[], byte[]> r : records) {
+                producer.send(r, (md, ex) -> {
+                    if (ex != null) {
+                        failure.compareAndSet(null, ex);
+                    }
+                });
+                if (++n % 400 == 0) {
+                    long wait = start + n * nanosEach - System.nanoTime();
+                    if (wait > 0) {
+                        TimeUnit.NANOSECONDS.sleep(wait); // pacing the producer, not waiting for a condition
+                    }
+                }
+            }
+            producer.flush();
+        } catch (InterruptedException e) {
+            Thread.currentThread().interrupt();
+        } catch (RuntimeException e) {
+            failure.compareAndSet(null, e);
+        }
     }
 
     /** Every record of a topic now visible to a read_committed reader. */

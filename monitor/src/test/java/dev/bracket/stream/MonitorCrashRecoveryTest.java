@@ -9,7 +9,6 @@ import org.apache.kafka.clients.admin.Admin;
 import org.apache.kafka.clients.admin.AdminClientConfig;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
 import org.apache.kafka.clients.consumer.OffsetAndMetadata;
-import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerRecord;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
@@ -89,7 +88,15 @@ class MonitorCrashRecoveryTest {
         }
         AtomicInteger sent = new AtomicInteger();
         AtomicReference<Throwable> producerFailure = new AtomicReference<>();
-        Thread producing = new Thread(() -> produce(events, sent, producerFailure), "test-producer");
+        // About 6,000 per second, so that the kills land mid-stream.
+        List<ProducerRecord<byte[], byte[]>> records = events.stream()
+                .map(e -> new ProducerRecord<>("crash-events", e.key(), e.value())).toList();
+        Thread producing = new Thread(() -> {
+            KafkaTestSupport.producePaced(KAFKA.broker(), records, 6_000, producerFailure);
+            if (!Thread.currentThread().isInterrupted()) {
+                sent.set(records.size()); // all sent and flushed
+            }
+        }, "test-producer");
         Random rnd = new Random(5);
         List<Path> logs = new ArrayList<>();
         List<Long> committedAtKill = new ArrayList<>();
@@ -157,33 +164,6 @@ class MonitorCrashRecoveryTest {
             out.merge(e.study() + (e.treated() ? "/treated" : "/control"), 1L, Long::sum);
         }
         return out;
-    }
-
-    /** Sends the events at about 6,000 per second so that the kills land mid-stream. */
-    private static void produce(List<TestEvents.Event> events, AtomicInteger sent, AtomicReference<Throwable> failure) {
-        try (KafkaProducer<byte[], byte[]> producer = KafkaTestSupport.producer(KAFKA.broker())) {
-            long start = System.nanoTime();
-            for (TestEvents.Event e : events) {
-                producer.send(new ProducerRecord<>("crash-events", e.key(), e.value()), (md, ex) -> {
-                    if (ex != null) {
-                        failure.compareAndSet(null, ex);
-                    }
-                });
-                int n = sent.incrementAndGet();
-                if (n % 800 == 0) {
-                    long due = start + n * 166_667L; // 6,000 per second
-                    long wait = due - System.nanoTime();
-                    if (wait > 0) {
-                        TimeUnit.NANOSECONDS.sleep(wait); // pacing the producer, not waiting for a condition
-                    }
-                }
-            }
-            producer.flush();
-        } catch (InterruptedException e) {
-            Thread.currentThread().interrupt();
-        } catch (RuntimeException e) {
-            failure.compareAndSet(null, e);
-        }
     }
 
     private static Process startChild(Path config, List<Path> logs) throws IOException {

@@ -131,11 +131,11 @@ class MonitorFaultTest {
         long now = System.currentTimeMillis();
         out.add(new Hostile("time two days after its record timestamp", utf8("{\"study\":\"hz\"," + ok + ",\"time\":" + now + "}"),
                 now - 2 * 86_400_000L, "time-too-far-ahead"));
+        out.add(h("a key given twice", "{\"study\":\"hz\",\"unit\":1,\"treated\":false,\"outcome\":7,\"outcome\":0.25}", "bad-json"));
         // Hostile in form, usable in content: these count in study hz.
         out.add(h("negative zero outcome", "{\"study\":\"hz\",\"unit\":1,\"treated\":true,\"outcome\":-0.0}", ACCEPTED));
         out.add(h("unicode escapes in the study", "{\"study\":\"h\\u007a\"," + ok + "}", ACCEPTED));
         out.add(h("outcome with an exponent", "{\"study\":\"hz\",\"unit\":1,\"treated\":false,\"outcome\":5E-1}", ACCEPTED));
-        out.add(h("duplicate keys", "{\"study\":\"hz\",\"unit\":1,\"treated\":false,\"outcome\":7,\"outcome\":0.25}", ACCEPTED));
         out.add(h("byte order mark", "\uFEFF{\"study\":\"hz\"," + ok + "}", ACCEPTED));
         return out;
     }

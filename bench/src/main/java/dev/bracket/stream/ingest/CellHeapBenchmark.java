@@ -5,10 +5,9 @@ import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.bench.BenchEvents;
+import dev.bracket.bench.HeapInUse;
 
-import java.lang.management.ManagementFactory;
 import java.lang.ref.Reference;
-import java.lang.management.MemoryMXBean;
 import java.time.Duration;
 import java.util.List;
 import java.util.Locale;
@@ -44,7 +43,7 @@ public final class CellHeapBenchmark {
         SourcePartition source = new SourcePartition("events", 0);
         ParsedEvent e = new ParsedEvent();
 
-        long before = usedAfterGc();
+        long before = HeapInUse.afterGc();
         PartitionState state = new PartitionState(source, List.of(hourly), Duration.ofDays(100_000).toMillis(), (s, w) -> { });
         for (int p = 0; p < panes; p++) {
             for (String stratum : strata) {
@@ -62,7 +61,7 @@ public final class CellHeapBenchmark {
                 }
             }
         }
-        long withState = usedAfterGc();
+        long withState = HeapInUse.afterGc();
         report("aggregator (PartitionState)", withState - before, cells);
 
         // As decoded from the partials topic: every cell's statistics are objects of their own.
@@ -70,7 +69,7 @@ public final class CellHeapBenchmark {
         state.panes().forEach((key, arms) -> merged.pane(source, key, arms));
         Reference.reachabilityFence(state);
         state = null;
-        long withMerged = usedAfterGc();
+        long withMerged = HeapInUse.afterGc();
         report("updater (MergedPartials, one source)", withMerged - before, cells);
         Reference.reachabilityFence(merged);
     }
@@ -85,18 +84,5 @@ public final class CellHeapBenchmark {
 
     private static void report(String what, long bytes, int cells) {
         System.out.printf(Locale.ROOT, "%-40s %,d cells: %,d bytes, %.0f bytes per cell%n", what, cells, bytes, (double) bytes / cells);
-    }
-
-    private static long usedAfterGc() {
-        MemoryMXBean memory = ManagementFactory.getMemoryMXBean();
-        for (int i = 0; i < 4; i++) {
-            System.gc();
-            try {
-                Thread.sleep(100);
-            } catch (InterruptedException ex) {
-                Thread.currentThread().interrupt();
-            }
-        }
-        return memory.getHeapMemoryUsage().getUsed();
     }
 }

@@ -1,18 +1,24 @@
 package dev.bracket.report.render;
 
-import dev.bracket.report.PendingOutcomes;
-
+import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.io.SerializedString;
+import com.fasterxml.jackson.core.util.ByteArrayBuilder;
 import com.fasterxml.jackson.databind.ObjectMapper;
-import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import com.fasterxml.jackson.databind.util.TokenBuffer;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.report.BoundRow;
+import dev.bracket.report.PendingOutcomes;
 import dev.bracket.report.StudyReport;
 
+import java.io.IOException;
+import java.io.UncheckedIOException;
+import java.util.Map;
 import java.util.TreeMap;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The versioned JSON form of a {@link StudyReport}. Field names are a public contract:
@@ -25,6 +31,8 @@ public final class ReportJson {
     public static final String SCHEMA = "bracket.bounds/2";
 
     private static final ObjectMapper MAPPER = new ObjectMapper();
+    private static final Map<String, SerializedString> FIXED_TEXTS = new ConcurrentHashMap<>();
+    private static final int MAX_FIXED_TEXTS = 1024;
 
     private ReportJson() {
     }
@@ -35,33 +43,77 @@ public final class ReportJson {
 
     /** The whole report: schema, outcome range, pooled arms and one row per assumption set. */
     public static ObjectNode toJson(StudyReport report) {
-        ObjectNode root = MAPPER.createObjectNode();
-        root.put("schema", SCHEMA);
-        root.set("outcome", outcome(report.range()));
-        root.set("arms", arms(report));
-        ArrayNode bounds = root.putArray("bounds");
+        return tree(g -> {
+            g.writeStartObject();
+            g.writeStringField("schema", SCHEMA);
+            writeFields(g, report);
+            g.writeEndObject();
+        });
+    }
+
+    /**
+     * Writes the report's fields after the schema (outcome range, pooled arms, rows) into the
+     * object {@code g} is in: documents are written straight to bytes, without a tree.
+     */
+    public static void writeFields(JsonGenerator g, StudyReport report) throws IOException {
+        g.writeFieldName("outcome");
+        outcome(g, report.range());
+        g.writeFieldName("arms");
+        arms(g, report);
+        g.writeArrayFieldStart("bounds");
         boolean instrumentLevels = report.cells().hasInstrument();
-        report.rows().forEach(row -> bounds.add(row(row, instrumentLevels)));
-        return root;
+        for (BoundRow row : report.rows()) {
+            row(g, row, instrumentLevels);
+        }
+        g.writeEndArray();
     }
 
-    static ObjectNode outcome(OutcomeRange range) {
-        ObjectNode o = MAPPER.createObjectNode();
-        o.put("min", range.min());
-        o.put("max", range.max());
-        o.put("better", range.better().id());
-        o.put("kind", range.kind().id());
-        return o;
+    /** Something written by a generator. */
+    @FunctionalInterface
+    public interface Writing {
+        void to(JsonGenerator g) throws IOException;
     }
 
-    static ObjectNode arms(StudyReport report) {
-        ObjectNode o = MAPPER.createObjectNode();
-        o.set("treated", arm(report.pooled().treated()));
-        o.set("control", arm(report.pooled().control()));
-        number(o, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
-        o.put("exposuresReported", PendingOutcomes.exposuresReported(report.pooled()));
-        o.put("pendingNote", PendingOutcomes.note(report.pooled()));
-        return o;
+    /** What {@code writing} writes, as a tree (for callers that add to it). */
+    public static ObjectNode tree(Writing writing) {
+        try (TokenBuffer buffer = new TokenBuffer(MAPPER, false)) {
+            writing.to(buffer);
+            return MAPPER.readTree(buffer.asParser());
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot write a report into memory", e);
+        }
+    }
+
+    /** What {@code writing} writes, as UTF-8 bytes. */
+    public static byte[] bytes(Writing writing) {
+        ByteArrayBuilder out = new ByteArrayBuilder(8192);
+        try (JsonGenerator g = MAPPER.getFactory().createGenerator(out)) {
+            writing.to(g);
+        } catch (IOException e) {
+            throw new UncheckedIOException("cannot write a report into memory", e);
+        }
+        return out.toByteArray();
+    }
+
+    private static void outcome(JsonGenerator g, OutcomeRange range) throws IOException {
+        g.writeStartObject();
+        g.writeNumberField("min", range.min());
+        g.writeNumberField("max", range.max());
+        g.writeStringField("better", range.better().id());
+        g.writeStringField("kind", range.kind().id());
+        g.writeEndObject();
+    }
+
+    private static void arms(JsonGenerator g, StudyReport report) throws IOException {
+        g.writeStartObject();
+        g.writeFieldName("treated");
+        arm(g, report.pooled().treated());
+        g.writeFieldName("control");
+        arm(g, report.pooled().control());
+        number(g, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
+        g.writeBooleanField("exposuresReported", PendingOutcomes.exposuresReported(report.pooled()));
+        g.writeStringField("pendingNote", PendingOutcomes.note(report.pooled()));
+        g.writeEndObject();
     }
 
     /**
@@ -69,71 +121,116 @@ public final class ReportJson {
      * exist), exposed units, pending units and their share of the arm's units.
      */
     public static ObjectNode arm(ArmStatistics s) {
-        ObjectNode o = MAPPER.createObjectNode();
-        o.put("n", s.count());
-        number(o, "mean", s.isEmpty() ? Double.NaN : s.mean());
-        number(o, "sd", s.count() < 2 ? Double.NaN : s.sd());
-        o.put("exposed", s.exposed());
-        o.put("pending", s.pending());
-        number(o, "pendingShare", s.units() == 0 ? Double.NaN : (double) s.pending() / s.units());
-        o.put("excessOutcomes", s.excessOutcomes());
-        return o;
+        return tree(g -> arm(g, s));
+    }
+
+    private static void arm(JsonGenerator g, ArmStatistics s) throws IOException {
+        g.writeStartObject();
+        g.writeNumberField("n", s.count());
+        number(g, "mean", s.isEmpty() ? Double.NaN : s.mean());
+        number(g, "sd", s.count() < 2 ? Double.NaN : s.sd());
+        g.writeNumberField("exposed", s.exposed());
+        g.writeNumberField("pending", s.pending());
+        number(g, "pendingShare", s.units() == 0 ? Double.NaN : (double) s.pending() / s.units());
+        g.writeNumberField("excessOutcomes", s.excessOutcomes());
+        g.writeEndObject();
     }
 
     /**
      * One row: assumptions, meaning, what it assumes about pending outcomes, the instrument assumption (null when the data have no
      * instrument levels), status, interval, width, sign, per-stratum intervals and any confidence bands.
      */
-    public static ObjectNode row(BoundRow row, boolean instrumentLevels) {
-        ObjectNode o = MAPPER.createObjectNode();
-        ArrayNode ids = o.putArray("assumptions");
-        row.assumptions().ids().forEach(ids::add);
-        o.put("meaning", row.assumptions().meaning());
-        o.put("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
-        if (instrumentLevels) {
-            o.put("instrument", row.assumptions().instrument().id());
-        } else {
-            o.putNull("instrument");
+    private static void row(JsonGenerator g, BoundRow row, boolean instrumentLevels) throws IOException {
+        g.writeStartObject();
+        g.writeArrayFieldStart("assumptions");
+        for (String id : row.assumptions().ids()) {
+            g.writeString(id);
         }
-        interval(o, row.interval());
-        o.put("sign", row.sign());
+        g.writeEndArray();
+        fixedText(g, "meaning", row.assumptions().meaning());
+        g.writeStringField("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
+        if (instrumentLevels) {
+            g.writeStringField("instrument", row.assumptions().instrument().id());
+        } else {
+            g.writeNullField("instrument");
+        }
+        interval(g, row.interval());
+        g.writeStringField("sign", row.sign());
         if (!row.perStratum().isEmpty()) {
-            ArrayNode strata = o.putArray("strata");
-            new TreeMap<>(row.perStratum()).forEach((name, iv) -> {
-                ObjectNode s = strata.addObject();
-                s.put("stratum", name);
-                interval(s, iv);
-            });
+            g.writeArrayFieldStart("strata");
+            for (Map.Entry<String, IdentifiedInterval> e : new TreeMap<>(row.perStratum()).entrySet()) {
+                g.writeStartObject();
+                g.writeStringField("stratum", e.getKey());
+                interval(g, e.getValue());
+                g.writeEndObject();
+            }
+            g.writeEndArray();
         }
         if (!row.shownBands().isEmpty()) {
-            ArrayNode bands = o.putArray("bands");
-            row.shownBands().forEach(b -> bands.add(band(b)));
+            g.writeArrayFieldStart("bands");
+            for (ConfidenceBand b : row.shownBands()) {
+                band(g, b);
+            }
+            g.writeEndArray();
         }
-        return o;
+        g.writeEndObject();
     }
 
     /** A confidence band: method, level, status, ends, width, whether it excludes zero, sign, and what it rests on. */
-    static ObjectNode band(ConfidenceBand band) {
-        ObjectNode o = MAPPER.createObjectNode();
-        o.put("method", band.method().id());
-        o.put("level", band.level());
-        o.put("status", band.status().id());
-        number(o, "lower", band.lower());
-        number(o, "upper", band.upper());
-        number(o, "width", band.width());
-        o.put("excludesZero", band.excludesZero());
-        o.put("sign", BoundRow.signWord(band.sign()));
-        o.put("basis", band.basis());
-        return o;
+    private static void band(JsonGenerator g, ConfidenceBand band) throws IOException {
+        g.writeStartObject();
+        g.writeStringField("method", band.method().id());
+        g.writeNumberField("level", band.level());
+        g.writeStringField("status", band.status().id());
+        number(g, "lower", band.lower());
+        number(g, "upper", band.upper());
+        number(g, "width", band.width());
+        g.writeBooleanField("excludesZero", band.excludesZero());
+        g.writeStringField("sign", BoundRow.signWord(band.sign()));
+        fixedText(g, "basis", band.basis());
+        g.writeEndObject();
+    }
+
+    private static void interval(JsonGenerator g, IdentifiedInterval iv) throws IOException {
+        g.writeStringField("status", iv.status().id());
+        number(g, "lower", iv.lower());
+        number(g, "upper", iv.upper());
+        number(g, "width", iv.width());
+        g.writeBooleanField("excludesZero", iv.excludesZero());
+    }
+
+    /**
+     * A text from a small fixed set (assumption meanings, band descriptions): escaped and encoded
+     * once, then copied; long texts written afresh were a good part of a document's cost.
+     */
+    private static void fixedText(JsonGenerator g, String field, String value) throws IOException {
+        SerializedString encoded = FIXED_TEXTS.get(value);
+        if (encoded == null) {
+            if (FIXED_TEXTS.size() >= MAX_FIXED_TEXTS) {
+                FIXED_TEXTS.clear();
+            }
+            encoded = FIXED_TEXTS.computeIfAbsent(value, SerializedString::new);
+        }
+        g.writeFieldName(field);
+        g.writeString(encoded);
+    }
+
+    /** Writes a number, or null where it does not exist. */
+    public static void number(JsonGenerator g, String field, double value) throws IOException {
+        if (Double.isFinite(value)) {
+            g.writeNumberField(field, value);
+        } else {
+            g.writeNullField(field);
+        }
     }
 
     /** Writes an interval's status, ends, width and whether it excludes zero into {@code o}. */
     public static void interval(ObjectNode o, IdentifiedInterval iv) {
-        o.put("status", iv.status().id());
-        number(o, "lower", iv.lower());
-        number(o, "upper", iv.upper());
-        number(o, "width", iv.width());
-        o.put("excludesZero", iv.excludesZero());
+        o.setAll(tree(g -> {
+            g.writeStartObject();
+            interval(g, iv);
+            g.writeEndObject();
+        }));
     }
 
     /** Writes a number, or null where it does not exist. */

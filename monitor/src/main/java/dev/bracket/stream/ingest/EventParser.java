@@ -30,7 +30,8 @@ import java.util.Map;
  * {@code time} epoch milliseconds or an ISO-8601 instant with offset, in years 1 to 9999 and at
  * most {@code max-clock-skew} ahead of the record timestamp and the clock (absent: the record
  * timestamp); {@code stratum}, {@code instrument} strings or numbers (absent or null: none);
- * {@code unit} and {@code id} strings or numbers. One parser per thread.
+ * {@code unit} and {@code id} strings or numbers. A key given twice in one object (at any depth)
+ * rejects the event as {@code bad-json}, the detail naming the key. One parser per thread.
  *
  * <p>Exposure events: {@code "kind": "exposure"} says a unit entered the study in an arm
  * (study, unit, treated, time; no outcome, any outcome field is ignored). {@code "kind": "outcome"}
@@ -51,7 +52,9 @@ public final class EventParser {
     public static final String EXPOSED_FIELD = "exposed";
 
     // FastDoubleParser rounds exactly like Double.parseDouble, only faster.
-    private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER).build();
+    // Duplicate detection: a key given twice (e.g. two outcomes) is an error, not "the last one wins".
+    private static final JsonFactory JSON = JsonFactory.builder().enable(StreamReadFeature.USE_FAST_DOUBLE_PARSER)
+            .enable(StreamReadFeature.STRICT_DUPLICATE_DETECTION).build();
 
     private final FieldMapping fields;
     private final StudyConfig[] studies;
@@ -255,6 +258,7 @@ public final class EventParser {
                     skipWrong(p, e, fields.id(), "a string or whole number", t);
                     continue;
                 }
+                e.id = p.getText(); // not through the text cache: ids rarely repeat
             } else {
                 p.skipChildren();
             }

@@ -11,13 +11,16 @@ import java.nio.charset.StandardCharsets;
  * bytes, a value of the wrong type, a malformed or very long number, content after the object.
  * A declined event is read again by Jackson, which then finds the same values or says exactly
  * what is wrong. Fields mean what they mean on the Jackson path of {@link EventParser} (the same
- * order of field names, null skipped, a repeated field's last value kept); the test compares the
- * two paths on every input it makes.
+ * order of field names, null skipped); an object with a repeated key, or with more than
+ * {@value #MAX_FIELDS} keys, is declined, so that Jackson's duplicate detection names the key. The
+ * test compares the two paths on every input it makes.
  */
 final class FlatEventScanner {
 
     /** Numbers longer than this are left to Jackson (which also enforces its own length limit). */
     private static final int MAX_NUMBER_LENGTH = 64;
+    /** Objects with more keys are left to Jackson (keys are compared pairwise for repeats). */
+    static final int MAX_FIELDS = 16;
     /** Exact powers of ten as doubles (10^22 is the largest one a double holds exactly). */
     private static final double[] POWERS_OF_TEN = new double[23];
     private static final long EXACT_MANTISSA = 1L << 53;
@@ -54,6 +57,9 @@ final class FlatEventScanner {
     private final byte[][] names;
     private final TextCache texts;
     private final char[] chars = new char[64];
+    // Where each key of the object read so far starts and ends, to find a repeated key.
+    private final int[] keyStarts = new int[MAX_FIELDS];
+    private final int[] keyEnds = new int[MAX_FIELDS];
 
     // What scan() found, besides the values it put into the event.
     String study;
@@ -96,15 +102,18 @@ final class FlatEventScanner {
         if (i < n && b[i] == '}') {
             return skipSpace(b, i + 1) == n;
         }
+        int keys = 0;
         while (true) {
             if (i >= n || b[i] != '"') {
                 return false;
             }
             int nameStart = i + 1;
             int nameEnd = stringEnd(b, nameStart);
-            if (nameEnd < 0) {
+            if (nameEnd < 0 || keys == MAX_FIELDS || repeated(b, nameStart, nameEnd, keys)) {
                 return false;
             }
+            keyStarts[keys] = nameStart;
+            keyEnds[keys++] = nameEnd;
             i = skipSpace(b, nameEnd + 1);
             if (i >= n || b[i] != ':') {
                 return false;
@@ -193,7 +202,12 @@ final class FlatEventScanner {
                 }
             }
             case ID -> {
-                return kind == STRING || kind == INT;
+                if (kind != STRING && kind != INT) {
+                    return false;
+                }
+                // Not through the text cache: ids rarely repeat. Plain ASCII here, so one byte is one char.
+                e.id = kind == STRING ? new String(b, valueStart + 1, valueEnd - valueStart - 2, StandardCharsets.ISO_8859_1)
+                        : new String(b, valueStart, valueEnd - valueStart, StandardCharsets.ISO_8859_1);
             }
             case KIND, EXPOSED -> {
                 return false;
@@ -203,6 +217,17 @@ final class FlatEventScanner {
             }
         }
         return true;
+    }
+
+    /** Whether one of the first {@code keys} keys has the same bytes as {@code b[start, end)} (no escapes here: same bytes, same key). */
+    private boolean repeated(byte[] b, int start, int end, int keys) {
+        int len = end - start;
+        for (int k = 0; k < keys; k++) {
+            if (keyEnds[k] - keyStarts[k] == len && java.util.Arrays.equals(b, keyStarts[k], keyEnds[k], b, start, end)) {
+                return true;
+            }
+        }
+        return false;
     }
 
     /** The first mapped field whose name has these bytes, or -1. */

@@ -17,6 +17,7 @@ public final class ParsedEvent {
     long exposedTime;
     String stratum;
     String instrument;
+    String id;
     RejectReason rejection;
     String detail;
 
@@ -72,6 +73,11 @@ public final class ParsedEvent {
         return instrument;
     }
 
+    /** The event's own identifier as text (a number as written), or null when it has none. */
+    public String id() {
+        return id;
+    }
+
     /** Null for a usable event. */
     public RejectReason rejection() {
         return rejection;
@@ -96,6 +102,7 @@ public final class ParsedEvent {
         exposedTime = Long.MIN_VALUE;
         stratum = null;
         instrument = null;
+        id = null;
         rejection = null;
         detail = null;
     }

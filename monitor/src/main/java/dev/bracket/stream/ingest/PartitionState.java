@@ -188,6 +188,11 @@ public final class PartitionState {
         return out;
     }
 
+    /** The largest event time seen (Long.MIN_VALUE: none yet). */
+    public long streamTime() {
+        return streamTime;
+    }
+
     /** Adds a batch of a study's events to its traffic counts (once per poll, not per event). */
     public void countTraffic(String study, long accepted, long rejected, long outOfRange) {
         traffic.merge(study, StudyTraffic.NONE.plus(accepted, rejected, outOfRange),

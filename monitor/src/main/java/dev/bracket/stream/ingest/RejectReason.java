@@ -18,6 +18,8 @@ public enum RejectReason {
     TIME_UNREPRESENTABLE("time-unrepresentable"),
     /** A time later than {@code max-clock-skew} ahead of the record timestamp or the clock. */
     TIME_TOO_FAR_AHEAD("time-too-far-ahead"),
+    /** An event whose (study, id) was already counted within {@code dedup-horizon}: a producer's retry. */
+    DUPLICATE("duplicate"),
     /** Reading the event failed in a way no other reason describes; the detail names the failure. */
     UNREADABLE("unreadable");
 

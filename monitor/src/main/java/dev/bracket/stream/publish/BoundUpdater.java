@@ -5,14 +5,12 @@ import dev.bracket.stream.ingest.StudyEventCounts;
 import dev.bracket.stream.transaction.PartialsCodec;
 import dev.bracket.stream.transaction.PlacementCheck;
 import dev.bracket.stream.transaction.StreamMetrics;
-import com.fasterxml.jackson.core.JsonProcessingException;
 import dev.bracket.bounds.StratifiedBounds;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.store.LatestReports;
 import dev.bracket.report.store.PublishedReport;
-import dev.bracket.report.render.ReportJson;
 import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import dev.bracket.report.StudyReport;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
@@ -51,8 +49,10 @@ import java.util.function.Consumer;
  * at that moment; only then are its studies handed to {@link StudyOwnership#taken} (alert state)
  * and published, and the first report waits one publish interval, so a hand-over never puts two
  * documents of a study within one interval. From then on it keeps the latest statistics of every
- * source partition per pane and recomputes a study's reports when its numbers changed, at most
- * once per {@code publish-interval} per study. Each report goes to the bounds topic as a
+ * source partition per pane and recomputes a study's reports when its numbers changed, or all of
+ * a partition's studies when a time window moves on to its next pane ({@link WindowSpans}), at
+ * most once per {@code publish-interval} per study; quiet studies are not republished (the
+ * bounds topic is compacted, so their latest document stays readable). Each report goes to the bounds topic as a
  * {@link ReportDocument} keyed {@code study/window} (with the configured confidence bands) and
  * into {@link LatestReports} for the HTTP API, then to the listener (alerts). Run {@link #run} on
  * its own thread.
@@ -74,7 +74,6 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     /** study + stratum already warned about for having units in one arm only. */
     private final Set<String> oneArmedWarned = new HashSet<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
-    private final boolean windowed;
     private final Consumer<PublishedReport> listener;
     private final StudyOwnership ownership;
     private final StudyEventCounts traffic;
@@ -86,12 +85,15 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
     /** One partials partition this instance owns: its studies' merged numbers, and whether they are complete yet. */
     private static final class Owned {
         final MergedPartials merged = new MergedPartials();
+        /** Window spans at this partition's watermark: a pane closing changes all its studies. */
+        final WindowSpans spans;
         final TrafficTap sink;
         final Set<String> studies;
         final long catchUpTo;
         boolean live;
 
-        Owned(TopicPartition tp, int partitions, Set<String> studies, long catchUpTo, StudyEventCounts traffic) {
+        Owned(TopicPartition tp, int partitions, Set<String> studies, long catchUpTo, StudyEventCounts traffic, List<WindowSpec> windows) {
+            this.spans = new WindowSpans(windows);
             this.sink = new TrafficTap(new PlacementCheck(tp.topic(), tp.partition(), partitions, merged), studies, traffic);
             this.studies = studies;
             this.catchUpTo = catchUpTo;
@@ -119,7 +121,6 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         this.latest = latest;
         this.partialsPartitions = partialsPartitions;
         this.clock = clock;
-        this.windowed = config.windows().stream().anyMatch(w -> w.kind() != WindowSpec.Kind.CUMULATIVE);
     }
 
     @Override
@@ -152,9 +153,10 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                 }
                 for (Owned o : owned.values()) {
                     if (o.live) {
+                        // Only the studies whose numbers changed, plus all of the partition's when a pane closed (time alone changed them).
                         MergedPartials.Changes changes = o.merged.takeChanges();
                         pending.addAll(changes.studies());
-                        if (windowed && changes.watermarkMoved()) {
+                        if (changes.watermarkMoved() && o.spans.moved(o.merged.watermark())) {
                             pending.addAll(o.studies);
                         }
                     }
@@ -203,6 +205,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                     pending.add(study);
                 }
                 o.merged.takeChanges();
+                o.spans.moved(o.merged.watermark()); // the spans of the restored watermark go out with this first report
                 LOG.info("updating studies {} (partials partition {})", o.studies, e.getKey());
             }
         }
@@ -228,17 +231,13 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
         for (WindowReport report : reports) {
             String key = study.id() + "/" + report.window().name();
             long revision = revisions.merge(key, 1L, Long::sum);
-            try {
-                byte[] doc = ReportJson.mapper().writeValueAsBytes(ReportDocument.toJson(report, revision, now));
-                producer.send(new ProducerRecord<>(config.topics().bounds(), null, now.toEpochMilli(),
-                        key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
-                    if (e != null) {
-                        LOG.warn("publishing {} failed: {}", key, e.toString());
-                    }
-                });
-            } catch (JsonProcessingException e) {
-                throw new IllegalStateException("cannot encode the report of " + key, e);
-            }
+            byte[] doc = ReportDocument.bytes(report, revision, now);
+            producer.send(new ProducerRecord<>(config.topics().bounds(), null, now.toEpochMilli(),
+                    key.getBytes(StandardCharsets.UTF_8), doc), (md, e) -> {
+                if (e != null) {
+                    LOG.warn("publishing {} failed: {}", key, e.toString());
+                }
+            });
         }
         for (WindowReport report : reports) {
             WindowSpec window = report.window();
@@ -289,7 +288,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
                 config.studies().stream().map(StudyConfig::id)
                         .filter(id -> PartialsCodec.partitionFor(id, partialsPartitions) == tp.partition())
                         .forEach(studies::add);
-                owned.put(tp.partition(), new Owned(tp, partialsPartitions, Set.copyOf(studies), ends.getOrDefault(tp, 0L), traffic));
+                owned.put(tp.partition(), new Owned(tp, partialsPartitions, Set.copyOf(studies), ends.getOrDefault(tp, 0L), traffic, config.windows()));
             }
         }
 

@@ -97,13 +97,13 @@ public final class MergedPartials implements PartialsCodec.Sink {
 
     /** The study's panes of one window whose pane start passes {@code panes}, summed over sources. */
     public StudyCells cells(String study, String window, LongPredicate panes) {
-        StudyCells out = StudyCells.empty();
+        StudyCells.Builder out = new StudyCells.Builder();
         for (Map.Entry<PaneKey, PaneSources> e : byStudy.getOrDefault(study, Map.of()).entrySet()) {
             PaneKey k = e.getKey();
             if (k.window().equals(window) && panes.test(k.paneStart())) {
-                out = out.with(k.stratum(), k.level(), e.getValue().sum());
+                out.add(k.stratum(), k.level(), e.getValue().sum());
             }
         }
-        return out;
+        return out.build();
     }
 }

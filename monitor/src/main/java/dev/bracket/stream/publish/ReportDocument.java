@@ -1,11 +1,14 @@
 package dev.bracket.stream.publish;
 
 import dev.bracket.report.Cautions;
+import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.render.ReportJson;
 
+import java.io.IOException;
 import java.time.Instant;
+import java.util.Locale;
 
 /**
  * The JSON document published to the bounds topic (and printed by {@code replay --json}) for
@@ -27,38 +30,47 @@ public final class ReportDocument {
      * @param computedAt when the numbers were computed; null leaves the field out (replay)
      */
     public static ObjectNode toJson(WindowReport r, long revision, Instant computedAt) {
-        ObjectNode o = ReportJson.mapper().createObjectNode();
-        ObjectNode body = ReportJson.toJson(r.report());
-        o.set("schema", body.remove("schema"));
-        o.put("study", r.study().id());
-        o.put("window", r.window().name());
-        o.put("windowKind", r.window().kind().name().toLowerCase(java.util.Locale.ROOT));
+        return ReportJson.tree(g -> write(g, r, revision, computedAt));
+    }
+
+    /** The same document as UTF-8 bytes, written without building a tree (what the bound updater publishes). */
+    public static byte[] bytes(WindowReport r, long revision, Instant computedAt) {
+        return ReportJson.bytes(g -> write(g, r, revision, computedAt));
+    }
+
+    private static void write(JsonGenerator g, WindowReport r, long revision, Instant computedAt) throws IOException {
+        g.writeStartObject();
+        g.writeStringField("schema", ReportJson.SCHEMA);
+        g.writeStringField("study", r.study().id());
+        g.writeStringField("window", r.window().name());
+        g.writeStringField("windowKind", r.window().kind().name().toLowerCase(Locale.ROOT));
         if (r.window().kind() == WindowSpec.Kind.CUMULATIVE) {
-            o.putNull("windowStart");
-            o.putNull("windowEnd");
+            g.writeNullField("windowStart");
+            g.writeNullField("windowEnd");
         } else {
-            o.put("windowStart", Instant.ofEpochMilli(r.start()).toString());
-            o.put("windowEnd", Instant.ofEpochMilli(r.end()).toString());
+            g.writeStringField("windowStart", Instant.ofEpochMilli(r.start()).toString());
+            g.writeStringField("windowEnd", Instant.ofEpochMilli(r.end()).toString());
         }
-        o.put("lateEvents", r.lateEvents());
+        g.writeNumberField("lateEvents", r.lateEvents());
         if (r.lost() == null) {
-            o.putNull("lostToFollowUp");
+            g.writeNullField("lostToFollowUp");
         } else {
-            ObjectNode lost = o.putObject("lostToFollowUp");
-            lost.put("horizon", r.lost().horizon().toString());
-            lost.put("treated", r.lost().treated());
-            lost.put("control", r.lost().control());
+            g.writeObjectFieldStart("lostToFollowUp");
+            g.writeStringField("horizon", r.lost().horizon().toString());
+            g.writeNumberField("treated", r.lost().treated());
+            g.writeNumberField("control", r.lost().control());
             long treatedUnits = r.report().pooled().treated().units();
             long controlUnits = r.report().pooled().control().units();
-            ReportJson.number(lost, "treatedShare", treatedUnits == 0 ? Double.NaN : (double) r.lost().treated() / treatedUnits);
-            ReportJson.number(lost, "controlShare", controlUnits == 0 ? Double.NaN : (double) r.lost().control() / controlUnits);
+            ReportJson.number(g, "treatedShare", treatedUnits == 0 ? Double.NaN : (double) r.lost().treated() / treatedUnits);
+            ReportJson.number(g, "controlShare", controlUnits == 0 ? Double.NaN : (double) r.lost().control() / controlUnits);
+            g.writeEndObject();
         }
-        o.put("revision", revision);
+        g.writeNumberField("revision", revision);
         if (computedAt != null) {
-            o.put("computedAt", computedAt.toString());
+            g.writeStringField("computedAt", computedAt.toString());
         }
-        o.setAll(body);
-        o.put("caution", CAUTION);
-        return o;
+        ReportJson.writeFields(g, r.report());
+        g.writeStringField("caution", CAUTION);
+        g.writeEndObject();
     }
 }

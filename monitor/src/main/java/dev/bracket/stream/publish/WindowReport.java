@@ -24,8 +24,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
     public static WindowReport current(StudyConfig study, WindowSpec window, MergedPartials partials, BandConfig bands) {
         long end = Long.MAX_VALUE;
         if (window.kind() != WindowSpec.Kind.CUMULATIVE) {
-            long watermark = partials.watermark();
-            end = watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
+            end = end(window, partials.watermark());
         }
         return ending(study, window, end, partials, bands);
     }
@@ -43,5 +42,10 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
                 study.range(), study.assumptions(), bands);
         LostToFollowUp lost = study.followUp() != null && cumulative ? LostToFollowUp.at(study.id(), study.followUp(), partials) : null;
         return new WindowReport(study, window, from, to, report, partials.late(study.id(), window.name()), lost);
+    }
+
+    /** End (exclusive) of a time window's span at {@code watermark}: the end of the watermark's pane; 0 before any event. */
+    static long end(WindowSpec window, long watermark) {
+        return watermark == Long.MIN_VALUE ? 0 : window.paneStart(watermark) + window.paneMillis();
     }
 }

@@ -1,5 +1,7 @@
 package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.SeenIds;
+import com.fasterxml.jackson.core.JsonGenerator;
 import dev.bracket.stream.ingest.LateKey;
 import dev.bracket.stream.ingest.PaneKey;
 import dev.bracket.stream.ingest.SourcePartition;
@@ -12,7 +14,9 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.ObservedArms;
 
+import java.io.ByteArrayOutputStream;
 import java.io.IOException;
+import java.nio.charset.StandardCharsets;
 import java.util.HashMap;
 import java.util.Map;
 
@@ -28,7 +32,14 @@ import java.util.Map;
  * value {"streamTime": epochMillis|null, "late": [{"study", "window", "n"}],
  *        "traffic": [{"study", "accepted", "rejected", "outOfRange"}], "unattributed": n}
  *                                             (traffic and unattributed absent in older records)
+ * key   ["seen", topic, partition, study, id]                  (added in format 2: deduplication by id)
+ * value {"t": eventTimeMillis}
  * </pre>
+ *
+ * A "seen" record holds one event id the source partition has counted; {@code null} forgets it.
+ * It is placed with its study's panes; the aggregators' restore reads every partials partition,
+ * so it finds them there. Readers that do not restore ids (the bound updater) skip them through
+ * the sink's default method; format 1 readers log them as unknown and go on.
  *
  * Doubles are written in Jackson's shortest round-trip form, so decoding gives back the same bits.
  *
@@ -46,6 +57,10 @@ public final class PartialsCodec {
         void pane(SourcePartition source, PaneKey key, ObservedArms arms);
 
         void progress(SourcePartition source, SourceProgress progress);
+
+        /** An event id the source partition counted at event time {@code time}; null: forgotten. */
+        default void seen(SourcePartition source, SeenIds.Key key, Long time) {
+        }
     }
 
     private PartialsCodec() {
@@ -68,6 +83,28 @@ public final class PartialsCodec {
 
     public static byte[] progressKey(SourcePartition s) {
         return bytes(MAPPER.createArrayNode().add("progress").add(s.topic()).add(s.partition()));
+    }
+
+    /** Written with the streaming generator, not a tree: one of these goes with every event that has an id. */
+    public static byte[] seenKey(SourcePartition s, SeenIds.Key k) {
+        ByteArrayOutputStream out = new ByteArrayOutputStream(48 + k.id().length());
+        try (JsonGenerator g = MAPPER.getFactory().createGenerator(out)) {
+            g.writeStartArray();
+            g.writeString("seen");
+            g.writeString(s.topic());
+            g.writeNumber(s.partition());
+            g.writeString(k.study());
+            g.writeString(k.id());
+            g.writeEndArray();
+        } catch (IOException e) {
+            throw new IllegalStateException("cannot encode the key of id " + k, e);
+        }
+        return out.toByteArray();
+    }
+
+    /** Null (a tombstone) for a forgotten id. */
+    public static byte[] seenValue(Long time) {
+        return time == null ? null : ("{\"t\":" + time + "}").getBytes(StandardCharsets.US_ASCII);
     }
 
     public static byte[] paneValue(ObservedArms arms) {
@@ -143,6 +180,8 @@ public final class PartialsCodec {
                     sink.progress(source, new SourceProgress(t == null || t.isNull() ? Long.MIN_VALUE : t.asLong(), late, traffic,
                             v.path("unattributed").asLong(0)));
                 }
+                case "seen" -> sink.seen(source, new SeenIds.Key(k.get(3).asText(), k.get(4).asText()),
+                        value == null ? null : MAPPER.readTree(value).get("t").asLong());
                 default -> throw new IllegalArgumentException("unknown partials record kind '" + k.get(0).asText() + "'");
             }
         } catch (IOException | RuntimeException e) {

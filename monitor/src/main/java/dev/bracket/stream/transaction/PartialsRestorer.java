@@ -1,5 +1,6 @@
 package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.SeenIds;
 import dev.bracket.stream.ingest.PaneKey;
 import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.ingest.SourceProgress;
@@ -19,6 +20,7 @@ import java.time.Duration;
 import java.util.Collection;
 import java.util.HashMap;
 import java.util.HashSet;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
@@ -42,8 +44,8 @@ final class PartialsRestorer implements AutoCloseable {
     private static final Logger LOG = LoggerFactory.getLogger(PartialsRestorer.class);
     private static final Duration LIMIT = Duration.ofMinutes(5);
 
-    /** One source partition's restored state. */
-    record Restored(Map<PaneKey, ObservedArms> panes, SourceProgress progress) {
+    /** One source partition's restored state; {@code seen} in the order the ids were counted. */
+    record Restored(Map<PaneKey, ObservedArms> panes, SourceProgress progress, Map<SeenIds.Key, Long> seen) {
     }
 
     private final String topic;
@@ -61,7 +63,11 @@ final class PartialsRestorer implements AutoCloseable {
     Map<SourcePartition, Restored> restore(Collection<SourcePartition> sources) {
         Map<SourcePartition, Map<PaneKey, ObservedArms>> panes = new HashMap<>();
         Map<SourcePartition, SourceProgress> progress = new HashMap<>();
-        sources.forEach(s -> panes.put(s, new HashMap<>()));
+        Map<SourcePartition, Map<SeenIds.Key, Long>> seen = new HashMap<>();
+        sources.forEach(s -> {
+            panes.put(s, new HashMap<>());
+            seen.put(s, new LinkedHashMap<>());
+        });
         // A source's panes are spread over the partitions of their studies: read them all.
         Set<TopicPartition> tps = new HashSet<>();
         Map<Integer, PartialsCodec.Sink> checks = new HashMap<>();
@@ -82,6 +88,17 @@ final class PartialsRestorer implements AutoCloseable {
             public void progress(SourcePartition source, SourceProgress p) {
                 if (panes.containsKey(source)) {
                     progress.put(source, p);
+                }
+            }
+
+            @Override
+            public void seen(SourcePartition source, SeenIds.Key key, Long time) {
+                Map<SeenIds.Key, Long> m = seen.get(source);
+                if (m != null) {
+                    m.remove(key); // counted again: it moves to the end, as it did when it was written
+                    if (time != null) {
+                        m.put(key, time);
+                    }
                 }
             }
         };
@@ -110,7 +127,7 @@ final class PartialsRestorer implements AutoCloseable {
             consumer.assign(List.of());
         }
         Map<SourcePartition, Restored> out = new HashMap<>();
-        panes.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE))));
+        panes.forEach((s, c) -> out.put(s, new Restored(c, progress.getOrDefault(s, SourceProgress.NONE), seen.get(s))));
         return out;
     }
 

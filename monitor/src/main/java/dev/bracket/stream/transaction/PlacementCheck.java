@@ -2,13 +2,14 @@ package dev.bracket.stream.transaction;
 
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.stream.ingest.PaneKey;
+import dev.bracket.stream.ingest.SeenIds;
 import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.stream.ingest.SourceProgress;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * Passes on the records read from one partials partition, except panes that do not belong there
+ * Passes on the records read from one partials partition, except panes and seen event ids that do not belong there
  * ({@link PartialsCodec#partitionFor(String, int)}): a partials topic written by a version that
  * placed records by source partition, or whose partition count was changed since. Such panes
  * would be counted by the wrong owner, or twice, so they are dropped with a warning naming the fix.
@@ -45,5 +46,13 @@ public final class PlacementCheck implements PartialsCodec.Sink {
     @Override
     public void progress(SourcePartition source, SourceProgress progress) {
         next.progress(source, progress);
+    }
+
+    /** Seen ids sit with their study's panes; a misplaced one is ignored like a misplaced pane (its id may count again). */
+    @Override
+    public void seen(SourcePartition source, SeenIds.Key key, Long time) {
+        if (PartialsCodec.partitionFor(key.study(), partitions) == partition) {
+            next.seen(source, key, time);
+        }
     }
 }

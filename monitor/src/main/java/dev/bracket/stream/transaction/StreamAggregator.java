@@ -1,5 +1,6 @@
 package dev.bracket.stream.transaction;
 
+import dev.bracket.stream.ingest.SeenIds;
 import dev.bracket.stream.ingest.EventParser;
 import dev.bracket.stream.ingest.PaneKey;
 import dev.bracket.stream.ingest.ParsedEvent;
@@ -9,7 +10,6 @@ import dev.bracket.stream.ingest.SourcePartition;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import dev.bracket.retry.Backoff;
-import io.micrometer.core.instrument.Counter;
 import io.micrometer.core.instrument.binder.kafka.KafkaClientMetrics;
 import org.apache.kafka.clients.consumer.ConsumerRebalanceListener;
 import org.apache.kafka.clients.consumer.ConsumerRecord;
@@ -43,7 +43,11 @@ import java.util.concurrent.ThreadLocalRandom;
  * cumulative statistics to the partials topic and commits the input offsets in the same Kafka
  * transaction ({@code sendOffsetsToTransaction} with the consumer's group metadata, so a member
  * that lost its partitions is fenced). Rejected events go to the rejected topic inside the same
- * transactions.
+ * transactions. The meters' event counts (and so the progress line) are kept per transaction
+ * ({@link CommittedCounts}) and added only once it commits; the per-study counts the alert rules
+ * judge travel in each partition's progress record, so they are committed or dropped with the
+ * transaction too. Event ids counted ({@link SeenIds},
+ * for rejecting an at-least-once producer's retries) are written in the same transactions.
  *
  * <p>Why nothing is lost or counted twice: the partials and the offsets become visible together
  * or not at all. On assignment a partition's panes are rebuilt from the committed partials and
@@ -64,11 +68,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private volatile int owned;
     private final Map<String, EventParser> parsers = new HashMap<>();
     private final RejectedCopies rejectedCopies;
+    /** The open transaction's meter counts: added to the meters when it commits, dropped when it aborts. */
+    private final CommittedCounts counts;
     /** Per study (in configuration order, as the parsers number them): accepted, rejected, out of range; per partition of a poll. */
     private final long[][] studyCounts;
     /** Rejected records without a readable study, per partition of a poll. */
     private long unattributed;
     private final Map<TopicPartition, PartitionState> states = new HashMap<>();
+    /** Per assigned partition, the event ids counted (absent when deduplication is off). */
+    private final Map<TopicPartition, SeenIds> seenIds = new HashMap<>();
     private final Map<TopicPartition, Long> pendingOffsets = new HashMap<>();
     private final CountDownLatch stopped = new CountDownLatch(1);
     /** Retries after a failed poll or commit: 0.5 s, doubling up to 10 s (common practice, no source). */
@@ -101,6 +109,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         this.metrics = metrics;
         this.partialsPartitions = partialsPartitions;
         this.member = member;
+        this.counts = new CommittedCounts();
         this.studyCounts = new long[config.studies().size()][3];
         this.rejectedCopies = new RejectedCopies(config.topics().rejected(), RejectedCopies.limit(config.kafka()));
         for (InputTopic in : config.inputs()) {
@@ -142,6 +151,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             }
             closeClients();
             states.clear();
+            seenIds.clear();
             countOwned();
             stopped.countDown();
         }
@@ -181,19 +191,22 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 continue; // not ours any more
             }
             EventParser parser = parsers.get(tp.topic());
-            Counter accepted = metrics.accepted(tp.topic());
+            SeenIds seen = seenIds.get(tp);
             long next = -1;
-            int used = 0;
             currentPartition = tp;
             for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
                 currentOffset = r.offset();
                 ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
+                if (seen != null) {
+                    seen.check(e, state.streamTime());
+                }
                 int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
-                    used++;
+                    counts.accepted(tp.topic());
                     studyCounts[study][0]++;
                 } else {
+                    counts.rejected(tp.topic(), e.rejection());
                     if (study >= 0) {
                         studyCounts[study][1]++;
                         studyCounts[study][2] += e.rejection() == RejectReason.OUT_OF_RANGE ? 1 : 0;
@@ -207,7 +220,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
             }
-            accepted.increment(used);
             for (int i = 0; i < studyCounts.length; i++) {
                 long[] c = studyCounts[i];
                 if (c[0] + c[1] > 0) {
@@ -231,7 +243,6 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                         copy.topic(), ex.toString());
             }
         });
-        metrics.rejected(r.topic(), e.rejection());
     }
 
     /** Writes changed partials and commits them with the input offsets in one transaction. */
@@ -266,6 +277,13 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                     }
                 }
             }
+            seenIds.forEach((tp, seen) -> {
+                SourcePartition src = states.get(tp).source();
+                seen.forgetExpired(states.get(tp).streamTime());
+                seen.forEachChange((key, time) -> producer.send(new ProducerRecord<>(partials,
+                        PartialsCodec.partitionFor(key.study(), partialsPartitions),
+                        PartialsCodec.seenKey(src, key), PartialsCodec.seenValue(time))));
+            });
             if (!pendingOffsets.isEmpty()) {
                 Map<TopicPartition, OffsetAndMetadata> offsets = new HashMap<>();
                 pendingOffsets.forEach((tp, next) -> offsets.put(tp, new OffsetAndMetadata(next)));
@@ -274,10 +292,12 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             producer.commitTransaction();
             inTransaction = false;
             states.values().forEach(PartitionState::markClean);
+            seenIds.values().forEach(SeenIds::markClean);
             pendingOffsets.clear();
             upToDateMillis = System.currentTimeMillis();
             metrics.committed();
             metrics.commitTimer().record(Duration.ofNanos(System.nanoTime() - start));
+            counts.publish(metrics);
         } catch (KafkaException | IllegalStateException e) {
             if (e instanceof InterruptException) {
                 throw e;
@@ -301,6 +321,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         LOG.warn("aggregation error (last record read: {}@{}; uncommitted input up to {}), aborting and restarting from the last commit: {}",
                 currentPartition, currentOffset, pendingOffsets, cause.toString());
         metrics.aborted();
+        counts.discard(); // every assigned partition is read again from the last commit
         if (inTransaction) {
             try {
                 producer.abortTransaction();
@@ -317,6 +338,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
 
     /** Aborts the open transaction, if any, after an unexpected error; the failure itself is what gets reported. */
     private void abortQuietly() {
+        counts.discard();
         if (inTransaction && producer != null) {
             try {
                 producer.abortTransaction();
@@ -368,11 +390,16 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         for (TopicPartition tp : set) {
             SourcePartition src = new SourcePartition(tp.topic(), tp.partition());
             PartitionState state = new PartitionState(src, config.windows(), config.grace().toMillis(),
-                    (study, window) -> metrics.late(study.id(), window.name()));
+                    (study, window) -> counts.late(study.id(), window.name()));
             PartialsRestorer.Restored r = restored.get(src);
             r.panes().forEach(state::restorePane);
             state.restoreProgress(r.progress());
             states.put(tp, state);
+            if (config.dedup().enabled()) {
+                SeenIds seen = new SeenIds(config.dedup());
+                seen.restore(r.seen());
+                seenIds.put(tp, seen);
+            }
             OffsetAndMetadata at = committed.get(tp);
             if (at != null) {
                 consumer.seek(tp, at);
@@ -406,6 +433,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         @Override
         public void onPartitionsLost(Collection<TopicPartition> partitions) {
             // Another member may already own them: write nothing for them, and rebuild the rest.
+            counts.discard();
             if (inTransaction) {
                 try {
                     producer.abortTransaction();
@@ -421,10 +449,11 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         }
     }
 
-    /** Drops the partitions' in-memory state and uncommitted offsets. */
+    /** Drops the partitions' in-memory state (rebuilt from the partials topic when assigned again) and uncommitted offsets. */
     private void forget(Collection<TopicPartition> partitions) {
         for (TopicPartition tp : partitions) {
             states.remove(tp);
+            seenIds.remove(tp);
             pendingOffsets.remove(tp);
         }
     }

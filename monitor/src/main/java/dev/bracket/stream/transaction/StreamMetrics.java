@@ -23,8 +23,9 @@ import java.util.concurrent.atomic.AtomicInteger;
  *   <li>{@code bracket_reports_published_total{study}}</li>
  * </ul>
  *
- * Counters count work done: after an aborted transaction the redone records are counted again;
- * the exact numbers are those in the published documents.
+ * The event counters ({@code bracket_events_total}, {@code bracket_events_rejected_total},
+ * {@code bracket_events_late_total}) count committed work: the aggregator adds a transaction's
+ * counts after it commits and drops them when it aborts, so each input record counts once.
  */
 public final class StreamMetrics {
 
@@ -58,23 +59,23 @@ public final class StreamMetrics {
         return registry;
     }
 
-    Counter accepted(String topic) {
-        return accepted.computeIfAbsent(topic, t -> Counter.builder("bracket.events").tag("topic", t).tag("result", "accepted")
-                .description("Events read from input topics, by result").register(registry));
+    void accepted(String topic, long n) {
+        accepted.computeIfAbsent(topic, t -> Counter.builder("bracket.events").tag("topic", t).tag("result", "accepted")
+                .description("Events read from input topics and committed, by result").register(registry)).increment(n);
     }
 
-    void rejected(String topic, RejectReason reason) {
+    void rejected(String topic, RejectReason reason, long n) {
         rejected.computeIfAbsent(topic, t -> Counter.builder("bracket.events").tag("topic", t).tag("result", "rejected")
-                .description("Events read from input topics, by result").register(registry)).increment();
+                .description("Events read from input topics and committed, by result").register(registry)).increment(n);
         rejectedByReason.computeIfAbsent(topic + '\u0000' + reason.id(), k -> Counter.builder("bracket.events.rejected")
                 .tag("topic", topic).tag("reason", reason.id())
-                .description("Events sent to the rejected topic, by reason").register(registry)).increment();
+                .description("Events sent to the rejected topic, by reason").register(registry)).increment(n);
     }
 
-    void late(String study, String window) {
+    void late(String study, String window, long n) {
         late.computeIfAbsent(study + '\u0000' + window, k -> Counter.builder("bracket.events.late").tag("study", study)
                 .tag("window", window).description("Events too late for a closed window pane (still counted in open windows)")
-                .register(registry)).increment();
+                .register(registry)).increment(n);
     }
 
     public void published(String study) {

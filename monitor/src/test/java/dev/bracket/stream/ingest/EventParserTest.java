@@ -67,6 +67,30 @@ class EventParserTest {
         assertThat(e.time()).isEqualTo(1_700_000_123_456L);
         assertThat(e.stratum()).isEqualTo("eu");
         assertThat(e.instrument()).isEqualTo("wave-2");
+        assertThat(e.id()).isEqualTo("e-1");
+    }
+
+    @Test
+    @DisplayName("a key given twice is rejected as bad-json naming the key, on both parsing paths, nested objects too")
+    void duplicateKeysRejected() {
+        String[] inputs = {
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":true,\"outcome\":0.2,\"outcome\":0.9}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":true,\"outcome\":0.2,\"note\":1,\"note\":1}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":true,\"outcome\":0.2,\"x\":{\"a\":1,\"a\":2}}",
+        };
+        String[] keys = {"outcome", "note", "a"};
+        for (int i = 0; i < inputs.length; i++) {
+            byte[] bytes = inputs[i].getBytes(StandardCharsets.UTF_8);
+            for (boolean fast : new boolean[] {true, false}) {
+                ParsedEvent e = parser.parse(bytes, RECORD_TIME, RECORD_TIME, fast);
+                assertThat(e.rejection()).as(inputs[i]).isEqualTo(RejectReason.BAD_JSON);
+                assertThat(e.detail()).as(inputs[i]).contains("Duplicate field '" + keys[i] + "'");
+            }
+        }
+        // The same key once, and an id given as a number, are fine.
+        ParsedEvent ok = parse("{\"study\":\"checkout\",\"unit\":1,\"treated\":true,\"outcome\":0.2,\"id\":17}");
+        assertThat(ok.isUsable()).isTrue();
+        assertThat(ok.id()).isEqualTo("17");
     }
 
     @Test

@@ -1,0 +1,68 @@
+package dev.bracket.report.render;
+
+import com.fasterxml.jackson.databind.JsonNode;
+import org.junit.jupiter.api.DisplayName;
+import org.junit.jupiter.api.Test;
+
+import java.io.IOException;
+import java.io.InputStream;
+import java.nio.charset.StandardCharsets;
+import java.util.Iterator;
+import java.util.List;
+import java.util.Map;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+import static org.junit.jupiter.api.Assertions.fail;
+
+/**
+ * The speed work (critical values without a root search per call, sums kept in the cells, bands
+ * built once per settings) must not move a published number by more than 1e-12 relative: the
+ * reports of random studies are compared with those written by the implementation before it
+ * (commit 6cc2b2a, see {@link ReferenceReports}), field by field.
+ */
+class ReportNumbersTest {
+
+    @Test
+    @DisplayName("reports of random studies equal those of the implementation before the speed work (numbers within 1e-12 relative)")
+    void sameNumbersAsBefore() throws IOException {
+        List<String> reference;
+        try (InputStream in = getClass().getResourceAsStream("reference-reports.jsonl")) {
+            reference = new String(in.readAllBytes(), StandardCharsets.UTF_8).lines().toList();
+        }
+        assertEquals(ReferenceReports.STUDIES, reference.size());
+        int[] numbers = {0};
+        for (int i = 0; i < reference.size(); i++) {
+            JsonNode before = ReportJson.mapper().readTree(reference.get(i));
+            JsonNode now = ReportJson.mapper().readTree(ReferenceReports.document(i));
+            compare(before, now, "study " + i, numbers);
+        }
+        assertTrue(numbers[0] > 2_500, "compared " + numbers[0] + " numbers");
+    }
+
+    private static void compare(JsonNode before, JsonNode now, String path, int[] numbers) {
+        if (before.isNumber() && now.isNumber()) {
+            double a = before.doubleValue();
+            double b = now.doubleValue();
+            assertEquals(a, b, 1e-12 * Math.max(1, Math.abs(a)), path);
+            numbers[0]++;
+        } else if (before.isContainerNode()) {
+            assertEquals(before.size(), now.size(), path + " size");
+            if (before.isArray()) {
+                for (int i = 0; i < before.size(); i++) {
+                    compare(before.get(i), now.get(i), path + "[" + i + "]", numbers);
+                }
+            } else {
+                for (Iterator<Map.Entry<String, JsonNode>> it = before.fields(); it.hasNext(); ) {
+                    Map.Entry<String, JsonNode> e = it.next();
+                    if (!now.has(e.getKey())) {
+                        fail(path + "." + e.getKey() + " missing");
+                    }
+                    compare(e.getValue(), now.get(e.getKey()), path + "." + e.getKey(), numbers);
+                }
+            }
+        } else {
+            assertEquals(before, now, path);
+        }
+    }
+}
