@@ -3,6 +3,7 @@ package dev.bracket.report.render;
 import dev.bracket.bands.BandConfig;
 import dev.bracket.report.StudyReport;
 import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.Assumption;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.Direction;
 import dev.bracket.bounds.ObservedArms;
@@ -32,8 +33,13 @@ final class ReferenceReports {
     private ReferenceReports() {
     }
 
+    /**
+     * Each single assumption and two pairs, as when the reference file was written: missing-at-random
+     * came later (pending outcomes), so it is left out here and its rows are checked elsewhere.
+     */
     static List<AssumptionSet> sets() {
         List<AssumptionSet> sets = new ArrayList<>(AssumptionSet.eachSingle());
+        sets.remove(AssumptionSet.of(Assumption.MISSING_AT_RANDOM));
         sets.add(AssumptionSet.parse("mtr-positive,mts-negative"));
         sets.add(AssumptionSet.parse("mtr-positive,mts-positive"));
         return sets;

@@ -2,6 +2,7 @@ package dev.bracket.report.render;
 
 import dev.bracket.bands.BandConfig;
 import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.StudyCells;
 import dev.bracket.config.StudyConfig;
@@ -48,9 +49,12 @@ class StreamedDocumentTest {
         // Pending outcomes: exposures beyond the outcomes in both arms, and more outcomes than exposures in one.
         studies.add(StudyCells.single(new ObservedArms(some.withExposures(55), one.withExposures(3))));
         studies.add(StudyCells.single(new ObservedArms(some.withExposures(12), ArmStatistics.empty().withExposures(4))));
-        StudyConfig study = new StudyConfig("study \"q\"/ü", ReferenceReports.RANGE, ReferenceReports.sets());
+        List<AssumptionSet> sets = new ArrayList<>(ReferenceReports.sets());
+        sets.add(AssumptionSet.parse("missing-at-random"));
+        sets.add(AssumptionSet.parse("missing-at-random,mtr-positive"));
+        StudyConfig study = new StudyConfig("study \"q\"/ü", ReferenceReports.RANGE, sets);
         for (StudyCells cells : studies) {
-            StudyReport report = StudyReport.of(cells, ReferenceReports.RANGE, ReferenceReports.sets(), BandConfig.both(0.95));
+            StudyReport report = StudyReport.of(cells, ReferenceReports.RANGE, sets, BandConfig.both(0.95));
             WindowSpec window = List.of(WindowSpec.CUMULATIVE, HOURLY, DAY).get(rng.nextInt(3));
             long end = 1_735_689_600_000L + 3_600_000L * rng.nextInt(1000);
             LostToFollowUp lost = window.kind() == WindowSpec.Kind.CUMULATIVE && rng.nextBoolean()
