@@ -23,6 +23,9 @@ public enum AlertRule {
     /** In either arm, the share of units whose outcome has not arrived exceeds a configured limit. */
     PENDING_SHARE("pending-share", true, "share of units with outcomes pending above the limit",
             "shares of units with outcomes pending back within the limit"),
+    /** In either arm, more outcomes arrived than units were reported exposed, beyond a configured share. */
+    EXCESS_OUTCOMES("excess-outcomes", true, "outcomes beyond the reported exposures",
+            "outcomes back within the reported exposures"),
     /** No events arrived for the study for longer than a configured duration. */
     STREAM_STALLED("stream-stalled", false, "no events from the study's stream", "events arriving again"),
     /** The share of rejected events within a period exceeds a configured threshold. */

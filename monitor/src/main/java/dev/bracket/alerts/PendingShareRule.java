@@ -4,7 +4,6 @@ import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 
-import java.util.LinkedHashMap;
 import java.util.Locale;
 import java.util.Map;
 
@@ -21,12 +20,7 @@ import java.util.Map;
 public record PendingShareRule(double maxShare, double clearShareBelow) implements RowRule {
 
     public PendingShareRule {
-        if (!(maxShare >= 0 && maxShare < 1)) {
-            throw new IllegalArgumentException("pending-share max-share must lie in [0, 1), was " + maxShare);
-        }
-        if (!(clearShareBelow >= 0 && clearShareBelow <= maxShare)) {
-            throw new IllegalArgumentException("pending-share clear-share-below must lie in [0, max-share], was " + clearShareBelow);
-        }
+        ArmShareLimit.check(AlertRule.PENDING_SHARE, maxShare, clearShareBelow);
     }
 
     @Override
@@ -44,19 +38,12 @@ public record PendingShareRule(double maxShare, double clearShareBelow) implemen
     public Verdict judge(BoundSnapshot snapshot, ConfidenceBand band) {
         double treated = share(snapshot.arms().treated());
         double control = share(snapshot.arms().control());
-        double worst = Math.max(treated, control);
         String seen = String.format(Locale.ROOT, "outcomes pending for %d of %d treated and %d of %d control units"
                         + " (shares %s and %s), limit %s",
                 snapshot.arms().treated().pending(), snapshot.arms().treated().units(),
                 snapshot.arms().control().pending(), snapshot.arms().control().units(),
                 AlertText.num(treated), AlertText.num(control), AlertText.num(maxShare));
-        if (worst > maxShare) {
-            return Verdict.met("", seen);
-        }
-        if (clearShareBelow > 0 && worst <= maxShare - clearShareBelow) {
-            return Verdict.clear(seen + ", below the limit by the clear margin " + AlertText.num(clearShareBelow));
-        }
-        return Verdict.unmet(seen);
+        return ArmShareLimit.judge(treated, control, maxShare, clearShareBelow, seen);
     }
 
     private static double share(ArmStatistics arm) {
@@ -65,9 +52,6 @@ public record PendingShareRule(double maxShare, double clearShareBelow) implemen
 
     @Override
     public Map<String, Double> limits() {
-        Map<String, Double> m = new LinkedHashMap<>();
-        m.put("maxShare", maxShare);
-        m.put("clearShareBelow", clearShareBelow);
-        return m;
+        return ArmShareLimit.limits(maxShare, clearShareBelow);
     }
 }

@@ -10,7 +10,8 @@ import java.util.Map;
  * a confidence band. Implementations are pure functions of their settings and the two inputs.
  */
 public sealed interface RowRule
-        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule, PendingShareRule {
+        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule, PendingShareRule,
+        ExcessOutcomesRule {
 
     AlertRule rule();
 

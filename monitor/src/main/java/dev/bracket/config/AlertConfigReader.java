@@ -6,6 +6,7 @@ import dev.bracket.alerts.AssumptionsRefutedRule;
 import dev.bracket.alerts.RowRule;
 import dev.bracket.alerts.DataQualityRule;
 import dev.bracket.alerts.IntervalNarrowRule;
+import dev.bracket.alerts.ExcessOutcomesRule;
 import dev.bracket.alerts.PendingShareRule;
 import dev.bracket.alerts.PracticalEquivalenceRule;
 import dev.bracket.alerts.SignIdentifiedRule;
@@ -17,6 +18,7 @@ import dev.bracket.config.ConfigKeys.Alerts;
 import dev.bracket.config.ConfigKeys.AssumptionsRefuted;
 import dev.bracket.config.ConfigKeys.DataQuality;
 import dev.bracket.config.ConfigKeys.IntervalNarrow;
+import dev.bracket.config.ConfigKeys.ExcessOutcomes;
 import dev.bracket.config.ConfigKeys.PendingShare;
 import dev.bracket.config.ConfigKeys.PracticalEquivalence;
 import dev.bracket.config.ConfigKeys.Rules;
@@ -90,6 +92,11 @@ final class AlertConfigReader {
                         ConfigNode r = Rules.PENDING_SHARE.read(rules);
                         rowRules.add(build(r, () -> new PendingShareRule(PendingShare.MAX_SHARE.read(r),
                                 PendingShare.CLEAR_SHARE_BELOW.read(r))));
+                    }
+                    case EXCESS_OUTCOMES -> {
+                        ConfigNode r = Rules.EXCESS_OUTCOMES.read(rules);
+                        rowRules.add(build(r, () -> new ExcessOutcomesRule(ExcessOutcomes.MAX_SHARE.read(r),
+                                ExcessOutcomes.CLEAR_SHARE_BELOW.read(r))));
                     }
                     case STREAM_STALLED -> {
                         ConfigNode r = Rules.STREAM_STALLED.read(rules);

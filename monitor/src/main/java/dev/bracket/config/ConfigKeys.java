@@ -150,6 +150,7 @@ final class ConfigKeys {
         static final ConfigKey<ConfigNode> PRACTICAL_EQUIVALENCE = rule(AlertRule.PRACTICAL_EQUIVALENCE, PracticalEquivalence.KEYS);
         static final ConfigKey<ConfigNode> ASSUMPTIONS_REFUTED = rule(AlertRule.ASSUMPTIONS_REFUTED, AssumptionsRefuted.KEYS);
         static final ConfigKey<ConfigNode> PENDING_SHARE = rule(AlertRule.PENDING_SHARE, PendingShare.KEYS);
+        static final ConfigKey<ConfigNode> EXCESS_OUTCOMES = rule(AlertRule.EXCESS_OUTCOMES, ExcessOutcomes.KEYS);
         static final ConfigKey<ConfigNode> STREAM_STALLED = rule(AlertRule.STREAM_STALLED, StreamStalled.KEYS);
         static final ConfigKey<ConfigNode> DATA_QUALITY = rule(AlertRule.DATA_QUALITY, DataQuality.KEYS);
 
@@ -184,6 +185,12 @@ final class ConfigKeys {
     static final class PendingShare {
         static final ConfigSection KEYS = new ConfigSection();
         static final ConfigKey<Double> MAX_SHARE = KEYS.required("max-share", Type.NUMBER, "fires when an arm's share of exposed units still pending exceeds this");
+        static final ConfigKey<Double> CLEAR_SHARE_BELOW = KEYS.key("clear-share-below", Type.NUMBER, 0.0, "resolves at once when the share is at least this far below the limit");
+    }
+
+    static final class ExcessOutcomes {
+        static final ConfigSection KEYS = new ConfigSection();
+        static final ConfigKey<Double> MAX_SHARE = KEYS.key("max-share", Type.NUMBER, 0.0, "fires when an arm's outcomes beyond its exposures exceed this share of its outcomes (0: any)");
         static final ConfigKey<Double> CLEAR_SHARE_BELOW = KEYS.key("clear-share-below", Type.NUMBER, 0.0, "resolves at once when the share is at least this far below the limit");
     }
 

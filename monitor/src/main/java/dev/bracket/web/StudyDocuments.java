@@ -46,7 +46,11 @@ public final class StudyDocuments {
         return root;
     }
 
-    /** {@code GET /api/studies/{id}}: per window, the counts and the full bounds document; empty for an unknown study. */
+    /**
+     * {@code GET /api/studies/{id}}: per window, the counts, the units lost to follow-up (as in the
+     * bounds topic's documents: null but for the cumulative window of a study with a follow-up
+     * horizon) and the full bounds document; empty for an unknown study.
+     */
     public static Optional<ObjectNode> study(LatestReports latest, String study) {
         List<PublishedReport> reports = latest.study(study);
         if (reports.isEmpty()) {
@@ -58,7 +62,13 @@ public final class StudyDocuments {
         root.put("updatedAt", updatedAt(reports).toString());
         ArrayNode windows = root.putArray("windows");
         for (PublishedReport r : reports) {
-            window(windows, r).set("report", ReportJson.toJson(r.report()));
+            ObjectNode w = window(windows, r);
+            w.setAll(ReportJson.tree(g -> {
+                g.writeStartObject();
+                ReportJson.lostToFollowUp(g, r.lost(), r.report().pooled());
+                g.writeEndObject();
+            }));
+            w.set("report", ReportJson.toJson(r.report()));
         }
         return Optional.of(root);
     }

@@ -34,6 +34,11 @@ import java.util.function.ToDoubleFunction;
  *   <li>{@code bracket_arm_units}: units with an observed outcome in the arm ({@code arm="treated"|"control"})</li>
  *   <li>{@code bracket_arm_pending_ratio}: share of the arm's exposed units whose outcome has not
  *       arrived (0 when no exposures are reported, NaN for an arm with no units)</li>
+ *   <li>{@code bracket_arm_excess_outcomes}: outcomes beyond the arm's reported exposures, a
+ *       data-quality finding (0 when no exposures are reported)</li>
+ *   <li>{@code bracket_arm_lost_to_follow_up_ratio}: share of the arm's units lost to follow-up;
+ *       only for windows whose reports count them (the cumulative window of a study with a
+ *       follow-up horizon), NaN for an arm with no units</li>
  *   <li>{@code bracket_report_timestamp_seconds}: when the report was computed (Unix time)</li>
  * </ul>
  * Labels: {@code study}, {@code window}, and {@code assumptions} (comma-separated identifiers).
@@ -55,16 +60,19 @@ public final class StudyGauges {
         String window = report.window();
         if (registered.add(study + '\u0000' + window)) {
             Tags tags = Tags.of("study", study, "window", window);
-            gauge("bracket.arm.units", "Units observed in the arm", tags.and("arm", "treated"), null,
-                    r -> r.report().pooled().treated().count(), study, window);
-            gauge("bracket.arm.units", "Units observed in the arm", tags.and("arm", "control"), null,
-                    r -> r.report().pooled().control().count(), study, window);
             for (boolean treated : new boolean[] {true, false}) {
-                gauge("bracket.arm.pending.ratio", "Share of the arm's units whose outcome has not arrived",
-                        tags.and("arm", treated ? "treated" : "control"), null, r -> {
-                            ArmStatistics arm = treated ? r.report().pooled().treated() : r.report().pooled().control();
-                            return arm.units() == 0 ? Double.NaN : (double) arm.pending() / arm.units();
-                        }, study, window);
+                Tags arm = tags.and("arm", treated ? "treated" : "control");
+                gauge("bracket.arm.units", "Units observed in the arm", arm, null, r -> arm(r, treated).count(), study, window);
+                gauge("bracket.arm.pending.ratio", "Share of the arm's units whose outcome has not arrived", arm, null, r -> {
+                    ArmStatistics a = arm(r, treated);
+                    return a.units() == 0 ? Double.NaN : (double) a.pending() / a.units();
+                }, study, window);
+                gauge("bracket.arm.excess.outcomes", "Outcomes beyond the arm's reported exposures (a data-quality finding)",
+                        arm, null, r -> arm(r, treated).excessOutcomes(), study, window);
+                if (report.lost() != null) {
+                    gauge("bracket.arm.lost.to.follow.up.ratio", "Share of the arm's units lost to follow-up", arm, null,
+                            r -> r.lost() == null ? Double.NaN : r.lost().share(treated, arm(r, treated)), study, window);
+                }
             }
             gauge("bracket.report.timestamp", "When the report was computed, Unix time", tags, "seconds",
                     r -> r.computedAt().toEpochMilli() / 1000.0, study, window);
@@ -95,6 +103,10 @@ public final class StudyGauges {
                 }
             }
         }
+    }
+
+    private static ArmStatistics arm(PublishedReport report, boolean treated) {
+        return treated ? report.report().pooled().treated() : report.report().pooled().control();
     }
 
     private static Optional<ConfidenceBand> band(PublishedReport report, AssumptionSet set, BandMethod method, double level) {

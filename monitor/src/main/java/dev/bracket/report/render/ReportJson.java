@@ -10,7 +10,9 @@ import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
+import dev.bracket.bounds.ObservedArms;
 import dev.bracket.report.BoundRow;
+import dev.bracket.report.LostToFollowUp;
 import dev.bracket.report.PendingOutcomes;
 import dev.bracket.report.StudyReport;
 
@@ -213,6 +215,24 @@ public final class ReportJson {
         }
         g.writeFieldName(field);
         g.writeString(encoded);
+    }
+
+    /**
+     * Writes {@code "lostToFollowUp"}: the horizon, the lost units per arm and their shares of the
+     * arm's units ({@code treatedShare}, {@code controlShare}); null when {@code lost} is.
+     */
+    public static void lostToFollowUp(JsonGenerator g, LostToFollowUp lost, ObservedArms pooled) throws IOException {
+        if (lost == null) {
+            g.writeNullField("lostToFollowUp");
+            return;
+        }
+        g.writeObjectFieldStart("lostToFollowUp");
+        g.writeStringField("horizon", lost.horizon().toString());
+        g.writeNumberField("treated", lost.treated());
+        g.writeNumberField("control", lost.control());
+        number(g, "treatedShare", lost.share(true, pooled.treated()));
+        number(g, "controlShare", lost.share(false, pooled.control()));
+        g.writeEndObject();
     }
 
     /** Writes a number, or null where it does not exist. */

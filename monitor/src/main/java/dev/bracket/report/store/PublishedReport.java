@@ -1,5 +1,6 @@
 package dev.bracket.report.store;
 
+import dev.bracket.report.LostToFollowUp;
 import dev.bracket.report.StudyReport;
 
 import java.time.Instant;
@@ -14,12 +15,13 @@ import java.time.Instant;
  * @param windowEnd   where it ends; null for {@code cumulative}
  * @param computedAt  when the updater computed it
  * @param report      the bounds, built from all partitions' merged statistics
+ * @param lost        units lost to follow-up: the cumulative window of a study with a follow-up horizon; else null
  */
 public record PublishedReport(String study, String window, Instant windowStart, Instant windowEnd, Instant computedAt,
-                              StudyReport report) {
+                              StudyReport report, LostToFollowUp lost) {
 
-    /** A report of the cumulative window, which has no start or end. */
+    /** A report of the cumulative window, which has no start or end, of a study without a follow-up horizon. */
     public PublishedReport(String study, String window, Instant computedAt, StudyReport report) {
-        this(study, window, null, null, computedAt, report);
+        this(study, window, null, null, computedAt, report, null);
     }
 }

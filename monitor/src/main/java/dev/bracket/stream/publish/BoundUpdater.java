@@ -245,7 +245,7 @@ public final class BoundUpdater implements Runnable, AutoCloseable {
             warnOneArmed(study.id(), report.report());
             PublishedReport published = new PublishedReport(study.id(), window.name(),
                     cumulative ? null : Instant.ofEpochMilli(report.start()), cumulative ? null : Instant.ofEpochMilli(report.end()),
-                    now, report.report());
+                    now, report.report(), report.lost());
             latest.put(published);
             try {
                 listener.accept(published);

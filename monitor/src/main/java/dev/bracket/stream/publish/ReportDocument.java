@@ -52,19 +52,7 @@ public final class ReportDocument {
             g.writeStringField("windowEnd", Instant.ofEpochMilli(r.end()).toString());
         }
         g.writeNumberField("lateEvents", r.lateEvents());
-        if (r.lost() == null) {
-            g.writeNullField("lostToFollowUp");
-        } else {
-            g.writeObjectFieldStart("lostToFollowUp");
-            g.writeStringField("horizon", r.lost().horizon().toString());
-            g.writeNumberField("treated", r.lost().treated());
-            g.writeNumberField("control", r.lost().control());
-            long treatedUnits = r.report().pooled().treated().units();
-            long controlUnits = r.report().pooled().control().units();
-            ReportJson.number(g, "treatedShare", treatedUnits == 0 ? Double.NaN : (double) r.lost().treated() / treatedUnits);
-            ReportJson.number(g, "controlShare", controlUnits == 0 ? Double.NaN : (double) r.lost().control() / controlUnits);
-            g.writeEndObject();
-        }
+        ReportJson.lostToFollowUp(g, r.lost(), r.report().pooled());
         g.writeNumberField("revision", revision);
         if (computedAt != null) {
             g.writeStringField("computedAt", computedAt.toString());

@@ -3,6 +3,7 @@ package dev.bracket.stream.publish;
 import dev.bracket.bands.BandConfig;
 import dev.bracket.config.StudyConfig;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.report.LostToFollowUp;
 import dev.bracket.report.StudyReport;
 
 /**
@@ -40,7 +41,7 @@ public record WindowReport(StudyConfig study, WindowSpec window, long start, lon
         long from = cumulative ? Long.MIN_VALUE : end - window.size().toMillis();
         StudyReport report = StudyReport.of(partials.cells(study.id(), window.name(), pane -> pane >= from && pane < to),
                 study.range(), study.assumptions(), bands);
-        LostToFollowUp lost = study.followUp() != null && cumulative ? LostToFollowUp.at(study.id(), study.followUp(), partials) : null;
+        LostToFollowUp lost = study.followUp() != null && cumulative ? FollowUpCount.at(study.id(), study.followUp(), partials) : null;
         return new WindowReport(study, window, from, to, report, partials.late(study.id(), window.name()), lost);
     }
 
