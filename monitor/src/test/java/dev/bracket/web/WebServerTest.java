@@ -9,6 +9,7 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.bounds.StudyCells;
+import dev.bracket.report.LostToFollowUp;
 import dev.bracket.report.store.LatestReports;
 import dev.bracket.report.store.PublishedReport;
 import dev.bracket.report.render.ReportJson;
@@ -25,6 +26,7 @@ import java.net.URI;
 import java.net.http.HttpClient;
 import java.net.http.HttpRequest;
 import java.net.http.HttpResponse;
+import java.time.Duration;
 import java.time.Instant;
 import java.util.List;
 
@@ -150,6 +152,40 @@ class WebServerTest {
             assertThat(text).contains("bracket_ate_band_lower" + labels + " " + band.lower())
                     .contains("bracket_ate_band_upper" + labels + " " + band.upper());
         }
+    }
+
+    @Test
+    @DisplayName("with exposures: per-arm pending, lost-to-follow-up and excess-outcome gauges and the API's lostToFollowUp")
+    void pendingLostAndExcessPerArm() throws Exception {
+        // Treated: 30 outcomes of 40 exposed units, so 10 pending (10/40 = 0.25), 4 of them lost (4/40 = 0.1).
+        // Control: 22 outcomes but 20 exposures: 2 outcomes beyond them, so 22 units, none pending or lost.
+        StudyCells cells = StudyCells.single(new ObservedArms(ArmStatistics.ofSummary(30, 0.5, 0.2).withExposures(40),
+                ArmStatistics.ofSummary(22, 0.4, 0.2).withExposures(20)));
+        LATEST.put(new PublishedReport("rollout-pending", "cumulative", null, null, T0,
+                StudyReport.of(cells, new OutcomeRange(0, 1), SETS, BandConfig.none()), new LostToFollowUp(4, 0, Duration.ofDays(30))));
+        server.refresh();
+
+        String labels = ",study=\"rollout-pending\",window=\"cumulative\"} ";
+        assertThat(get("/metrics").body())
+                .contains("bracket_arm_pending_ratio{arm=\"treated\"" + labels + "0.25")
+                .contains("bracket_arm_pending_ratio{arm=\"control\"" + labels + "0.0")
+                .contains("bracket_arm_lost_to_follow_up_ratio{arm=\"treated\"" + labels + "0.1")
+                .contains("bracket_arm_lost_to_follow_up_ratio{arm=\"control\"" + labels + "0.0")
+                .contains("bracket_arm_excess_outcomes{arm=\"treated\"" + labels + "0.0")
+                .contains("bracket_arm_excess_outcomes{arm=\"control\"" + labels + "2.0")
+                // a study without a follow-up horizon has no lost-to-follow-up series
+                .doesNotContain("bracket_arm_lost_to_follow_up_ratio{arm=\"treated\",study=\"rollout-a\"");
+
+        JsonNode window = json(get("/api/studies/rollout-pending")).get("windows").get(0);
+        JsonNode lost = window.get("lostToFollowUp");
+        assertThat(lost.get("horizon").asText()).isEqualTo("PT720H");
+        assertThat(lost.get("treated").asLong()).isEqualTo(4);
+        assertThat(lost.get("treatedShare").asDouble()).isEqualTo(0.1);
+        assertThat(lost.get("controlShare").asDouble()).isEqualTo(0.0);
+        JsonNode arms = window.get("report").get("arms");
+        assertThat(arms.get("treated").get("pendingShare").asDouble()).isEqualTo(0.25);
+        assertThat(arms.get("control").get("excessOutcomes").asLong()).isEqualTo(2);
+        assertThat(json(get("/api/studies/rollout-a")).get("windows").get(0).get("lostToFollowUp").isNull()).isTrue();
     }
 
     @Test
