@@ -6,6 +6,8 @@ import dev.bracket.demo.DemoProducer;
 import dev.bracket.demo.RolloutScenario;
 import dev.bracket.demo.ScenarioFeed;
 import dev.bracket.demo.ScenarioConfig;
+import com.fasterxml.jackson.databind.JsonNode;
+import dev.bracket.report.render.ReportJson;
 import dev.bracket.report.store.LatestReports;
 import dev.bracket.app.Monitor;
 import io.micrometer.prometheusmetrics.PrometheusConfig;
@@ -43,6 +45,7 @@ import java.time.Clock;
 import java.time.Duration;
 import java.util.Comparator;
 import java.util.List;
+import java.util.Locale;
 import java.util.Set;
 import java.util.TreeSet;
 import java.util.regex.Matcher;
@@ -58,9 +61,11 @@ import static org.awaitility.Awaitility.await;
 /**
  * The page in a real browser (Debian's headless Chromium through chromedriver) against a real
  * monitor on a real broker: the demo's simulated rollout, whose sign-identified alert fires, and a
- * second study that sends a few events and then falls silent, so its stream-stalled alert fires.
- * Checks what an operator looks for first: charts drawn, the alert shown with its evidence, the
- * stalled study marked, the picker's filter, the layout inside 1280 px, and no error in the
+ * second study that sends a few events and then falls silent, so its stream-stalled alert fires, and
+ * a third with exposure events, pending outcomes, units lost to follow-up and outcomes beyond the
+ * exposures. Checks what an operator looks for first: charts drawn, the alert shown with its
+ * evidence, the stalled study marked, the arms' pending and lost shares equal to the API's, the
+ * rows' assumption about pending outcomes, the picker's filter, the layout inside 1280 px, and no error in the
  * browser's console; and that every metric the shipped dashboard and alerting rules query is served.
  * Screenshots go to {@code target/}; the overview is copied to {@code docs/page.png} for the README.
  *
@@ -74,6 +79,7 @@ class PageInBrowserTest {
     private static final Path CHROMEDRIVER = Path.of("/usr/bin/chromedriver");
     private static final String ROLLOUT = "host-rollout";
     private static final String QUIET = "quiet-registry";
+    private static final String DELAYED = "registry-delayed";
 
     @RegisterExtension
     static final BrokerPerClass KAFKA = new BrokerPerClass();
@@ -96,6 +102,10 @@ class PageInBrowserTest {
                       min-per-arm: 5
                       rules:
                         stream-stalled: {after: 3s}
+                  - id: %s
+                    outcome: {min: 0, max: 1}
+                    assume: [worst-case, missing-at-random]
+                    follow-up: 1h
                 inputs:
                   - topic: page-events
                 topics: {rejected: page-rejected, partials: page-partials, bounds: page-bounds, partitions: 2}
@@ -106,7 +116,7 @@ class PageInBrowserTest {
                 instance: page-1
                 kafka:
                   bootstrap.servers: %s
-                """.formatted(ROLLOUT, QUIET, bootstrap);
+                """.formatted(ROLLOUT, QUIET, DELAYED, bootstrap);
     }
 
     @BeforeAll
@@ -169,6 +179,7 @@ class PageInBrowserTest {
                 kafka.send(new ProducerRecord<>("page-events", "q" + i, "{\"study\":\"" + QUIET + "\",\"unit\":" + i
                         + ",\"treated\":" + (i % 2 == 0) + ",\"outcome\":" + (3 + i % 5) + "}"));
             }
+            delayedOutcomes(kafka);
             // The demo rollout: true ATE -0.08 with selection on health, so mts-positive identifies a
             // negative sign (the demo's documented behaviour, checked in DemoAlertsEndToEndTest).
             DemoProducer sender = new DemoProducer(kafka, "page-events", 0, Clock.systemUTC());
@@ -206,6 +217,38 @@ class PageInBrowserTest {
         assertThat(browser.findElement(By.cssSelector("#study-" + ROLLOUT + " a.csv")).getAttribute("href"))
                 .endsWith("/api/studies/" + ROLLOUT + "/history.csv");
         assertThat(browser.findElement(By.cssSelector(".cautions")).getText()).contains("only as credible as its assumptions");
+
+        // The study with exposures: the arms' shares shown are the API's, and the rows say what they
+        // assume about pending outcomes. Without exposures the page says outcomes not yet reported are
+        // not accounted for.
+        browser.findElement(By.cssSelector("#study-" + DELAYED + " summary")).click();
+        await().atMost(Duration.ofSeconds(30)).pollInterval(Duration.ofMillis(500)).untilAsserted(() ->
+                assertThat(texts("#study-" + DELAYED + " table.arms tr[data-arm='treated'] td.lost .share")).containsExactly("16.7%"));
+        JsonNode window = ReportJson.mapper().readTree(get("api/studies/" + DELAYED)).get("windows").get(0);
+        JsonNode arms = window.get("report").get("arms");
+        for (String arm : List.of("treated", "control")) {
+            String row = "#study-" + DELAYED + " table.arms tr[data-arm='" + arm + "'] ";
+            assertThat(texts(row + "td.exposed")).containsExactly(arms.get(arm).get("exposed").asText());
+            assertThat(texts(row + "td.observed")).containsExactly(arms.get(arm).get("n").asText());
+            assertThat(texts(row + "td.pending .share")).containsExactly(percent(arms.get(arm).get("pendingShare").asDouble()));
+            assertThat(texts(row + "td.lost .share")).containsExactly(percent(window.get("lostToFollowUp").get(arm + "Share").asDouble()));
+            assertThat(texts(row + "td.excess")).containsExactly(arms.get(arm).get("excessOutcomes").asText());
+        }
+        // The counts sent (delayedOutcomes): 20 of 60 treated units pending, 10 of them lost; 3 control outcomes beyond exposures.
+        assertThat(arms.get("treated").get("pending").asLong()).isEqualTo(20);
+        assertThat(window.get("lostToFollowUp").get("treated").asLong()).isEqualTo(10);
+        assertThat(arms.get("control").get("excessOutcomes").asLong()).isEqualTo(3);
+        assertThat(texts("#study-" + DELAYED + " .excess-note")).singleElement().satisfies(t -> assertThat(t).contains("data-quality"));
+        assertThat(browser.findElement(By.cssSelector("#study-" + DELAYED + " tr[data-assumptions='missing-at-random'] .pending-row"))
+                .getText()).contains("missing-at-random");
+        assertThat(browser.findElement(By.cssSelector("#study-" + DELAYED + " tr[data-assumptions='worst-case'] .pending-row"))
+                .getText()).isEqualTo("pending outcomes: anywhere in [0, 1]");
+        assertThat(texts("#study-" + ROLLOUT + " .pending-note.none")).singleElement()
+                .satisfies(t -> assertThat(t).contains("outcomes of units not yet reported are not accounted for"));
+        assertThat(browser.findElements(By.cssSelector("#study-" + ROLLOUT + " table.arms"))).isEmpty();
+        js.executeScript("document.getElementById('study-" + DELAYED + "').scrollIntoView();");
+        screenshot(Path.of("target", "page-pending-study.png"));
+        js.executeScript("window.scrollTo(0, 0);");
 
         // Nothing runs off the page at 1280 px.
         Number pageWidth = (Number) js.executeScript("return document.documentElement.scrollWidth;");
@@ -259,6 +302,42 @@ class PageInBrowserTest {
         List<LogEntry> errors = browser.manage().logs().get(LogType.BROWSER).getAll().stream()
                 .filter(e -> e.getLevel().intValue() >= Level.SEVERE.intValue()).toList();
         assertThat(errors).as("errors in the browser console").isEmpty();
+    }
+
+    /**
+     * The delayed study's events, one Kafka key so they stay in order: 60 treated units exposed (40 of
+     * them three hours ago, past the one-hour horizon), outcomes for 30 old and 10 recent ones; 30
+     * control units exposed now and 33 control outcomes, 3 of them for units never reported exposed.
+     */
+    private static void delayedOutcomes(Producer<String, String> kafka) {
+        long now = System.currentTimeMillis();
+        long old = now - Duration.ofHours(3).toMillis();
+        for (int i = 0; i < 60; i++) {
+            long exposed = i < 40 ? old : now;
+            send(kafka, "{\"kind\":\"exposure\",\"study\":\"" + DELAYED + "\",\"unit\":" + (1000 + i)
+                    + ",\"treated\":true,\"time\":" + exposed + "}");
+            if (i < 30 || (i >= 40 && i < 50)) {
+                send(kafka, "{\"study\":\"" + DELAYED + "\",\"unit\":" + (1000 + i) + ",\"treated\":true,\"outcome\":" + (i % 3 == 0 ? 0 : 1)
+                        + ",\"time\":" + now + ",\"exposed\":" + exposed + "}");
+            }
+        }
+        for (int i = 0; i < 33; i++) {
+            if (i < 30) {
+                send(kafka, "{\"kind\":\"exposure\",\"study\":\"" + DELAYED + "\",\"unit\":" + (2000 + i)
+                        + ",\"treated\":false,\"time\":" + now + "}");
+            }
+            send(kafka, "{\"study\":\"" + DELAYED + "\",\"unit\":" + (2000 + i) + ",\"treated\":false,\"outcome\":" + (i % 4 == 0 ? 1 : 0)
+                    + ",\"time\":" + now + ",\"exposed\":" + now + "}");
+        }
+    }
+
+    private static void send(Producer<String, String> kafka, String event) {
+        kafka.send(new ProducerRecord<>("page-events", DELAYED, event));
+    }
+
+    /** A share as the page writes it: percent with one decimal (the counts sent avoid halfway cases). */
+    private static String percent(double share) {
+        return String.format(Locale.ROOT, "%.1f%%", 100 * share);
     }
 
     private static String get(String path) throws IOException, InterruptedException {

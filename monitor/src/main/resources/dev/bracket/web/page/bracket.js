@@ -1,7 +1,8 @@
 // Polls the JSON API. Per study (a collapsible section, fetched only while open): alerts firing
-// now and recent transitions with their evidence; per window its start and end, a "zero view"
-// with every assumption set on one shared axis, a table with each assumption's meaning and the
-// strata, and one history chart per assumption set.
+// now and recent transitions with their evidence; per window its start and end, the arms' units
+// (exposed, with an outcome, pending, lost to follow-up, outcomes beyond exposures), a "zero view"
+// with every assumption set on one shared axis, a table with each assumption's meaning, what it
+// assumes about pending outcomes and the strata, and one history chart per assumption set.
 "use strict";
 
 const charts = new Map();   // "study|window|assumptions|bands" -> uPlot instance
@@ -244,6 +245,62 @@ function legend() {
   return p;
 }
 
+// ---- the arms: who has entered, whose outcome has arrived -------------------------------------
+
+// An arm's units: its exposures, or its outcomes where more outcomes than exposures arrived.
+function units(arm) {
+  return Math.max(arm.n, arm.exposed);
+}
+
+function percent(share) {
+  return share === null || share === undefined ? "–" : (100 * share).toFixed(1) + "%";
+}
+
+// A count with its share of the arm's units; the share in data-share, as the JSON gives it.
+function shareCell(count, share) {
+  const td = el("td", {"data-share": share === null ? "" : String(share)});
+  td.appendChild(el("span", {class: "share"}, percent(share)));
+  td.appendChild(el("span", {class: "count"}, " (" + count + ")"));
+  return td;
+}
+
+// Without exposure events only the note is shown: nothing is known about units still waiting.
+// Lost to follow-up is counted only in the cumulative window of a study with a follow-up horizon.
+function armsBlock(report, lost) {
+  const box = el("div", {class: "arms-box"});
+  const arms = report.arms;
+  if (arms.exposuresReported) {
+    const excess = arms.treated.excessOutcomes > 0 || arms.control.excessOutcomes > 0;
+    const t = el("table", {class: "arms"});
+    const head = el("tr");
+    ["arm", "exposed", "with outcome", "pending"].concat(lost ? ["lost to follow-up"] : [], excess ? ["outcomes beyond exposures"] : [])
+        .forEach((h, i) => head.appendChild(el("th", {class: i === 0 ? "text" : ""}, h)));
+    t.appendChild(head);
+    [["treated", "treated"], ["control", "untreated"]].forEach(([key, name]) => {
+      const a = arms[key];
+      const tr = el("tr", {"data-arm": key});
+      tr.appendChild(el("td", {class: "text"}, name));
+      tr.appendChild(el("td", {class: "exposed"}, String(a.exposed)));
+      tr.appendChild(el("td", {class: "observed"}, String(a.n)));
+      tr.appendChild(shareCell(a.pending, a.pendingShare)).classList.add("pending");
+      if (lost) tr.appendChild(shareCell(lost[key], lost[key + "Share"])).classList.add("lost");
+      if (excess) tr.appendChild(el("td", {class: "excess" + (a.excessOutcomes > 0 ? " found" : "")}, String(a.excessOutcomes)));
+      t.appendChild(tr);
+    });
+    box.appendChild(t);
+    if (excess) {
+      box.appendChild(el("p", {class: "note excess-note"}, "More outcomes arrived than units were reported exposed: " +
+          "a data-quality finding. Such an arm counts its outcomes as its units; check that every unit's exposure is sent."));
+    }
+    if (lost) {
+      box.appendChild(el("p", {class: "note"}, "Lost to follow-up: still pending " + lost.horizon.replace(/^PT/, "").toLowerCase() +
+          " after exposure; their outcomes stay anywhere in the outcome range."));
+    }
+  }
+  box.appendChild(el("p", {class: "note pending-note" + (arms.exposuresReported ? "" : " none")}, arms.pendingNote));
+  return box;
+}
+
 // ---- the table ----------------------------------------------------------------------------
 
 // A refuted row carries no bands (no interval to put them around): its cells say so.
@@ -251,6 +308,13 @@ function bandCell(row, kind) {
   const b = (row.bands || []).find(x => x.method === kind.method && x.level === kind.level);
   if (!b) return el("td", {}, row.status === "refuted" ? "none: refuted" : "–");
   return el("td", {class: "sign-" + b.sign}, b.status !== "bounded" ? b.status : "[" + fmt(b.lower) + ", " + fmt(b.upper) + "]");
+}
+
+// What a row assumes about outcomes not yet reported, in words.
+function pendingLine(row, outcome) {
+  return row.pendingOutcomes === "missing-at-random"
+      ? el("div", {class: "pending-row mar"}, "pending outcomes: like the reported ones in the same arm (missing-at-random)")
+      : el("div", {class: "pending-row"}, "pending outcomes: anywhere in [" + outcome.min + ", " + outcome.max + "]");
 }
 
 function signText(row) {
@@ -270,10 +334,11 @@ function table(report) {
       .forEach(([h, c]) => head.appendChild(el("th", {class: c}, h)));
   t.appendChild(head);
   report.bounds.forEach(row => {
-    const tr = el("tr", {"data-assumptions": row.assumptions.join(JOIN)});
+    const tr = el("tr", {"data-assumptions": row.assumptions.join(JOIN), "data-pending": row.pendingOutcomes});
     const set = el("td", {class: "text"});
     set.appendChild(el("div", {class: "set"}, row.assumptions.join(JOIN)));
     set.appendChild(el("div", {class: "meaning"}, row.meaning));
+    if (report.arms.exposuresReported) set.appendChild(pendingLine(row, report.outcome));
     tr.appendChild(set);
     tr.appendChild(el("td", {class: "text"}, row.status));
     tr.appendChild(el("td", {}, row.status === "bounded" ? "[" + fmt(row.lower) + ", " + fmt(row.upper) + "]" : "–"));
@@ -381,16 +446,19 @@ async function drawStudy(box, study, alerts) {
       ws = el("section", {id: wid, class: "window"});
       ws.appendChild(el("h3"));
       ws.appendChild(el("p", {class: "window-times"}));
+      ws.appendChild(el("div", {class: "arms-holder"}));
       ws.appendChild(el("div", {class: "zero-box"}));
       ws.appendChild(legend());
       ws.appendChild(el("div", {class: "table-box"}));
       ws.appendChild(el("div", {class: "charts"}));
       windows.appendChild(ws);
     }
-    const c = w.counts;
-    ws.querySelector("h3").textContent = "Window " + w.window + ": " + c.total + " units (" + c.treated + " treated, " +
-        c.control + " untreated" + (c.strata > 1 ? ", " + c.strata + " strata" : "") + ")";
+    const c = w.counts, arms = w.report.arms;
+    ws.querySelector("h3").textContent = "Window " + w.window + ": " + c.total + " units (" + units(arms.treated) + " treated, " +
+        units(arms.control) + " untreated" + (c.strata > 1 ? ", " + c.strata + " strata" : "") + ")" +
+        (c.pending > 0 ? ", " + c.pending + " awaiting their outcome" : "");
     ws.querySelector(".window-times").textContent = windowTimes(w);
+    ws.querySelector(".arms-holder").replaceChildren(armsBlock(w.report, w.lostToFollowUp));
     ws.querySelector(".zero-box").replaceChildren(zeroView(w.report));
     ws.querySelector(".table-box").replaceChildren(table(w.report));
     const holder = ws.querySelector(".charts");
