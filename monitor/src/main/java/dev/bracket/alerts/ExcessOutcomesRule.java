@@ -1,11 +1,9 @@
 package dev.bracket.alerts;
 
-import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
-import dev.bracket.bounds.IdentifiedInterval;
+import dev.bracket.bounds.ObservedArms;
 
 import java.util.Locale;
-import java.util.Map;
 
 /**
  * Fires when, in either arm, more outcomes arrived than units were reported exposed, beyond
@@ -18,10 +16,10 @@ import java.util.Map;
  * @param clearShareBelow a firing alert resolves at once when both shares fall to {@code maxShare - clearShareBelow}
  *                        or below; 0 disables the margin
  */
-public record ExcessOutcomesRule(double maxShare, double clearShareBelow) implements RowRule {
+public record ExcessOutcomesRule(double maxShare, double clearShareBelow) implements ArmShareRule {
 
     public ExcessOutcomesRule {
-        ArmShareLimit.check(AlertRule.EXCESS_OUTCOMES, maxShare, clearShareBelow);
+        ArmShareRule.check(AlertRule.EXCESS_OUTCOMES, maxShare, clearShareBelow);
     }
 
     @Override
@@ -29,29 +27,19 @@ public record ExcessOutcomesRule(double maxShare, double clearShareBelow) implem
         return AlertRule.EXCESS_OUTCOMES;
     }
 
-    /** The interval and band alone do not show the arms' counts. */
+    /** Outcomes beyond the exposures as a share of the arm's outcomes. */
     @Override
-    public Verdict judge(IdentifiedInterval interval, ConfidenceBand band) {
-        return Verdict.unknown("excess outcomes need the arms' counts");
-    }
-
-    @Override
-    public Verdict judge(BoundSnapshot snapshot, ConfidenceBand band) {
-        ArmStatistics treated = snapshot.arms().treated();
-        ArmStatistics control = snapshot.arms().control();
-        String seen = String.format(Locale.ROOT, "outcomes beyond the reported exposures: %d of %d treated (%d exposed)"
-                        + " and %d of %d control (%d exposed), limit %s of an arm's outcomes",
-                treated.excessOutcomes(), treated.count(), treated.exposed(),
-                control.excessOutcomes(), control.count(), control.exposed(), AlertText.num(maxShare));
-        return ArmShareLimit.judge(share(treated), share(control), maxShare, clearShareBelow, seen);
-    }
-
-    private static double share(ArmStatistics arm) {
+    public double share(ArmStatistics arm) {
         return arm.count() == 0 ? 0 : (double) arm.excessOutcomes() / arm.count();
     }
 
     @Override
-    public Map<String, Double> limits() {
-        return ArmShareLimit.limits(maxShare, clearShareBelow);
+    public String seen(ObservedArms arms) {
+        ArmStatistics treated = arms.treated();
+        ArmStatistics control = arms.control();
+        return String.format(Locale.ROOT, "outcomes beyond the reported exposures: %d of %d treated (%d exposed)"
+                        + " and %d of %d control (%d exposed), limit %s of an arm's outcomes",
+                treated.excessOutcomes(), treated.count(), treated.exposed(),
+                control.excessOutcomes(), control.count(), control.exposed(), AlertText.num(maxShare));
     }
 }

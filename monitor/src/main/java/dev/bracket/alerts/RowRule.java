@@ -10,8 +10,7 @@ import java.util.Map;
  * a confidence band. Implementations are pure functions of their settings and the two inputs.
  */
 public sealed interface RowRule
-        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule, PendingShareRule,
-        ExcessOutcomesRule {
+        permits SignIdentifiedRule, IntervalNarrowRule, PracticalEquivalenceRule, AssumptionsRefutedRule, ArmShareRule {
 
     AlertRule rule();
 

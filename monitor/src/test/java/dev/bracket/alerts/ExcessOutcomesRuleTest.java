@@ -75,7 +75,7 @@ class ExcessOutcomesRuleTest {
     }
 
     @Test
-    @DisplayName("reads from the configuration with max-share 0 by default; bad limits name the rule")
+    @DisplayName("both rules on the arms' counts read from the configuration (excess max-share 0 by default); bad limits name the rule")
     void configured() {
         String yaml = """
                 studies:
@@ -83,10 +83,13 @@ class ExcessOutcomesRuleTest {
                     outcome: {min: 0, max: 1}
                     alerts:
                       rules:
+                        pending-share: {max-share: 0.3}
                         excess-outcomes: {}
                 """;
         assertThat(BracketConfig.parse("a.yaml", yaml).studies().get(0).alerts().rowRules())
-                .containsExactly(new ExcessOutcomesRule(0, 0));
+                .containsExactly(new PendingShareRule(0.3, 0), new ExcessOutcomesRule(0, 0));
+        assertThatThrownBy(() -> BracketConfig.parse("a.yaml", yaml.replace("0.3", "1.5")))
+                .hasMessageContaining("pending-share max-share");
         assertThatThrownBy(() -> BracketConfig.parse("a.yaml", yaml.replace("{}", "{max-share: 0.1, clear-share-below: 0.2}")))
                 .hasMessageContaining("excess-outcomes clear-share-below");
     }

@@ -7,7 +7,6 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundCalculator;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
-import dev.bracket.config.BracketConfig;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
 
@@ -15,7 +14,6 @@ import java.time.Instant;
 import java.util.List;
 
 import static org.assertj.core.api.Assertions.assertThat;
-import static org.assertj.core.api.Assertions.assertThatThrownBy;
 
 /** The pending-share rule: counts of exposed units without an outcome against a configured limit. */
 class PendingShareRuleTest {
@@ -48,22 +46,5 @@ class PendingShareRuleTest {
         // Without exposures nothing is pending: 0 <= 0.15, cleared.
         BoundSnapshot none = snapshot(new ObservedArms(ArmStatistics.of(1, 0), ArmStatistics.of(0, 1)));
         assertThat(rule.judge(none, none.bands().get(0)).outcome()).isEqualTo(Verdict.Outcome.CLEAR);
-    }
-
-    @Test
-    @DisplayName("reads from the configuration; bad limits name the rule")
-    void configured() {
-        String yaml = """
-                studies:
-                  - id: registry
-                    outcome: {min: 0, max: 1}
-                    alerts:
-                      rules:
-                        pending-share: {max-share: 0.3}
-                """;
-        assertThat(BracketConfig.parse("a.yaml", yaml).studies().get(0).alerts().rowRules())
-                .containsExactly(new PendingShareRule(0.3, 0));
-        assertThatThrownBy(() -> BracketConfig.parse("a.yaml", yaml.replace("0.3", "1.5")))
-                .hasMessageContaining("pending-share max-share");
     }
 }
