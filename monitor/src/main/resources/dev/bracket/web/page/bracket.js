@@ -256,6 +256,13 @@ function percent(share) {
   return share === null || share === undefined ? "–" : (100 * share).toFixed(1) + "%";
 }
 
+// An ISO-8601 duration as the configuration writes it: PT720H -> 30d, PT1H30M -> 1h30m.
+function horizonText(iso) {
+  const hours = /^PT(\d+)H$/.exec(iso);
+  if (hours && hours[1] % 24 === 0) return hours[1] / 24 + "d";
+  return iso.replace(/^PT/, "").toLowerCase();
+}
+
 // A count with its share of the arm's units; the share in data-share, as the JSON gives it.
 function shareCell(count, share) {
   const td = el("td", {"data-share": share === null ? "" : String(share)});
@@ -293,7 +300,7 @@ function armsBlock(report, lost) {
           "a data-quality finding. Such an arm counts its outcomes as its units; check that every unit's exposure is sent."));
     }
     if (lost) {
-      box.appendChild(el("p", {class: "note"}, "Lost to follow-up: still pending " + lost.horizon.replace(/^PT/, "").toLowerCase() +
+      box.appendChild(el("p", {class: "note"}, "Lost to follow-up: still pending " + horizonText(lost.horizon) +
           " after exposure; their outcomes stay anywhere in the outcome range."));
     }
   }
