@@ -1,5 +1,7 @@
 package dev.bracket.bands;
 
+import dev.bracket.bounds.ArmMeanRange;
+import dev.bracket.bounds.ArmStatistics;
 import dev.bracket.bounds.Assumption;
 import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
@@ -15,6 +17,7 @@ import java.util.List;
 import java.util.Locale;
 import java.util.Map;
 import java.util.Optional;
+import java.util.OptionalDouble;
 import java.util.concurrent.ConcurrentHashMap;
 
 /**
@@ -25,7 +28,7 @@ import java.util.concurrent.ConcurrentHashMap;
  *
  * <p>Every sequence is an {@link EmpiricalBernsteinBoundary} (Howard, Ramdas, McAuliffe &amp;
  * Sekhon 2021, Ann. Statist. 49(2), Thm 4, with Fan et al.'s 2015 inequality): finite-sample
- * valid for any law in the declared range, and as narrow as the data's spread allows. Two
+ * valid for any law in the declared range, and as narrow as the data's spread allows. Three
  * constructions:
  * <ol>
  *   <li>One sequence per end. When each end is the mean of a per-unit quantity
@@ -34,13 +37,22 @@ import java.util.concurrent.ConcurrentHashMap;
  *       an upper bound for the upper end's, each at error {@code alpha / 2}, on all units pooled.
  *       Pooling is exact for strata: the quantity is the same in every stratum, so its pooled
  *       mean is the population-share-weighted sum of the stratum ends.</li>
+ *   <li>Otherwise, without instrument levels, each end on its own at error {@code alpha / 2}
+ *       ({@link EndRoute}), when at least one end gains by it: an end of the form
+ *       {@code E[q] + c1 mu1 + c0 mu0} ({@link EndQuantities.Form}; one stratum) gets a one-sided
+ *       bound on each present piece, its error split evenly over them (monotone selection's
+ *       {@code mu1 - mu0}: one bound per arm mean at {@code alpha / 4}); any other end is
+ *       extremised over boxes that reach from one-sided bounds on the arm means to the range
+ *       ends, with a two-sided interval for the treated share only if the end moves with it, and
+ *       for the stratum shares (Bonferroni over these bounds' tails). "Refuted" when some end's
+ *       boxes leave no point the assumptions allow.</li>
  *   <li>Otherwise a box per cell (stratum × instrument level): two-sided sequences for the
  *       treated share and each arm's mean, and one per stratum share when there are several
  *       strata, each at error {@code alpha / (3 K + S)} for K cells and S shares (Bonferroni);
  *       {@link BoxProjection} turns the boxes into the band, and says "refuted" when no point
  *       of some box is compatible with the assumptions.</li>
  * </ol>
- * In both cases, if every sequence holds its truth, the band holds the identified set, so the
+ * In every case, if every sequence holds its truth, the band holds the identified set, so the
  * chance that it ever misses is at most {@code 1 - level}.
  *
  * <p>Inputs are each arm's count, mean and sum of squared deviations (M2): statistics that merge
@@ -54,11 +66,12 @@ import java.util.concurrent.ConcurrentHashMap;
  * 95(449)). In route 1 an end is linear in every unit's outcome, so its extreme over the pending
  * outcomes puts each pending unit at the range end where that end's quantity is smallest (lower
  * end) or largest (upper end); that unit's quantity is then a known bounded number and the
- * sequence runs over all units ({@link EndQuantities.PerUnit#filled}). In route 2 each arm's box
- * runs from the low end of its arm-mean range (pending units at a) to the high end (at b), each a
- * mean of bounded per-unit quantities. Under {@code missing-at-random} a pending unit's quantity
- * is not known at all, so pending outcomes then take route 2, whose arm boxes come from the
- * observed outcomes alone and the treated share from all units.
+ * sequence runs over all units ({@link EndQuantities.PerUnit#filled}); route 2's per-unit pieces
+ * likewise. In routes 2 and 3 each arm's mean bound or box runs from the low end of its arm-mean
+ * range (pending units at a) to the high end (at b), each a mean of bounded per-unit quantities.
+ * Under {@code missing-at-random} a pending unit's quantity is not known at all, so pending
+ * outcomes then rule out per-unit quantities (route 2 keeps ends made of arm means alone), and
+ * the arm means come from the observed outcomes alone and the treated share from all units.
  *
  * <p>Thread-safe; its results depend on its settings only (it keeps what it built for earlier bands:
  * boundaries, descriptions and the last study's cell boxes, the latter also keyed on whether the
@@ -80,6 +93,9 @@ public final class AnytimeBand {
     /** Box boundaries and descriptions by number of sequences (times two, plus one with stratum shares): built once, not per band. */
     private final Map<Integer, EmpiricalBernsteinBoundary> boxBoundaries = new ConcurrentHashMap<>();
     private final Map<Integer, String> boxBases = new ConcurrentHashMap<>();
+    /** Route 2's boundaries by number of one-sided bounds per end, and its descriptions by shape. */
+    private final Map<Integer, EmpiricalBernsteinBoundary> tailBoundaries = new ConcurrentHashMap<>();
+    private final Map<List<Object>, String> separateBases = new ConcurrentHashMap<>();
     private volatile CellBoxes lastBoxes;
 
     /** Bands by settings: building one costs more than a band, and the settings rarely change. */
@@ -144,11 +160,15 @@ public final class AnytimeBand {
     /** The same, given the study's estimated interval (to spare computing it again). */
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
         boolean levels = cells.byStratum().values().stream().anyMatch(l -> l.size() > 1);
-        Optional<EndQuantities> ends = levels || unknownPendingQuantities(cells, assumptions)
-                ? Optional.empty() : EndQuantities.of(range, assumptions);
+        boolean known = !unknownPendingQuantities(cells, assumptions);
+        Optional<EndQuantities> ends = levels || !known ? Optional.empty() : EndQuantities.of(range, assumptions);
         int shares = BoxProjection.shareCount(cells);
+        EndRoute lowerRoute = levels || ends.isPresent() ? null : EndRoute.of(range, assumptions, false, known, shares == 0);
+        EndRoute upperRoute = lowerRoute == null ? null : EndRoute.of(range, assumptions, true, known, shares == 0);
+        boolean separate = lowerRoute != null && (lowerRoute.separate() || upperRoute.separate());
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
+                : separate ? separateBasis(cells, lowerRoute, upperRoute)
                 : sequences == 3 ? singleCellBoxBasis
                 : boxBases.computeIfAbsent(2 * sequences + (shares > 0 ? 1 : 0), k -> basis(false, shares > 0, sequences));
         // A stratum seen in one arm only has no box for its missing arm: no band until both arms are seen.
@@ -157,6 +177,9 @@ public final class AnytimeBand {
         }
         if (ends.isPresent()) {
             return perEnd(cells, range, ends.get(), basis);
+        }
+        if (separate) {
+            return separately(cells, range, assumptions, lowerRoute, upperRoute, basis);
         }
         EmpiricalBernsteinBoundary boundary = sequences == 3 ? singleCellBox : boxBoundaries.computeIfAbsent(sequences, this::boxBoundary);
         CellBoxes boxes = lastBoxes;
@@ -172,8 +195,18 @@ public final class AnytimeBand {
 
     /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
     public ConfidenceBand ofCell(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
-        Optional<EndQuantities> ends = unknownPendingQuantities(StudyCells.single(arms), assumptions)
-                ? Optional.empty() : EndQuantities.of(range, assumptions);
+        boolean known = !unknownPendingQuantities(StudyCells.single(arms), assumptions);
+        Optional<EndQuantities> ends = known ? EndQuantities.of(range, assumptions) : Optional.empty();
+        if (ends.isEmpty()) {
+            EndRoute lowerRoute = EndRoute.of(range, assumptions, false, known, true);
+            EndRoute upperRoute = EndRoute.of(range, assumptions, true, known, true);
+            if (lowerRoute.separate() || upperRoute.separate()) {
+                StudyCells cell = StudyCells.single(arms);
+                String basis = separateBasis(cell, lowerRoute, upperRoute);
+                return arms.hasEmptyArm() ? ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis)
+                        : separately(cell, range, assumptions, lowerRoute, upperRoute, basis);
+            }
+        }
         String basis = ends.isPresent() ? perEndBasis : singleCellBoxBasis;
         if (arms.hasEmptyArm()) {
             return ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis);
@@ -181,10 +214,10 @@ public final class AnytimeBand {
         if (ends.isPresent()) {
             return perEnd(StudyCells.single(arms), range, ends.get(), basis);
         }
-        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBox), range, assumptions), basis);
+        return band(BoxProjection.cell(box(arms, range, assumptions, singleCellBox, true), range, assumptions), basis);
     }
 
-    /** Missing-at-random with pending outcomes: a pending unit's per-unit quantity is unknown (route 2). */
+    /** Missing-at-random with pending outcomes: a pending unit's per-unit quantity is unknown (no per-unit quantities). */
     private static boolean unknownPendingQuantities(StudyCells cells, AssumptionSet assumptions) {
         return assumptions.contains(Assumption.MISSING_AT_RANDOM) && cells.hasPending();
     }
@@ -194,13 +227,100 @@ public final class AnytimeBand {
      * each cell's pending units filled in at that end's extreme before pooling.
      */
     private ConfidenceBand perEnd(StudyCells cells, OutcomeRange range, EndQuantities ends, String basis) {
-        EndQuantities.Summary lo = ends.lower().over(filled(cells, ends.lower(), range, false), range, variance);
-        EndQuantities.Summary hi = ends.upper().over(filled(cells, ends.upper(), range, true), range, variance);
-        double loMin = ends.lower().min(range);
-        double hiMax = ends.upper().max(range);
-        double lower = lo.mean() - perEnd.radius(lo.count(), lo.m2(), ends.lower().max(range) - loMin, lo.mean() - loMin);
-        double upper = hi.mean() + perEnd.radius(hi.count(), hi.m2(), hiMax - ends.upper().min(range), hiMax - hi.mean());
+        double lower = quantityEnd(cells, range, ends.lower(), false, perEnd);
+        double upper = quantityEnd(cells, range, ends.upper(), true, perEnd);
         return ConfidenceBand.of(BandMethod.ANYTIME, level, lower, Math.max(lower, upper), basis);
+    }
+
+    /** A one-sided bound on the mean of a per-unit quantity over the pooled units (route 1: at {@code alpha / 2}). */
+    private double quantityEnd(StudyCells cells, OutcomeRange range, EndQuantities.PerUnit quantity, boolean upper,
+                               EmpiricalBernsteinBoundary boundary) {
+        EndQuantities.Summary s = quantity.over(filled(cells, quantity, range, upper), range, variance);
+        double min = quantity.min(range);
+        double max = quantity.max(range);
+        return upper ? s.mean() + boundary.radius(s.count(), s.m2(), max - min, max - s.mean())
+                : s.mean() - boundary.radius(s.count(), s.m2(), max - min, s.mean() - min);
+    }
+
+    /**
+     * An end of {@link EndQuantities.Form} {@code E[q] + c1 mu1 + c0 mu0} (one stratum): a
+     * one-sided bound on each present piece in the direction that moves the end outward, the
+     * error {@code alpha / 2} split evenly over the pieces. With pending outcomes q is filled in
+     * at its extreme and each arm mean bound starts from its {@link ArmMeanRange} end; taking
+     * each piece's extreme separately can only widen the band.
+     */
+    private double formEnd(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, EndQuantities.Form form, boolean upper) {
+        int pieces = (form.quantityIsZero() ? 0 : 1) + form.treatedMean() - form.controlMean();
+        EmpiricalBernsteinBoundary boundary = pieces <= 1 ? perEnd : tailBoundary(pieces);
+        double value = form.quantityIsZero() ? 0 : quantityEnd(cells, range, form.quantity(), upper, boundary);
+        ObservedArms arms = cells.pooled();
+        if (form.treatedMean() != 0) {
+            value += meanBound(arms.treated(), range, assumptions, boundary, upper);
+        }
+        if (form.controlMean() != 0) {
+            value -= meanBound(arms.control(), range, assumptions, boundary, !upper);
+        }
+        return value;
+    }
+
+    /** A one-sided bound on an arm's mean over all its units: above the high end of its mean range, or below the low end. */
+    private double meanBound(ArmStatistics arm, OutcomeRange range, AssumptionSet assumptions, EmpiricalBernsteinBoundary boundary,
+                             boolean high) {
+        ArmMeanRange means = ArmMeanRange.of(arm, range, assumptions);
+        ArmStatistics end = high ? means.high() : means.low();
+        double radius = boundary.radius(end.count(), variance.m2(end, range), range.width(),
+                high ? range.max() - end.mean() : end.mean() - range.min());
+        return high ? end.mean() + radius : end.mean() - radius;
+    }
+
+    private EmpiricalBernsteinBoundary tailBoundary(int tails) {
+        return tailBoundaries.computeIfAbsent(tails, t -> new EmpiricalBernsteinBoundary((1 - level) / 2 / t, plannedCount));
+    }
+
+    /**
+     * Route 2: each end on its own at error {@code alpha / 2}, from its per-unit quantity or from
+     * one-sided boxes ({@link EndRoute}); "refuted" when either end's boxes leave no point the
+     * assumptions allow.
+     */
+    private ConfidenceBand separately(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
+                                      EndRoute lowerRoute, EndRoute upperRoute, String basis) {
+        OptionalDouble lower = end(cells, range, assumptions, lowerRoute, false);
+        OptionalDouble upper = end(cells, range, assumptions, upperRoute, true);
+        if (lower.isEmpty() || upper.isEmpty()) {
+            return ConfidenceBand.refuted(BandMethod.ANYTIME, level, basis);
+        }
+        return ConfidenceBand.of(BandMethod.ANYTIME, level, lower.getAsDouble(),
+                Math.max(lower.getAsDouble(), upper.getAsDouble()), basis);
+    }
+
+    /**
+     * One end of route 2. Without a per-unit quantity: every cell's box reaches from the arm means'
+     * one-sided bounds (lower end: mu1 at least its bound, mu0 at most its bound; the upper end
+     * the other way) to the range ends, with a two-sided interval for p only if the end moves with
+     * it, plus the stratum shares; the error {@code alpha / 2} is split evenly over these bounds'
+     * tails (Bonferroni). Since the end is monotone in the means, the far sides cost nothing.
+     */
+    private OptionalDouble end(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, EndRoute route, boolean upper) {
+        if (route.form().isPresent()) {
+            return OptionalDouble.of(formEnd(cells, range, assumptions, route.form().get(), upper));
+        }
+        EmpiricalBernsteinBoundary tail = tailBoundary(tails(cells, route));
+        Optional<BoxProjection.Ends> ends = BoxProjection.study(cells, range, assumptions,
+                arms -> oneSided(box(arms, range, assumptions, tail, route.movesWithShare()), range, upper),
+                (units, all) -> share(units, all, tail));
+        return ends.map(e -> OptionalDouble.of(upper ? e.upper() : e.lower())).orElseGet(OptionalDouble::empty);
+    }
+
+    /** One-sided bounds spent by one end of route 2: one per arm mean, two for p if needed, two per stratum share. */
+    private static int tails(StudyCells cells, EndRoute route) {
+        return Math.max(1, BoxProjection.cellCount(cells)) * (route.movesWithShare() ? 4 : 2) + 2 * BoxProjection.shareCount(cells);
+    }
+
+    /** The box stretched to the range ends on the side where the end does not move outward. */
+    private static ObservablesBox oneSided(ObservablesBox box, OutcomeRange range, boolean upper) {
+        return upper
+                ? new ObservablesBox(box.pLow(), box.pHigh(), range.min(), box.mu1High(), box.mu0Low(), range.max())
+                : new ObservablesBox(box.pLow(), box.pHigh(), box.mu1Low(), range.max(), range.min(), box.mu0High());
     }
 
     /**
@@ -219,7 +339,7 @@ public final class AnytimeBand {
         for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
             for (ObservedArms arms : levels.values()) {
                 if (arms.total() > 0) { // the projection skips cells without units
-                    out.put(arms, box(arms, range, assumptions, boundary));
+                    out.put(arms, box(arms, range, assumptions, boundary, true));
                 }
             }
         }
@@ -231,11 +351,15 @@ public final class AnytimeBand {
         return new EmpiricalBernsteinBoundary((1 - level) / (2.0 * sequences), plannedCount);
     }
 
-    /** The cell's box: sequences for p (treated indicators, all units) and for the ends of each arm's mean range. */
-    private ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, EmpiricalBernsteinBoundary boundary) {
+    /**
+     * The cell's box: sequences for p (treated indicators, all units; p at its estimate when
+     * {@code withShare} is false) and for the ends of each arm's mean range.
+     */
+    private ObservablesBox box(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions, EmpiricalBernsteinBoundary boundary,
+                               boolean withShare) {
         long n = arms.total();
         double width = range.width();
-        double pRadius = boundary.radius(n, (double) arms.treated().units() * arms.control().units() / n, 1, 1);
+        double pRadius = withShare ? boundary.radius(n, (double) arms.treated().units() * arms.control().units() / n, 1, 1) : 0;
         return ObservablesBox.of(arms, range, assumptions, arms.treatedShare(), pRadius,
                 arm -> boundary.radius(arm.count(), variance.m2(arm, range), width, width));
     }
@@ -256,6 +380,30 @@ public final class AnytimeBand {
     private ConfidenceBand band(Optional<BoxProjection.Ends> ends, String basis) {
         return ends.map(e -> ConfidenceBand.of(BandMethod.ANYTIME, level, e.lower(), e.upper(), basis))
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.ANYTIME, level, basis));
+    }
+
+    private String separateBasis(StudyCells cells, EndRoute lowerRoute, EndRoute upperRoute) {
+        List<Object> shape = List.of(lowerRoute, upperRoute, BoxProjection.cellCount(cells), BoxProjection.shareCount(cells));
+        return separateBases.computeIfAbsent(shape, k -> String.format(Locale.ROOT,
+                "time-uniform empirical-Bernstein confidence sequences (Howard et al. 2021), each end of the interval on its own "
+                        + "at half the error: %s; %s; from counts, means, %s and the declared range; tuned for %d observations",
+                endText("lower", lowerRoute, cells), endText("upper", upperRoute, cells),
+                variance == VarianceBasis.SAMPLE ? "observed spreads" : "the largest spreads the range allows", plannedCount));
+    }
+
+    private static String endText(String which, EndRoute route, StudyCells cells) {
+        if (route.form().isPresent()) {
+            EndQuantities.Form form = route.form().get();
+            int means = form.treatedMean() - form.controlMean();
+            return means == 0 ? "the " + which + " end on its per-unit quantity over all units"
+                    : String.format(Locale.ROOT, "the %s end from one-sided bounds on %s%s", which,
+                    form.quantityIsZero() ? "" : "a per-unit quantity over all units and on ",
+                    means == 2 ? "both arms' means" : form.treatedMean() != 0 ? "the treated arm's mean" : "the control arm's mean");
+        }
+        boolean shares = BoxProjection.shareCount(cells) > 0;
+        return String.format(Locale.ROOT, "the %s end from one-sided bounds on each arm's mean%s in every cell%s (error split over %d bounds)",
+                which, route.movesWithShare() ? " and two-sided ones on the treated share" : "",
+                shares ? " and on the stratum shares" : "", tails(cells, route));
     }
 
     private String basis(boolean perEnd, boolean shares, int sequences) {

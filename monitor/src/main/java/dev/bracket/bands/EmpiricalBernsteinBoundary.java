@@ -40,8 +40,12 @@ package dev.bracket.bands;
  * callers use the Bhatia–Davis bound {@code M2 <= t (mean - lo)(hi - mean)}.
  *
  * <p>Tuning: the weights {@code w_k} fall off as {@code 1 / (1 + |k - k0|)^2} around the grid
- * point {@code k0} that is best for {@code plannedCount} observations of the widest law
- * (variance {@code c^2 / 4}); like any tuning it must be fixed before the data are seen.
+ * point {@code k0} that is best for {@code plannedCount} observations of a law whose standard
+ * deviation is a quarter of the width (variance {@code c^2 / 16}: a typical spread between the
+ * widest law, {@code c^2 / 4}, and concentrated ones; a choice, no source). The best lambda grows
+ * as the spread shrinks, so centring on the widest law put every real law's best point several
+ * grid steps away at a heavy weight penalty; like any tuning it must be fixed before the data
+ * are seen, and any weights summing to one keep the guarantee.
  *
  * <p>Immutable; the thresholds are computed once.
  */
@@ -49,7 +53,7 @@ public final class EmpiricalBernsteinBoundary {
 
     /**
      * Grid points: lambda from 1/2 down by factors of sqrt(2) to about 1e-8, below the best lambda
-     * (about {@code sqrt(8 ln(1/alpha) / n)}) for any count up to 10^15 at alpha down to 1e-6.
+     * (about {@code sqrt(2 ln(1/alpha) c^2 / (n sigma^2))}) for any count up to 10^15 at alpha down to 1e-6.
      */
     private static final int GRID = 48;
 
@@ -136,9 +140,9 @@ public final class EmpiricalBernsteinBoundary {
         return 1 / (gap * gap);
     }
 
-    /** The grid point nearest the best lambda after plannedCount observations of variance c^2/4, roughly sqrt(8 ln(1/alpha) / n). */
+    /** The grid point nearest the best lambda after plannedCount observations of variance c^2/16, roughly sqrt(32 ln(1/alpha) / n). */
     private static int centre(double alpha, long plannedCount) {
-        double best = Math.sqrt(8 * Math.log(1 / alpha) / plannedCount);
+        double best = Math.sqrt(32 * Math.log(1 / alpha) / plannedCount);
         int k = (int) Math.round(2 * Math.log(0.5 / best) / Math.log(2));
         return Math.max(0, Math.min(GRID - 1, k));
     }

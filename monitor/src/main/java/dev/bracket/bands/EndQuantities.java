@@ -104,8 +104,97 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
 
     private static final Affine ZERO = new Affine(0, 0);
 
+    /**
+     * An end written as {@code E[q] + treatedMean * mu1 + controlMean * mu0}: the mean of a
+     * per-unit quantity over all units plus at most one arm mean each, with coefficients in
+     * {@code {0, 1}} and {@code {0, -1}}. Besides the ends of {@link #of} (no arm means) this
+     * covers the ends where a counterfactual mean is bounded by the other arm's mean, once the
+     * products cancel: with {@code m01} bounded by mu0 and {@code m10} by a constant K the end is
+     * {@code p (mu1 - mu0) + (1 - p)(K - mu0) = E[T Y + (1 - T) K] - mu0}; with {@code m01} bounded
+     * by a constant K and {@code m10} by mu1 it is {@code mu1 - E[T K + (1 - T) Y]}; with both by
+     * the other mean it is {@code mu1 - mu0}. Where one bound is the other mean and the other the
+     * own mean ({@code p (mu1 - mu0)} or {@code (1 - p)(mu1 - mu0)}) no such form exists.
+     *
+     * @param quantity    q, possibly zero
+     * @param treatedMean coefficient of mu1, 0 or 1
+     * @param controlMean coefficient of mu0, 0 or -1
+     */
+    record Form(PerUnit quantity, int treatedMean, int controlMean) {
+
+        /** Whether q is zero for every unit (so it needs no sequence). */
+        boolean quantityIsZero() {
+            return quantity.treated().equals(ZERO) && quantity.control().equals(ZERO);
+        }
+
+        /** The value at a point of the observables, for checks against {@link BoundCalculator}. */
+        double at(double p, double mu1, double mu0) {
+            return p * quantity.treated().at(mu1) + (1 - p) * quantity.control().at(mu0) + treatedMean * mu1 + controlMean * mu0;
+        }
+    }
+
+    /** How a bound on a counterfactual mean reads at both probe points. */
+    private enum Kind { OWN, OTHER, CONSTANT, MIXED }
+
+    /**
+     * The {@link Form} of the lower (or upper) end, or empty when it has none or the set is
+     * refutable (see {@link #end}).
+     */
+    static Optional<Form> form(OutcomeRange range, AssumptionSet assumptions, boolean upper) {
+        double low = range.min() + range.width() / 4;
+        double high = range.min() + 3 * range.width() / 4;
+        UnobservedMeans above = assumptions.constrain(range, high, low); // mu1 > mu0
+        UnobservedMeans below = assumptions.constrain(range, low, high); // mu1 < mu0
+        if (above.m10Low() > above.m10High() || above.m01Low() > above.m01High()
+                || below.m10Low() > below.m10High() || below.m01Low() > below.m01High()) {
+            return Optional.empty();
+        }
+        double xAbove = upper ? above.m01Low() : above.m01High();
+        double xBelow = upper ? below.m01Low() : below.m01High();
+        double yAbove = upper ? above.m10High() : above.m10Low();
+        double yBelow = upper ? below.m10High() : below.m10Low();
+        Kind x = kind(xAbove, xBelow, high, low, range); // m01: own mean mu1 (high above), other mu0
+        Kind y = kind(yAbove, yBelow, low, high, range); // m10: own mean mu0 (low above), other mu1
+        if (x == Kind.MIXED || y == Kind.MIXED || (x == Kind.OTHER) != (y == Kind.OTHER) && (x == Kind.OWN || y == Kind.OWN)) {
+            return Optional.empty();
+        }
+        if (x == Kind.OTHER && y == Kind.OTHER) {
+            return Optional.of(new Form(new PerUnit(ZERO, ZERO), 1, -1));
+        }
+        if (x == Kind.OTHER) {
+            return Optional.of(new Form(new PerUnit(new Affine(1, 0), new Affine(0, yAbove)), 0, -1));
+        }
+        if (y == Kind.OTHER) {
+            return Optional.of(new Form(new PerUnit(new Affine(0, -xAbove), new Affine(-1, 0)), 1, 0));
+        }
+        return end(range, assumptions, upper).map(q -> new Form(q, 0, 0));
+    }
+
+    private static Kind kind(double atAbove, double atBelow, double ownAbove, double ownBelow, OutcomeRange range) {
+        if (atAbove == ownAbove && atBelow == ownBelow) {
+            return Kind.OWN;
+        }
+        if (atAbove == ownBelow && atBelow == ownAbove) {
+            return Kind.OTHER;
+        }
+        if (atAbove == atBelow && (atAbove == range.min() || atAbove == range.max())) {
+            return Kind.CONSTANT;
+        }
+        return Kind.MIXED;
+    }
+
     /** The quantities for this set, or empty when an end is not the mean of a per-unit quantity. */
     static Optional<EndQuantities> of(OutcomeRange range, AssumptionSet assumptions) {
+        Optional<PerUnit> lower = end(range, assumptions, false);
+        Optional<PerUnit> upper = end(range, assumptions, true);
+        return lower.isPresent() && upper.isPresent() ? Optional.of(new EndQuantities(lower.get(), upper.get())) : Optional.empty();
+    }
+
+    /**
+     * The quantity whose mean is the lower (or upper) end, or empty when that end is not such a
+     * mean, and always empty for sets the data can refute (their band must be able to say so,
+     * which takes a box of the observables).
+     */
+    static Optional<PerUnit> end(OutcomeRange range, AssumptionSet assumptions, boolean upper) {
         double low = range.min() + range.width() / 4;
         double high = range.min() + 3 * range.width() / 4;
         UnobservedMeans above = assumptions.constrain(range, high, low); // mu1 > mu0
@@ -115,16 +204,15 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
             return Optional.empty(); // refutable: the ends are not smooth in the means
         }
         // treated term p (mu1 - m01) is E[T (Y - K)] for a constant bound K, 0 for the own mean mu1.
-        Optional<Affine> treatedLower = term(above.m01High(), below.m01High(), high, low, range, 1);
-        Optional<Affine> treatedUpper = term(above.m01Low(), below.m01Low(), high, low, range, 1);
+        Optional<Affine> treated = upper
+                ? term(above.m01Low(), below.m01Low(), high, low, range, 1)
+                : term(above.m01High(), below.m01High(), high, low, range, 1);
         // control term (1 - p)(m10 - mu0) is E[(1 - T)(K - Y)] for a constant K, 0 for the own mean mu0.
-        Optional<Affine> controlLower = term(above.m10Low(), below.m10Low(), low, high, range, -1);
-        Optional<Affine> controlUpper = term(above.m10High(), below.m10High(), low, high, range, -1);
-        if (treatedLower.isEmpty() || treatedUpper.isEmpty() || controlLower.isEmpty() || controlUpper.isEmpty()) {
-            return Optional.empty();
-        }
-        return Optional.of(new EndQuantities(new PerUnit(treatedLower.get(), controlLower.get()),
-                new PerUnit(treatedUpper.get(), controlUpper.get())));
+        Optional<Affine> control = upper
+                ? term(above.m10High(), below.m10High(), low, high, range, -1)
+                : term(above.m10Low(), below.m10Low(), low, high, range, -1);
+        return treated.isPresent() && control.isPresent()
+                ? Optional.of(new PerUnit(treated.get(), control.get())) : Optional.empty();
     }
 
     /**

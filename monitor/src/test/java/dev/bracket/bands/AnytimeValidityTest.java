@@ -42,10 +42,15 @@ class AnytimeValidityTest {
     private static final double P = 0.3;
     private static final double MC_ERROR = Math.sqrt(ALPHA * (1 - ALPHA) / STREAMS);
 
-    /** Worst case takes one sequence per end; MTR+MTS takes the box route and can be refuted. */
+    /**
+     * Worst case takes one sequence per end; MTR+MTS bounds each end over one-sided boxes and can
+     * be refuted; MTS bounds its lower end by a per-unit quantity and its upper end, mu1 - mu0, by
+     * one-sided bounds on both arm means.
+     */
     private static final List<AssumptionSet> SETS = List.of(
             AssumptionSet.parse("worst-case"),
-            AssumptionSet.parse("mtr-positive,mts-positive"));
+            AssumptionSet.parse("mtr-positive,mts-positive"),
+            AssumptionSet.parse("mts-positive"));
 
     /** Streams for the positive control: its miss rate is far from alpha, so fewer suffice. */
     private static final int CONTROL_STREAMS = 200;

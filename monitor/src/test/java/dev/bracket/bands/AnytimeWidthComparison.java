@@ -27,6 +27,9 @@ final class AnytimeWidthComparison {
     static final double P = 0.3;
     static final long[] SIZES = {1_000, 10_000, 100_000};
     static final int REPLICATIONS = 10;
+    /** The assumption sets compared: single assumptions of every kind of end, and a refutable combination. */
+    static final List<String> SETS = List.of("worst-case", "mtr-positive", "optimizing-selection", "mts-positive",
+            "mts-negative", "mtr-positive,mts-positive", "sorting-on-gains");
 
     /** A pair of outcome laws for the two arms. */
     record Scenario(String name, OutcomeLaw treated, OutcomeLaw control) {
@@ -59,6 +62,34 @@ final class AnytimeWidthComparison {
         return out;
     }
 
+    /**
+     * Excess width at each of {@link #SIZES} of an ideal variance-adaptive version of the replaced
+     * band, for sets whose ends are means of per-unit quantities: the replaced band's
+     * normal-mixture boundary at {@code alpha / 2} per end, scaled by each end quantity's true
+     * standard deviation (from the laws: {@code Var(T g1(Y) + (1 - T) g0(Y))}) instead of the
+     * range bound 1/2. No band of that boundary shape can beat it without knowing more than the
+     * spread; it shows how much of a target variance adaptation alone can reach.
+     */
+    static double[] knownSpread(Scenario scenario, AssumptionSet assumptions) {
+        NormalMixtureBoundary boundary = NormalMixtureBoundary.tunedFor((1 - LEVEL) / 2, AnytimeBand.DEFAULT_PLANNED_COUNT);
+        double sd = sd(scenario, EndQuantities.end(UNIT, assumptions, false).orElseThrow())
+                + sd(scenario, EndQuantities.end(UNIT, assumptions, true).orElseThrow());
+        double[] out = new double[SIZES.length];
+        for (int i = 0; i < SIZES.length; i++) {
+            out[i] = boundary.radius(SIZES[i]) * sd / Math.sqrt(NormalMixtureBoundary.UNIT_VARIANCE_PROXY);
+        }
+        return out;
+    }
+
+    private static double sd(Scenario s, EndQuantities.PerUnit q) {
+        double t1 = q.treated().at(s.treated().mean());
+        double t0 = q.control().at(s.control().mean());
+        double second = P * (t1 * t1 + q.treated().slope() * q.treated().slope() * s.treated().variance())
+                + (1 - P) * (t0 * t0 + q.control().slope() * q.control().slope() * s.control().variance());
+        double mean = P * t1 + (1 - P) * t0;
+        return Math.sqrt(second - mean * mean);
+    }
+
     /** The box of the replaced band: normal-mixture radii on the rescaled arms. */
     private static ObservablesBox rangeBox(ObservedArms arms, NormalMixtureBoundary boundary) {
         ArmStatistics t = arms.treated();
@@ -69,14 +100,19 @@ final class AnytimeWidthComparison {
 
     public static void main(String[] args) {
         System.out.println("excess width of the anytime 95% band (band width - identified width), mean of "
-                + REPLICATIONS + " streams, treated share " + P);
-        System.out.printf(Locale.ROOT, "%-13s %-26s %8s %10s %10s %8s%n", "outcomes", "assumptions", "n", "before", "after", "less");
+                + REPLICATIONS + " streams, treated share " + P + "; 'known spread': the replaced band's boundary"
+                + " with each end quantity's true spread (see knownSpread), where the ends have per-unit quantities");
+        System.out.printf(Locale.ROOT, "%-13s %-26s %8s %10s %10s %8s %14s%n", "outcomes", "assumptions", "n", "before", "after", "less",
+                "known spread");
         for (Scenario s : List.of(SPREAD, CONCENTRATED)) {
-            for (String set : List.of("worst-case", "mtr-positive", "optimizing-selection", "mts-positive", "mtr-positive,mts-positive")) {
-                double[][] e = excess(s, AssumptionSet.parse(set));
+            for (String set : SETS) {
+                AssumptionSet assumptions = AssumptionSet.parse(set);
+                double[][] e = excess(s, assumptions);
+                double[] ideal = EndQuantities.of(UNIT, assumptions).isPresent() ? knownSpread(s, assumptions) : null;
                 for (int i = 0; i < SIZES.length; i++) {
-                    System.out.printf(Locale.ROOT, "%-13s %-26s %8d %10.4f %10.4f %7.0f%%%n",
-                            s.name(), set, SIZES[i], e[i][0], e[i][1], 100 * (1 - e[i][1] / e[i][0]));
+                    System.out.printf(Locale.ROOT, "%-13s %-26s %8d %10.4f %10.4f %7.0f%% %14s%n",
+                            s.name(), set, SIZES[i], e[i][0], e[i][1], 100 * (1 - e[i][1] / e[i][0]),
+                            ideal == null ? "-" : String.format(Locale.ROOT, "%.4f (%.0f%%)", ideal[i], 100 * (1 - ideal[i] / e[i][0])));
                 }
             }
         }

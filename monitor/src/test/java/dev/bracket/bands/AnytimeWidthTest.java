@@ -7,6 +7,7 @@ import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.ObservedArms;
 import dev.bracket.bounds.OutcomeRange;
 import org.junit.jupiter.api.DisplayName;
+import org.junit.jupiter.api.Test;
 import org.junit.jupiter.params.ParameterizedTest;
 import org.junit.jupiter.params.provider.ValueSource;
 
@@ -26,12 +27,12 @@ class AnytimeWidthTest {
     /**
      * Targets of the change, on the same simulated data: at least 35% less excess width for
      * outcomes spread over the range at n = 10^3, 10^4, 10^5, at least 70% less for concentrated
-     * outcomes at n = 10^4, 10^5. Asserted for the sets that get one sequence per end; the sets
-     * with cross-arm products (monotone selection) keep the box and are printed by
-     * {@link AnytimeWidthComparison#main}.
+     * outcomes at n = 10^4, 10^5; for every set of {@link AnytimeWidthComparison#SETS} but
+     * optimizing selection, whose case follows.
      */
     @ParameterizedTest(name = "{0}")
-    @ValueSource(strings = {"worst-case", "mtr-positive", "mtr-negative"})
+    @ValueSource(strings = {"worst-case", "mtr-positive", "mtr-negative", "mts-positive", "mts-negative",
+            "mtr-positive,mts-positive", "sorting-on-gains", "optimizing-selection"})
     @DisplayName("excess width at least 35% below the range-based band for spread outcomes, 70% for concentrated ones")
     void muchNarrowerThanTheRangeBasedBand(String set) {
         AssumptionSet assumptions = AssumptionSet.parse(set);
@@ -39,15 +40,36 @@ class AnytimeWidthTest {
         double[][] concentrated = AnytimeWidthComparison.excess(AnytimeWidthComparison.CONCENTRATED, assumptions);
         for (int i = 0; i < AnytimeWidthComparison.SIZES.length; i++) {
             long n = AnytimeWidthComparison.SIZES[i];
-            System.out.printf(Locale.ROOT, "%-14s n=%6d excess before/after: spread %.4f / %.4f, concentrated %.4f / %.4f%n",
+            System.out.printf(Locale.ROOT, "%-26s n=%6d excess before/after: spread %.4f / %.4f, concentrated %.4f / %.4f%n",
                     set, n, spread[i][0], spread[i][1], concentrated[i][0], concentrated[i][1]);
             assertTrue(spread[i][1] <= 0.65 * spread[i][0], "spread outcomes at n = " + n);
-            if (n >= 10_000) {
+            if (n >= 10_000 && !set.equals("optimizing-selection")) {
                 assertTrue(concentrated[i][1] <= 0.30 * concentrated[i][0], "concentrated outcomes at n = " + n);
             }
         }
     }
 
+    /**
+     * Optimizing selection's ends, {@code E[T (Y - a)]} and {@code E[(1 - T)(a - Y)]}, vary with
+     * the treatment indicator however concentrated the outcomes are (sd about 0.28 and 0.21 of
+     * the range here), so no variance adaptation takes them to 70% less: the replaced band's own
+     * boundary given each end's true spread ({@link AnytimeWidthComparison#knownSpread}) reaches
+     * only about 60%. The band stays within 15% of that ideal, and the ideal itself stays short
+     * of the 70% target (if the scenario changed so that it did not, this test says so).
+     */
+    @Test
+    void optimizingSelectionWithConcentratedOutcomesIsNearWhatKnowingTheSpreadGives() {
+        AssumptionSet assumptions = AssumptionSet.parse("optimizing-selection");
+        double[][] concentrated = AnytimeWidthComparison.excess(AnytimeWidthComparison.CONCENTRATED, assumptions);
+        double[] ideal = AnytimeWidthComparison.knownSpread(AnytimeWidthComparison.CONCENTRATED, assumptions);
+        for (int i = 1; i < AnytimeWidthComparison.SIZES.length; i++) {
+            long n = AnytimeWidthComparison.SIZES[i];
+            System.out.printf(Locale.ROOT, "optimizing-selection n=%6d concentrated excess before %.4f, after %.4f, known spread %.4f%n",
+                    n, concentrated[i][0], concentrated[i][1], ideal[i]);
+            assertTrue(concentrated[i][1] <= 1.15 * ideal[i], "band within 15% of the known-spread ideal at n = " + n);
+            assertTrue(ideal[i] > 0.30 * concentrated[i][0], "the ideal itself misses 70% less at n = " + n);
+        }
+    }
 
     private static final OutcomeRange UNIT = new OutcomeRange(0, 1);
 

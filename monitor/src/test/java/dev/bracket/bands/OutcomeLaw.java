@@ -8,6 +8,9 @@ interface OutcomeLaw {
 
     double mean();
 
+    /** The law's variance (for the Beta law Commons Math's numerical variance, ab / ((a + b)^2 (a + b + 1))). */
+    double variance();
+
     double draw(RandomGenerator rng);
 
     /** Binary outcomes with success probability m. */
@@ -15,6 +18,10 @@ interface OutcomeLaw {
         return new OutcomeLaw() {
             public double mean() {
                 return m;
+            }
+
+            public double variance() {
+                return m * (1 - m);
             }
 
             public double draw(RandomGenerator rng) {
@@ -35,6 +42,10 @@ interface OutcomeLaw {
 
             public double mean() {
                 return a / (a + b);
+            }
+
+            public double variance() {
+                return new BetaDistribution(a, b).getNumericalVariance();
             }
 
             public double draw(RandomGenerator rng) {

@@ -164,10 +164,18 @@ class StudyBandsCoverageTest {
             return levels ? projectionWidth(strata, n, set, normal(boxError)) : imbensManskiWidth(population, n, set);
         }
         // The band's routing for these sets: a per-unit quantity per end exists for worst case and MTR
-        // without levels, not once MTS bounds a counterfactual by the other arm's mean.
+        // without levels, not once MTS bounds a counterfactual by the other arm's mean (and is refutable).
         boolean perEnd = !levels && !set.contains("mts");
-        return perEnd ? identified + perEndExcess(population, n, set, mixture(ALPHA / 2))
-                : projectionWidth(strata, n, set, mixture(boxError));
+        if (perEnd) {
+            return identified + perEndExcess(population, n, set, mixture(ALPHA / 2));
+        }
+        if (!levels) {
+            // MTR with MTS: each end on its own at alpha / 2 over boxes reaching out on one side; neither
+            // end moves with p, so the error splits over one bound per arm mean and two per stratum share.
+            // The lower end is 0 at every compatible point, so the two-sided projection's width is the same.
+            return projectionWidth(strata, n, set, mixture(ALPHA / 2 / (2 * population.size() + 2 * strata.size())));
+        }
+        return projectionWidth(strata, n, set, mixture(boxError));
     }
 
     /** Two-sided normal radius at error {@code 2 oneSided}: {@code z(1 - oneSided) sd / sqrt(count)}. */
@@ -246,14 +254,14 @@ class StudyBandsCoverageTest {
      * observations in [0, 1] of the given variance (Howard et al. 2021, Thm 4, with Fan et al.'s
      * 2015 {@code psi(lambda) = -ln(1 - lambda) - lambda}), with the mixture the band documents:
      * {@code lambda_k = 2^(-1 - k/2)}, k = 0..47, weights proportional to {@code 1 / (1 + |k - k0|)^2}
-     * around the k0 nearest {@code sqrt(8 ln(1/oneSided) / plannedCount)}. A mean at distance d is
+     * around the k0 nearest {@code sqrt(32 ln(1/oneSided) / plannedCount)} (the best lambda for a law of variance 1/16). A mean at distance d is
      * rejected when {@code lambda d - psi (variance + d^2) >= ln(1 / (oneSided w_k)) / count} for some
      * k; the bound is the smallest such d over k, here with the true variance where the band has
      * the observed one.
      */
     private static BiFunction<Long, Double, Double> mixture(double oneSided) {
         int grid = 48;
-        double best = Math.sqrt(8 * Math.log(1 / oneSided) / AnytimeBand.DEFAULT_PLANNED_COUNT);
+        double best = Math.sqrt(32 * Math.log(1 / oneSided) / AnytimeBand.DEFAULT_PLANNED_COUNT);
         int k0 = Math.max(0, Math.min(grid - 1, (int) Math.round(2 * Math.log(0.5 / best) / Math.log(2))));
         double total = 0;
         for (int k = 0; k < grid; k++) {

@@ -1,6 +1,7 @@
 package dev.bracket.report.render;
 
 import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.node.ArrayNode;
 import dev.bracket.report.PendingOutcomes;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
@@ -22,7 +23,12 @@ import static org.junit.jupiter.api.Assertions.fail;
  * reports of random studies are compared with those written by the implementation before it
  * (commit 6cc2b2a, see {@link ReferenceReports}), field by field. The fields that pending outcomes
  * added later are not in that file; the random studies report no exposures, so those fields must
- * say so ({@link #NO_PENDING}), and every other field must be in the file.
+ * say so ({@link #NO_PENDING}), and every other field must be in the file. The anytime band was
+ * changed on purpose afterwards (each end on its own where that is tighter, the boundary's grid
+ * centred on a typical spread; it can now also refute where it could not, which shows it on a
+ * refuted row), so anytime bands are left out of the comparison; their numbers are the subject of
+ * the band tests ({@code AnytimeWidthTest}, {@code AnytimeValidityTest},
+ * {@code StudyBandsCoverageTest}).
  */
 class ReportNumbersTest {
 
@@ -45,10 +51,14 @@ class ReportNumbersTest {
             JsonNode now = ReportJson.mapper().readTree(ReferenceReports.document(i));
             compare(before, now, "study " + i, numbers);
         }
-        assertTrue(numbers[0] > 2_500, "compared " + numbers[0] + " numbers");
+        assertTrue(numbers[0] > 2_000, "compared " + numbers[0] + " numbers");
     }
 
     private static void compare(JsonNode before, JsonNode now, String path, int[] numbers) {
+        if (path.endsWith(".bands")) {
+            compare(withoutAnytime(before), withoutAnytime(now), path + " (fixed)", numbers);
+            return;
+        }
         if (before.isNumber() && now.isNumber()) {
             double a = before.doubleValue();
             double b = now.doubleValue();
@@ -78,6 +88,17 @@ class ReportNumbersTest {
         } else {
             assertEquals(before, now, path);
         }
+    }
+
+    /** A row's bands without the anytime band. */
+    private static JsonNode withoutAnytime(JsonNode bands) {
+        ArrayNode out = ReportJson.mapper().createArrayNode();
+        bands.forEach(b -> {
+            if (!"anytime".equals(b.path("method").asText())) {
+                out.add(b);
+            }
+        });
+        return out;
     }
 
     /** A field the reference lacks: one pending outcomes added, with its value for no exposures. */
