@@ -45,12 +45,14 @@ class AnytimeValidityTest {
     /**
      * Worst case takes one sequence per end; MTR+MTS bounds each end over one-sided boxes and can
      * be refuted; MTS bounds its lower end by a per-unit quantity and its upper end, mu1 - mu0, by
-     * one-sided bounds on both arm means.
+     * one-sided bounds on both arm means; sorting on gains bounds each end by a per-unit quantity
+     * and one arm mean (e.g. {@code E[T Y + (1 - T) a] - mu0}).
      */
     private static final List<AssumptionSet> SETS = List.of(
             AssumptionSet.parse("worst-case"),
             AssumptionSet.parse("mtr-positive,mts-positive"),
-            AssumptionSet.parse("mts-positive"));
+            AssumptionSet.parse("mts-positive"),
+            AssumptionSet.parse("sorting-on-gains"));
 
     /** Streams for the positive control: its miss rate is far from alpha, so fewer suffice. */
     private static final int CONTROL_STREAMS = 200;
