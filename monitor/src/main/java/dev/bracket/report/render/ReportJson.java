@@ -1,9 +1,11 @@
 package dev.bracket.report.render;
 
 import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.StreamWriteFeature;
 import com.fasterxml.jackson.core.io.SerializedString;
 import com.fasterxml.jackson.core.util.ByteArrayBuilder;
 import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.json.JsonMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import com.fasterxml.jackson.databind.util.TokenBuffer;
 import dev.bracket.bands.ConfidenceBand;
@@ -30,7 +32,12 @@ public final class ReportJson {
     /** Identifies the document layout; bump the number on incompatible changes. */
     public static final String SCHEMA = "bracket.bounds/2";
 
-    private static final ObjectMapper MAPPER = new ObjectMapper();
+    /**
+     * Doubles are written with Jackson's fast writer (Schubfach): the shortest digits that read
+     * back as the same double, so a reader parses exactly the numbers Java's own formatting gave,
+     * at a fraction of the cost (formatting was about a quarter of a publish).
+     */
+    private static final ObjectMapper MAPPER = JsonMapper.builder().enable(StreamWriteFeature.USE_FAST_DOUBLE_WRITER).build();
     private static final Map<String, SerializedString> FIXED_TEXTS = new ConcurrentHashMap<>();
     private static final int MAX_FIXED_TEXTS = 1024;
 
