@@ -80,8 +80,13 @@ final class BoxProjection {
 
     /** Strata with units whose shares need intervals: none when a single stratum has all units. */
     static int shareCount(StudyCells cells) {
-        long strata = cells.byStratum().keySet().stream().filter(s -> cells.pooled(s).total() > 0).count();
-        return strata > 1 ? (int) strata : 0;
+        int strata = 0;
+        for (String s : cells.byStratum().keySet()) {
+            if (cells.pooled(s).total() > 0) {
+                strata++;
+            }
+        }
+        return strata > 1 ? strata : 0;
     }
 
     /** The band of a study from one box per cell and an interval per stratum share; empty when the boxes refute the assumptions. */

@@ -1,5 +1,6 @@
 package dev.bracket.bounds;
 
+import java.util.ArrayList;
 import java.util.Collections;
 import java.util.LinkedHashMap;
 import java.util.List;
@@ -84,8 +85,16 @@ public final class StratifiedBounds {
         if (study.pooled().hasEmptyArm()) {
             return List.of();
         }
-        return study.byStratum().keySet().stream()
-                .filter(s -> study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()).toList();
+        List<String> out = null; // asked for by every band: no list unless some stratum is one-armed
+        for (String s : study.byStratum().keySet()) {
+            if (study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()) {
+                if (out == null) {
+                    out = new ArrayList<>();
+                }
+                out.add(s);
+            }
+        }
+        return out == null ? List.of() : List.copyOf(out);
     }
 
     /**

@@ -3,7 +3,6 @@ package dev.bracket.report.render;
 import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.StreamWriteFeature;
 import com.fasterxml.jackson.core.io.SerializedString;
-import com.fasterxml.jackson.core.util.ByteArrayBuilder;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.json.JsonMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
@@ -17,9 +16,10 @@ import dev.bracket.report.PendingOutcomes;
 import dev.bracket.report.StudyReport;
 
 import java.io.IOException;
+import java.io.OutputStream;
 import java.io.UncheckedIOException;
+import java.util.Arrays;
 import java.util.Map;
-import java.util.TreeMap;
 import java.util.concurrent.ConcurrentHashMap;
 
 /**
@@ -93,13 +93,64 @@ public final class ReportJson {
 
     /** What {@code writing} writes, as UTF-8 bytes. */
     public static byte[] bytes(Writing writing) {
-        ByteArrayBuilder out = new ByteArrayBuilder(8192);
+        // One buffer per thread, reused: only the finished document is a new array.
+        DocumentBuffer kept = BUFFER.get();
+        DocumentBuffer out = kept.inUse ? new DocumentBuffer() : kept; // a document written while writing another
+        out.reset();
+        out.inUse = true;
         try (JsonGenerator g = MAPPER.getFactory().createGenerator(out)) {
             writing.to(g);
         } catch (IOException e) {
             throw new UncheckedIOException("cannot write a report into memory", e);
+        } finally {
+            out.inUse = false;
         }
-        return out.toByteArray();
+        byte[] bytes = out.toByteArray();
+        if (out == kept && out.capacity() > MAX_KEPT_BUFFER) {
+            BUFFER.remove(); // a rare huge document should not pin its buffer
+        }
+        return bytes;
+    }
+
+    private static final ThreadLocal<DocumentBuffer> BUFFER = ThreadLocal.withInitial(DocumentBuffer::new);
+    private static final int MAX_KEPT_BUFFER = 1 << 20;
+
+    /** A byte buffer that can be emptied and refilled; the generator writes to it in large blocks, so plain methods suffice. */
+    private static final class DocumentBuffer extends OutputStream {
+        private byte[] bytes = new byte[16_384];
+        private int length;
+        private boolean inUse;
+
+        void reset() {
+            length = 0;
+        }
+
+        int capacity() {
+            return bytes.length;
+        }
+
+        byte[] toByteArray() {
+            return Arrays.copyOf(bytes, length);
+        }
+
+        @Override
+        public void write(int b) {
+            room(1);
+            bytes[length++] = (byte) b;
+        }
+
+        @Override
+        public void write(byte[] b, int off, int len) {
+            room(len);
+            System.arraycopy(b, off, bytes, length, len);
+            length += len;
+        }
+
+        private void room(int more) {
+            if (length + more > bytes.length) {
+                bytes = Arrays.copyOf(bytes, Math.max(2 * bytes.length, length + more));
+            }
+        }
     }
 
     private static void outcome(JsonGenerator g, OutcomeRange range) throws IOException {
@@ -165,7 +216,7 @@ public final class ReportJson {
         g.writeStringField("sign", row.sign());
         if (!row.perStratum().isEmpty()) {
             g.writeArrayFieldStart("strata");
-            for (Map.Entry<String, IdentifiedInterval> e : new TreeMap<>(row.perStratum()).entrySet()) {
+            for (Map.Entry<String, IdentifiedInterval> e : row.perStratum().entrySet()) {
                 g.writeStartObject();
                 g.writeStringField("stratum", e.getKey());
                 interval(g, e.getValue());
