@@ -194,38 +194,61 @@ public final class ReportJson {
         g.writeEndObject();
     }
 
+    /** Field names written many times per document (every row, band and stratum): encoded once. */
+    private static final SerializedString ASSUMPTIONS = new SerializedString("assumptions");
+    private static final SerializedString MEANING = new SerializedString("meaning");
+    private static final SerializedString PENDING_OUTCOMES = new SerializedString("pendingOutcomes");
+    private static final SerializedString INSTRUMENT = new SerializedString("instrument");
+    private static final SerializedString SIGN = new SerializedString("sign");
+    private static final SerializedString STRATA = new SerializedString("strata");
+    private static final SerializedString STRATUM = new SerializedString("stratum");
+    private static final SerializedString BANDS = new SerializedString("bands");
+    private static final SerializedString METHOD = new SerializedString("method");
+    private static final SerializedString LEVEL = new SerializedString("level");
+    private static final SerializedString STATUS = new SerializedString("status");
+    private static final SerializedString LOWER = new SerializedString("lower");
+    private static final SerializedString UPPER = new SerializedString("upper");
+    private static final SerializedString WIDTH = new SerializedString("width");
+    private static final SerializedString EXCLUDES_ZERO = new SerializedString("excludesZero");
+    private static final SerializedString BASIS = new SerializedString("basis");
+
     /**
      * One row: assumptions, meaning, what it assumes about pending outcomes, the instrument assumption (null when the data have no
      * instrument levels), status, interval, width, sign, per-stratum intervals and any confidence bands.
      */
     private static void row(JsonGenerator g, BoundRow row, boolean instrumentLevels) throws IOException {
         g.writeStartObject();
-        g.writeArrayFieldStart("assumptions");
+        g.writeFieldName(ASSUMPTIONS);
+        g.writeStartArray();
         for (String id : row.assumptions().ids()) {
-            g.writeString(id);
+            g.writeString(fixed(id));
         }
         g.writeEndArray();
-        fixedText(g, "meaning", row.assumptions().meaning());
-        g.writeStringField("pendingOutcomes", PendingOutcomes.rowAssumption(row.assumptions()));
+        fixedText(g, MEANING, row.assumptions().meaning());
+        fixedText(g, PENDING_OUTCOMES, PendingOutcomes.rowAssumption(row.assumptions()));
         if (instrumentLevels) {
-            g.writeStringField("instrument", row.assumptions().instrument().id());
+            fixedText(g, INSTRUMENT, row.assumptions().instrument().id());
         } else {
-            g.writeNullField("instrument");
+            g.writeFieldName(INSTRUMENT);
+            g.writeNull();
         }
         interval(g, row.interval());
-        g.writeStringField("sign", row.sign());
+        fixedText(g, SIGN, row.sign());
         if (!row.perStratum().isEmpty()) {
-            g.writeArrayFieldStart("strata");
+            g.writeFieldName(STRATA);
+            g.writeStartArray();
             for (Map.Entry<String, IdentifiedInterval> e : row.perStratum().entrySet()) {
                 g.writeStartObject();
-                g.writeStringField("stratum", e.getKey());
+                g.writeFieldName(STRATUM);
+                g.writeString(e.getKey()); // names come from the data: too many to keep encoded
                 interval(g, e.getValue());
                 g.writeEndObject();
             }
             g.writeEndArray();
         }
         if (!row.shownBands().isEmpty()) {
-            g.writeArrayFieldStart("bands");
+            g.writeFieldName(BANDS);
+            g.writeStartArray();
             for (ConfidenceBand b : row.shownBands()) {
                 band(g, b);
             }
@@ -237,31 +260,40 @@ public final class ReportJson {
     /** A confidence band: method, level, status, ends, width, whether it excludes zero, sign, and what it rests on. */
     private static void band(JsonGenerator g, ConfidenceBand band) throws IOException {
         g.writeStartObject();
-        g.writeStringField("method", band.method().id());
-        g.writeNumberField("level", band.level());
-        g.writeStringField("status", band.status().id());
-        number(g, "lower", band.lower());
-        number(g, "upper", band.upper());
-        number(g, "width", band.width());
-        g.writeBooleanField("excludesZero", band.excludesZero());
-        g.writeStringField("sign", BoundRow.signWord(band.sign()));
-        fixedText(g, "basis", band.basis());
+        fixedText(g, METHOD, band.method().id());
+        g.writeFieldName(LEVEL);
+        g.writeNumber(band.level());
+        fixedText(g, STATUS, band.status().id());
+        number(g, LOWER, band.lower());
+        number(g, UPPER, band.upper());
+        number(g, WIDTH, band.width());
+        g.writeFieldName(EXCLUDES_ZERO);
+        g.writeBoolean(band.excludesZero());
+        fixedText(g, SIGN, BoundRow.signWord(band.sign()));
+        fixedText(g, BASIS, band.basis());
         g.writeEndObject();
     }
 
     private static void interval(JsonGenerator g, IdentifiedInterval iv) throws IOException {
-        g.writeStringField("status", iv.status().id());
-        number(g, "lower", iv.lower());
-        number(g, "upper", iv.upper());
-        number(g, "width", iv.width());
-        g.writeBooleanField("excludesZero", iv.excludesZero());
+        fixedText(g, STATUS, iv.status().id());
+        number(g, LOWER, iv.lower());
+        number(g, UPPER, iv.upper());
+        number(g, WIDTH, iv.width());
+        g.writeFieldName(EXCLUDES_ZERO);
+        g.writeBoolean(iv.excludesZero());
     }
 
     /**
-     * A text from a small fixed set (assumption meanings, band descriptions): escaped and encoded
-     * once, then copied; long texts written afresh were a good part of a document's cost.
+     * A text from a small set (assumption meanings and identifiers, band descriptions, statuses,
+     * signs): escaped and encoded once, then copied; long texts written afresh were a
+     * good part of a document's cost.
      */
-    private static void fixedText(JsonGenerator g, String field, String value) throws IOException {
+    private static void fixedText(JsonGenerator g, SerializedString field, String value) throws IOException {
+        g.writeFieldName(field);
+        g.writeString(fixed(value));
+    }
+
+    private static SerializedString fixed(String value) {
         SerializedString encoded = FIXED_TEXTS.get(value);
         if (encoded == null) {
             if (FIXED_TEXTS.size() >= MAX_FIXED_TEXTS) {
@@ -269,8 +301,16 @@ public final class ReportJson {
             }
             encoded = FIXED_TEXTS.computeIfAbsent(value, SerializedString::new);
         }
+        return encoded;
+    }
+
+    private static void number(JsonGenerator g, SerializedString field, double value) throws IOException {
         g.writeFieldName(field);
-        g.writeString(encoded);
+        if (Double.isFinite(value)) {
+            g.writeNumber(value);
+        } else {
+            g.writeNull();
+        }
     }
 
     /** Writes a number, or null where it does not exist. */
