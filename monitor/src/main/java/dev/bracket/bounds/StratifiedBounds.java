@@ -2,9 +2,9 @@ package dev.bracket.bounds;
 
 import java.util.ArrayList;
 import java.util.Collections;
-import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
+import java.util.TreeMap;
 
 /**
  * Bounds for a study whose units fall into strata (sites, regions, risk groups). Within a
@@ -42,13 +42,14 @@ public final class StratifiedBounds {
 
     /** The study interval and each stratum's own interval. */
     public record Result(IdentifiedInterval overall, Map<String, IdentifiedInterval> perStratum) {
+        /** The strata in name order (kept sorted: reports copy and write them in that order, in linear time). */
         public Result {
-            perStratum = Collections.unmodifiableMap(new LinkedHashMap<>(perStratum));
+            perStratum = Collections.unmodifiableSortedMap(new TreeMap<>(perStratum));
         }
     }
 
     public static Result interval(StudyCells study, OutcomeRange range, AssumptionSet assumptions) {
-        Map<String, IdentifiedInterval> perStratum = new LinkedHashMap<>();
+        Map<String, IdentifiedInterval> perStratum = new TreeMap<>();
         long total = study.pooled().total();
         double lower = 0;
         double upper = 0;
