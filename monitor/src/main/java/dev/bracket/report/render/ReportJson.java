@@ -9,6 +9,7 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import com.fasterxml.jackson.databind.util.TokenBuffer;
 import dev.bracket.bands.ConfidenceBand;
 import dev.bracket.bounds.ArmStatistics;
+import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
 import dev.bracket.bounds.OutcomeRange;
 import dev.bracket.report.BoundRow;
@@ -263,24 +264,25 @@ public final class ReportJson {
         fixedText(g, METHOD, band.method().id());
         g.writeFieldName(LEVEL);
         g.writeNumber(band.level());
-        fixedText(g, STATUS, band.status().id());
-        number(g, LOWER, band.lower());
-        number(g, UPPER, band.upper());
-        number(g, WIDTH, band.width());
-        g.writeFieldName(EXCLUDES_ZERO);
-        g.writeBoolean(band.excludesZero());
+        statusAndEnds(g, band.status(), band.lower(), band.upper(), band.width(), band.excludesZero());
         fixedText(g, SIGN, BoundRow.signWord(band.sign()));
         fixedText(g, BASIS, band.basis());
         g.writeEndObject();
     }
 
     private static void interval(JsonGenerator g, IdentifiedInterval iv) throws IOException {
-        fixedText(g, STATUS, iv.status().id());
-        number(g, LOWER, iv.lower());
-        number(g, UPPER, iv.upper());
-        number(g, WIDTH, iv.width());
+        statusAndEnds(g, iv.status(), iv.lower(), iv.upper(), iv.width(), iv.excludesZero());
+    }
+
+    /** The fields an interval and a band share, in this order. */
+    private static void statusAndEnds(JsonGenerator g, BoundStatus status, double lower, double upper, double width,
+                                      boolean excludesZero) throws IOException {
+        fixedText(g, STATUS, status.id());
+        number(g, LOWER, lower);
+        number(g, UPPER, upper);
+        number(g, WIDTH, width);
         g.writeFieldName(EXCLUDES_ZERO);
-        g.writeBoolean(iv.excludesZero());
+        g.writeBoolean(excludesZero);
     }
 
     /**
