@@ -57,10 +57,10 @@ public final class StratifiedBounds {
         boolean insufficient = total == 0;
         for (Map.Entry<String, Map<String, ObservedArms>> e : study.byStratum().entrySet()) {
             Map<String, ObservedArms> levels = e.getValue();
-            if (study.pooled(e.getKey()).total() == 0) {
+            ObservedArms pooled = study.pooled(e.getKey());
+            if (pooled.total() == 0) {
                 continue; // a stratum with no units has weight zero
             }
-            ObservedArms pooled = study.pooled(e.getKey());
             IdentifiedInterval interval = pooled.hasEmptyArm() && !study.pooled().hasEmptyArm() ? oneArmWorstCase(pooled, range, assumptions)
                     : levels.size() == 1 ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
                     : assumptions.instrument().interval(levels, range, assumptions);
@@ -69,7 +69,7 @@ public final class StratifiedBounds {
                 case REFUTED -> refuted = true;
                 case INSUFFICIENT_DATA -> insufficient = true;
                 case BOUNDED -> {
-                    double w = (double) study.pooled(e.getKey()).total() / total;
+                    double w = (double) pooled.total() / total;
                     lower += w * interval.lower();
                     upper += w * interval.upper();
                 }
@@ -88,7 +88,8 @@ public final class StratifiedBounds {
         }
         List<String> out = null; // asked for by every band: no list unless some stratum is one-armed
         for (String s : study.byStratum().keySet()) {
-            if (study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()) {
+            ObservedArms pooled = study.pooled(s);
+            if (pooled.total() > 0 && pooled.hasEmptyArm()) {
                 if (out == null) {
                     out = new ArrayList<>();
                 }

@@ -1,6 +1,7 @@
 package dev.bracket.bounds;
 
 import java.util.Collections;
+import java.util.HashMap;
 import java.util.Map;
 import java.util.TreeMap;
 
@@ -26,7 +27,7 @@ public final class StudyCells {
 
     private StudyCells(Map<String, Map<String, ObservedArms>> cells) {
         this.cells = cells;
-        Map<String, ObservedArms> byStratum = new TreeMap<>();
+        Map<String, ObservedArms> byStratum = new HashMap<>(); // looked up by name many times per report
         ObservedArms all = ObservedArms.empty();
         boolean anyPending = false;
         boolean anyInstrument = false;
