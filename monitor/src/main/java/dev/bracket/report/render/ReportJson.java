@@ -170,8 +170,13 @@ public final class ReportJson {
         g.writeFieldName("control");
         arm(g, report.pooled().control());
         number(g, "treatedShare", report.pooled().total() == 0 ? Double.NaN : report.pooled().treatedShare());
-        g.writeBooleanField("exposuresReported", PendingOutcomes.exposuresReported(report.pooled()));
-        g.writeStringField("pendingNote", PendingOutcomes.note(report.pooled()));
+        boolean reported = PendingOutcomes.exposuresReported(report.pooled());
+        g.writeBooleanField("exposuresReported", reported);
+        if (reported) {
+            g.writeStringField("pendingNote", PendingOutcomes.note(report.pooled()));
+        } else {
+            fixedText(g, PENDING_NOTE, PendingOutcomes.note(report.pooled())); // one sentence for every such study
+        }
         g.writeEndObject();
     }
 
@@ -212,6 +217,7 @@ public final class ReportJson {
     private static final SerializedString WIDTH = new SerializedString("width");
     private static final SerializedString EXCLUDES_ZERO = new SerializedString("excludesZero");
     private static final SerializedString BASIS = new SerializedString("basis");
+    private static final SerializedString PENDING_NOTE = new SerializedString("pendingNote");
 
     /**
      * One row: assumptions, meaning, what it assumes about pending outcomes, the instrument assumption (null when the data have no
@@ -290,7 +296,7 @@ public final class ReportJson {
      * signs): escaped and encoded once, then copied; long texts written afresh were a
      * good part of a document's cost.
      */
-    private static void fixedText(JsonGenerator g, SerializedString field, String value) throws IOException {
+    public static void fixedText(JsonGenerator g, SerializedString field, String value) throws IOException {
         g.writeFieldName(field);
         g.writeString(fixed(value));
     }

@@ -2,6 +2,7 @@ package dev.bracket.stream.publish;
 
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.io.SerializedString;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
 import dev.bracket.report.render.ReportJson;
@@ -9,6 +10,8 @@ import dev.bracket.report.render.ReportJson;
 import java.io.IOException;
 import java.time.Instant;
 import java.util.Locale;
+import java.util.Map;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The JSON document published to the bounds topic (and printed by {@code replay --json}) for
@@ -21,6 +24,10 @@ public final class ReportDocument {
 
     /** Attached to every document: it reaches people through dashboards and alerts. */
     public static final String CAUTION = Cautions.TEXT;
+
+    private static final SerializedString CAUTION_FIELD = new SerializedString("caution");
+    private static final Map<Instant, String> INSTANTS = new ConcurrentHashMap<>();
+    private static final int MAX_INSTANTS = 256;
 
     private ReportDocument() {
     }
@@ -48,8 +55,8 @@ public final class ReportDocument {
             g.writeNullField("windowStart");
             g.writeNullField("windowEnd");
         } else {
-            g.writeStringField("windowStart", Instant.ofEpochMilli(r.start()).toString());
-            g.writeStringField("windowEnd", Instant.ofEpochMilli(r.end()).toString());
+            g.writeStringField("windowStart", text(Instant.ofEpochMilli(r.start())));
+            g.writeStringField("windowEnd", text(Instant.ofEpochMilli(r.end())));
         }
         g.writeNumberField("lateEvents", r.lateEvents());
         if (r.lost() == null) {
@@ -67,10 +74,25 @@ public final class ReportDocument {
         }
         g.writeNumberField("revision", revision);
         if (computedAt != null) {
-            g.writeStringField("computedAt", computedAt.toString());
+            g.writeStringField("computedAt", text(computedAt));
         }
         ReportJson.writeFields(g, r.report());
-        g.writeStringField("caution", CAUTION);
+        ReportJson.fixedText(g, CAUTION_FIELD, CAUTION);
         g.writeEndObject();
+    }
+
+    /**
+     * An instant as ISO-8601 text: a publish writes the same few instants (window ends, the time
+     * of computation) into every study's documents, so they are formatted once.
+     */
+    private static String text(Instant instant) {
+        String text = INSTANTS.get(instant);
+        if (text == null) {
+            if (INSTANTS.size() >= MAX_INSTANTS) {
+                INSTANTS.clear();
+            }
+            text = INSTANTS.computeIfAbsent(instant, Instant::toString);
+        }
+        return text;
     }
 }
