@@ -21,7 +21,6 @@ import java.io.OutputStream;
 import java.io.UncheckedIOException;
 import java.util.Arrays;
 import java.util.Map;
-import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The versioned JSON form of a {@link StudyReport}. Field names are a public contract:
@@ -39,8 +38,7 @@ public final class ReportJson {
      * at a fraction of the cost (formatting was about a quarter of a publish).
      */
     private static final ObjectMapper MAPPER = JsonMapper.builder().enable(StreamWriteFeature.USE_FAST_DOUBLE_WRITER).build();
-    private static final Map<String, SerializedString> FIXED_TEXTS = new ConcurrentHashMap<>();
-    private static final int MAX_FIXED_TEXTS = 1024;
+    private static final BoundedCache<String, SerializedString> FIXED_TEXTS = new BoundedCache<>(1024, SerializedString::new);
 
     private ReportJson() {
     }
@@ -302,14 +300,7 @@ public final class ReportJson {
     }
 
     private static SerializedString fixed(String value) {
-        SerializedString encoded = FIXED_TEXTS.get(value);
-        if (encoded == null) {
-            if (FIXED_TEXTS.size() >= MAX_FIXED_TEXTS) {
-                FIXED_TEXTS.clear();
-            }
-            encoded = FIXED_TEXTS.computeIfAbsent(value, SerializedString::new);
-        }
-        return encoded;
+        return FIXED_TEXTS.get(value);
     }
 
     private static void number(JsonGenerator g, SerializedString field, double value) throws IOException {

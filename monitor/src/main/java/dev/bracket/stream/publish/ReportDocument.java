@@ -5,13 +5,12 @@ import com.fasterxml.jackson.core.JsonGenerator;
 import com.fasterxml.jackson.core.io.SerializedString;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.report.render.BoundedCache;
 import dev.bracket.report.render.ReportJson;
 
 import java.io.IOException;
 import java.time.Instant;
 import java.util.Locale;
-import java.util.Map;
-import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The JSON document published to the bounds topic (and printed by {@code replay --json}) for
@@ -26,8 +25,7 @@ public final class ReportDocument {
     public static final String CAUTION = Cautions.TEXT;
 
     private static final SerializedString CAUTION_FIELD = new SerializedString("caution");
-    private static final Map<Instant, String> INSTANTS = new ConcurrentHashMap<>();
-    private static final int MAX_INSTANTS = 256;
+    private static final BoundedCache<Instant, String> INSTANTS = new BoundedCache<>(256, Instant::toString);
 
     private ReportDocument() {
     }
@@ -86,13 +84,6 @@ public final class ReportDocument {
      * of computation) into every study's documents, so they are formatted once.
      */
     private static String text(Instant instant) {
-        String text = INSTANTS.get(instant);
-        if (text == null) {
-            if (INSTANTS.size() >= MAX_INSTANTS) {
-                INSTANTS.clear();
-            }
-            text = INSTANTS.computeIfAbsent(instant, Instant::toString);
-        }
-        return text;
+        return INSTANTS.get(instant);
     }
 }
