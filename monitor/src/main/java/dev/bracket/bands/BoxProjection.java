@@ -80,8 +80,13 @@ final class BoxProjection {
 
     /** Strata with units whose shares need intervals: none when a single stratum has all units. */
     static int shareCount(StudyCells cells) {
-        long strata = cells.byStratum().keySet().stream().filter(s -> cells.pooled(s).total() > 0).count();
-        return strata > 1 ? (int) strata : 0;
+        int strata = 0;
+        for (String s : cells.byStratum().keySet()) {
+            if (cells.pooled(s).total() > 0) {
+                strata++;
+            }
+        }
+        return strata > 1 ? strata : 0;
     }
 
     /** The band of a study from one box per cell and an interval per stratum share; empty when the boxes refute the assumptions. */
@@ -130,8 +135,31 @@ final class BoxProjection {
         return sum;
     }
 
-    /** Lowest lower end and highest upper end over one cell's box; empty when every point is refuted. */
+    /**
+     * Lowest lower end and highest upper end over one cell's box; empty when every point is refuted.
+     *
+     * <p>Both ends are non-decreasing in mu1 and non-increasing in mu0 (see
+     * {@link BoundCalculator#interval(double, double, double, OutcomeRange, AssumptionSet)}; each
+     * constraint is a max or min of a, b and the means, and the floating-point operations used,
+     * min, max, subtraction, multiplication by p or 1 - p in [0, 1] and addition, are each monotone
+     * too, so the computed ends are). Hence when the assumptions hold at the corner
+     * (mu1Low, mu0High), it holds the lowest lower end of every vertex, and (mu1High, mu0Low) the
+     * highest upper end: two corners at two values of p give exactly what all vertices give
+     * ({@link #cellByVertices}). Only when such a corner is refuted are all vertices needed.
+     */
     static Optional<Ends> cell(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
+        IdentifiedInterval lowAtPLow = BoundCalculator.interval(box.pLow(), box.mu1Low(), box.mu0High(), range, assumptions);
+        IdentifiedInterval highAtPLow = BoundCalculator.interval(box.pLow(), box.mu1High(), box.mu0Low(), range, assumptions);
+        if (!lowAtPLow.isBounded() || !highAtPLow.isBounded()) { // refutation does not depend on p
+            return cellByVertices(box, range, assumptions);
+        }
+        IdentifiedInterval lowAtPHigh = BoundCalculator.interval(box.pHigh(), box.mu1Low(), box.mu0High(), range, assumptions);
+        IdentifiedInterval highAtPHigh = BoundCalculator.interval(box.pHigh(), box.mu1High(), box.mu0Low(), range, assumptions);
+        return Optional.of(new Ends(Math.min(lowAtPLow.lower(), lowAtPHigh.lower()), Math.max(highAtPLow.upper(), highAtPHigh.upper())));
+    }
+
+    /** The same as {@link #cell}, by evaluating the bounds at every vertex of the box, skipping refuted ones. */
+    static Optional<Ends> cellByVertices(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
         double lower = Double.POSITIVE_INFINITY;
         double upper = Double.NEGATIVE_INFINITY;
         for (double[] m : box.meanVertices()) {
@@ -182,8 +210,29 @@ final class BoxProjection {
     /**
      * Over one level's box: the smallest lower and largest upper bound on E[Y1 | z] and on
      * E[Y0 | z], packed as a {@link InstrumentBounds.LevelMeans}; empty when every point is refuted.
+     *
+     * <p>All four bounds are non-decreasing in both means (each is {@code p mu1} or
+     * {@code (1 - p) mu0} plus the other share times a max or min of a, b and the means; the
+     * floating-point operations are monotone as well), so when the assumptions hold at
+     * (mu1Low, mu0Low) and (mu1High, mu0High) those two corners at two values of p give exactly
+     * what all vertices give ({@link #levelRangesByVertices}).
      */
-    private static Optional<InstrumentBounds.LevelMeans> levelRanges(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
+    static Optional<InstrumentBounds.LevelMeans> levelRanges(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
+        Optional<InstrumentBounds.LevelMeans> lowAtPLow = InstrumentBounds.levelMeans(box.pLow(), box.mu1Low(), box.mu0Low(), range, assumptions);
+        Optional<InstrumentBounds.LevelMeans> highAtPLow = InstrumentBounds.levelMeans(box.pLow(), box.mu1High(), box.mu0High(), range, assumptions);
+        if (lowAtPLow.isEmpty() || highAtPLow.isEmpty()) { // refutation does not depend on p
+            return levelRangesByVertices(box, range, assumptions);
+        }
+        InstrumentBounds.LevelMeans low = lowAtPLow.get();
+        InstrumentBounds.LevelMeans lowHigh = InstrumentBounds.levelMeans(box.pHigh(), box.mu1Low(), box.mu0Low(), range, assumptions).get();
+        InstrumentBounds.LevelMeans high = highAtPLow.get();
+        InstrumentBounds.LevelMeans highHigh = InstrumentBounds.levelMeans(box.pHigh(), box.mu1High(), box.mu0High(), range, assumptions).get();
+        return Optional.of(new InstrumentBounds.LevelMeans(Math.min(low.y1Low(), lowHigh.y1Low()), Math.max(high.y1High(), highHigh.y1High()),
+                Math.min(low.y0Low(), lowHigh.y0Low()), Math.max(high.y0High(), highHigh.y0High())));
+    }
+
+    /** The same as {@link #levelRanges}, by evaluating the bounds at every vertex of the box, skipping refuted ones. */
+    static Optional<InstrumentBounds.LevelMeans> levelRangesByVertices(ObservablesBox box, OutcomeRange range, AssumptionSet assumptions) {
         double y1Low = Double.POSITIVE_INFINITY;
         double y1High = Double.NEGATIVE_INFINITY;
         double y0Low = Double.POSITIVE_INFINITY;

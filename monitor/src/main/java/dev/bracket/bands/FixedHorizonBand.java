@@ -17,6 +17,7 @@ import java.util.EnumMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.concurrent.ConcurrentHashMap;
 
 /**
  * The fixed-horizon band: with probability at least {@code level} (asymptotically) it holds the
@@ -68,6 +69,10 @@ public final class FixedHorizonBand {
         }
     }
 
+    /** Quantiles and descriptions of projection bands by settings: computed once, not per band. */
+    private static final Map<ProjectionKey, Projection> PROJECTIONS = new ConcurrentHashMap<>();
+    private static final int MAX_PROJECTIONS = 256;
+
     private FixedHorizonBand() {
     }
 
@@ -84,8 +89,7 @@ public final class FixedHorizonBand {
         if (estimate.status() == BoundStatus.INSUFFICIENT_DATA || hasSingleUnitArm(cells) || !StratifiedBounds.oneArmed(cells).isEmpty()) {
             return ConfidenceBand.insufficientData(BandMethod.FIXED_HORIZON, level, deltaBasis(variance));
         }
-        if (estimate.isBounded() && !cells.hasPending()
-                && cells.byStratum().values().stream().allMatch(levels -> levels.size() == 1)) {
+        if (estimate.isBounded() && !cells.hasPending() && oneLevelPerStratum(cells)) {
             Optional<ConfidenceBand> band = imbensManski(cells, range, assumptions, level, variance);
             if (band.isPresent()) {
                 return band.get();
@@ -153,16 +157,36 @@ public final class FixedHorizonBand {
 
     private static ConfidenceBand projection(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, double level,
                                              VarianceBasis variance) {
-        int k = BoxProjection.cellCount(cells);
-        int shares = BoxProjection.shareCount(cells);
-        double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (2.0 * (3 * k + shares)));
-        String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
-                + k + (k == 1 ? " cell" : " cells") + (shares > 0 ? " and the " + shares + " stratum shares" : "")
-                + " (conservative), using " + variance.description();
+        ProjectionKey key = new ProjectionKey(level, BoxProjection.cellCount(cells), BoxProjection.shareCount(cells), variance);
+        Projection settings = PROJECTIONS.get(key);
+        if (settings == null) {
+            if (PROJECTIONS.size() >= MAX_PROJECTIONS) {
+                PROJECTIONS.clear();
+            }
+            settings = PROJECTIONS.computeIfAbsent(key, ProjectionKey::settings);
+        }
+        double z = settings.z();
+        String basis = settings.basis();
         return BoxProjection.study(cells, range, assumptions, arms -> waldBox(arms, range, assumptions, z, variance),
                         (units, all) -> wilson((double) units / all, all, z))
                 .map(e -> ConfidenceBand.of(BandMethod.FIXED_HORIZON, level, e.lower(), e.upper(), basis))
                 .orElseGet(() -> ConfidenceBand.refuted(BandMethod.FIXED_HORIZON, level, basis));
+    }
+
+    /** What a projection band's settings fix: the number of cells and stratum shares, level and variance basis. */
+    private record ProjectionKey(double level, int cells, int shares, VarianceBasis variance) {
+
+        /** Each box's normal quantile (Bonferroni over 3 per cell and one per share) and the band's description. */
+        Projection settings() {
+            double z = STANDARD_NORMAL.inverseCumulativeProbability(1 - (1 - level) / (2.0 * (3 * cells + shares)));
+            String basis = "Bonferroni projection of normal confidence boxes for the treated share and the arm means of "
+                    + cells + (cells == 1 ? " cell" : " cells") + (shares > 0 ? " and the " + shares + " stratum shares" : "")
+                    + " (conservative), using " + variance.description();
+            return new Projection(z, basis);
+        }
+    }
+
+    private record Projection(double z, String basis) {
     }
 
     /** Wilson score interval for p and normal intervals for the means, each two-sided with quantile z. */
@@ -185,8 +209,23 @@ public final class FixedHorizonBand {
     }
 
     private static boolean hasSingleUnitArm(StudyCells cells) {
-        return cells.byStratum().values().stream().flatMap(levels -> levels.values().stream())
-                .anyMatch(FixedHorizonBand::hasSingleUnitArm);
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            for (ObservedArms arms : levels.values()) {
+                if (hasSingleUnitArm(arms)) {
+                    return true;
+                }
+            }
+        }
+        return false;
+    }
+
+    private static boolean oneLevelPerStratum(StudyCells cells) {
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            if (levels.size() != 1) {
+                return false;
+            }
+        }
+        return true;
     }
 
     private static boolean hasSingleUnitArm(ObservedArms arms) {

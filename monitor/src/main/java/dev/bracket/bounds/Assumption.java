@@ -33,65 +33,21 @@ import java.util.stream.Collectors;
 public enum Assumption {
 
     WORST_CASE("worst-case",
-            "outcomes lie in the declared range; nothing is assumed about how treatment was chosen") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box;
-        }
-    },
+            "outcomes lie in the declared range; nothing is assumed about how treatment was chosen"),
     MTR_POSITIVE("mtr-positive",
-            "monotone treatment response: treatment never lowers any unit's outcome (Y1 >= Y0 for every unit)") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box.m10AtLeast(mu0).m01AtMost(mu1);
-        }
-    },
+            "monotone treatment response: treatment never lowers any unit's outcome (Y1 >= Y0 for every unit)"),
     MTR_NEGATIVE("mtr-negative",
-            "monotone treatment response: treatment never raises any unit's outcome (Y1 <= Y0 for every unit)") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box.m10AtMost(mu0).m01AtLeast(mu1);
-        }
-    },
+            "monotone treatment response: treatment never raises any unit's outcome (Y1 <= Y0 for every unit)"),
     MTS_POSITIVE("mts-positive",
-            "monotone treatment selection: units that took treatment have mean potential outcomes at least as high as those that did not, in both arms") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box.m10AtMost(mu1).m01AtLeast(mu0);
-        }
-    },
+            "monotone treatment selection: units that took treatment have mean potential outcomes at least as high as those that did not, in both arms"),
     MTS_NEGATIVE("mts-negative",
-            "monotone treatment selection: units that took treatment have mean potential outcomes at most as high as those that did not, in both arms") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box.m10AtLeast(mu1).m01AtMost(mu0);
-        }
-    },
+            "monotone treatment selection: units that took treatment have mean potential outcomes at most as high as those that did not, in both arms"),
     OPTIMIZING_SELECTION("optimizing-selection",
-            "optimizing selection: every unit received the arm that was better for it") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return better == Direction.HIGHER
-                    ? box.m10AtMost(mu0).m01AtMost(mu1)
-                    : box.m10AtLeast(mu0).m01AtLeast(mu1);
-        }
-    },
+            "optimizing selection: every unit received the arm that was better for it"),
     SORTING_ON_GAINS("sorting-on-gains",
-            "sorting on gains: treated units do better when treated than untreated units would, and untreated units do better untreated than treated units would (on average)") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return better == Direction.HIGHER
-                    ? box.m10AtMost(mu1).m01AtMost(mu0)
-                    : box.m10AtLeast(mu1).m01AtLeast(mu0);
-        }
-    },
+            "sorting on gains: treated units do better when treated than untreated units would, and untreated units do better untreated than treated units would (on average)"),
     MISSING_AT_RANDOM("missing-at-random",
-            "missing at random: outcomes not yet reported have, on average, the same value as the reported ones in the same arm") {
-        @Override
-        UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
-            return box; // acts on the arm means instead, see ArmMeanRange
-        }
-    };
+            "missing at random: outcomes not yet reported have, on average, the same value as the reported ones in the same arm");
 
     private final String id;
     private final String meaning;
@@ -111,8 +67,23 @@ public enum Assumption {
         return meaning;
     }
 
-    /** Narrows the box of unobserved means by this assumption's constraints. */
-    abstract UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better);
+    /**
+     * Narrows the box of unobserved means by this assumption's constraints (the table above). One
+     * method for all constants, not one body per constant: called at every point where a bound is
+     * evaluated, it then stays a direct call the compiler can inline.
+     */
+    UnobservedMeans constrain(UnobservedMeans box, double mu1, double mu0, Direction better) {
+        boolean higher = better == Direction.HIGHER;
+        return switch (this) {
+            case WORST_CASE, MISSING_AT_RANDOM -> box; // missing-at-random acts on the arm means instead, see ArmMeanRange
+            case MTR_POSITIVE -> box.m10AtLeast(mu0).m01AtMost(mu1);
+            case MTR_NEGATIVE -> box.m10AtMost(mu0).m01AtLeast(mu1);
+            case MTS_POSITIVE -> box.m10AtMost(mu1).m01AtLeast(mu0);
+            case MTS_NEGATIVE -> box.m10AtLeast(mu1).m01AtMost(mu0);
+            case OPTIMIZING_SELECTION -> higher ? box.m10AtMost(mu0).m01AtMost(mu1) : box.m10AtLeast(mu0).m01AtLeast(mu1);
+            case SORTING_ON_GAINS -> higher ? box.m10AtMost(mu1).m01AtMost(mu0) : box.m10AtLeast(mu1).m01AtLeast(mu0);
+        };
+    }
 
     /** Looks an assumption up by its identifier; the error lists the known ones. */
     public static Assumption fromId(String id) {

@@ -21,11 +21,16 @@ public final class AssumptionSet {
     /** The members in canonical order, for {@link #constrain}: called at every corner of every band's boxes, it should not allocate an iterator. */
     private final Assumption[] ordered;
     private final InstrumentAssumption instrument;
+    /** Written into every row of every published document: built once. */
+    private final List<String> ids;
+    private final String meaning;
 
     private AssumptionSet(Set<Assumption> members, InstrumentAssumption instrument) {
         this.members = Collections.unmodifiableSet(members);
         this.ordered = members.toArray(new Assumption[0]);
         this.instrument = instrument;
+        this.ids = members.stream().map(Assumption::id).toList();
+        this.meaning = members.stream().map(Assumption::meaning).collect(Collectors.joining("; and "));
     }
 
     private AssumptionSet(Set<Assumption> members) {
@@ -119,17 +124,24 @@ public final class AssumptionSet {
 
     /** The identifiers in canonical order. */
     public List<String> ids() {
-        return members.stream().map(Assumption::id).collect(Collectors.toList());
+        return ids;
     }
 
     /** The plain-words meaning of the whole set, one clause per assumption. */
     public String meaning() {
-        return members.stream().map(Assumption::meaning).collect(Collectors.joining("; and "));
+        return meaning;
     }
 
     /** Intersects the constraints of every member, starting from the outcome range (Manski 1990). */
     public UnobservedMeans constrain(OutcomeRange range, double mu1, double mu0) {
         UnobservedMeans box = UnobservedMeans.unrestricted(range);
+        // One or two members (most sets) without a loop: the compiler can then keep the boxes in registers.
+        if (ordered.length == 1) {
+            return ordered[0].constrain(box, mu1, mu0, range.better());
+        }
+        if (ordered.length == 2) {
+            return ordered[1].constrain(ordered[0].constrain(box, mu1, mu0, range.better()), mu1, mu0, range.better());
+        }
         for (Assumption a : ordered) {
             box = a.constrain(box, mu1, mu0, range.better());
         }

@@ -50,6 +50,9 @@ public final class BoundCalculator {
      */
     public static IdentifiedInterval hull(double p, double mu1Low, double mu1High, double mu0Low, double mu0High,
                                           OutcomeRange range, AssumptionSet assumptions) {
+        if (mu1Low == mu1High && mu0Low == mu0High) {
+            return interval(p, mu1Low, mu0Low, range, assumptions); // every vertex is this point: the usual case, no pending outcomes
+        }
         double lower = Double.POSITIVE_INFINITY;
         double upper = Double.NEGATIVE_INFINITY;
         for (double[] m : MeanVertices.of(mu1Low, mu1High, mu0Low, mu0High)) {

@@ -52,9 +52,16 @@ public final class InstrumentBounds {
         ArmMeanRange c = ArmMeanRange.of(arms.control(), range, assumptions);
         boolean noTreated = arms.treated().units() == 0;
         boolean noControl = arms.control().units() == 0;
+        double mu1Low = noTreated ? Double.NaN : t.lowMean(range);
+        double mu1High = noTreated ? Double.NaN : t.highMean(range);
+        double mu0Low = noControl ? Double.NaN : c.lowMean(range);
+        double mu0High = noControl ? Double.NaN : c.highMean(range);
+        if (mu1Low == mu1High && mu0Low == mu0High) {
+            // every vertex is this point: the usual case, no pending outcomes
+            return levelMeans(arms.treatedShare(), mu1Low, mu0Low, range, assumptions).orElse(null);
+        }
         // Over the box of arm means (pending outcomes): the smallest and largest of each bound.
-        double[][] vertices = MeanVertices.of(noTreated ? Double.NaN : t.lowMean(range), noTreated ? Double.NaN : t.highMean(range),
-                noControl ? Double.NaN : c.lowMean(range), noControl ? Double.NaN : c.highMean(range));
+        double[][] vertices = MeanVertices.of(mu1Low, mu1High, mu0Low, mu0High);
         LevelMeans hull = null;
         for (double[] m : vertices) {
             LevelMeans at = levelMeans(arms.treatedShare(), m[0], m[1], range, assumptions).orElse(null);

@@ -31,17 +31,26 @@ public record ObservablesBox(double pLow, double pHigh, double mu1Low, double mu
                                     ToDoubleFunction<ArmStatistics> meanRadius) {
         ArmMeanRange t = ArmMeanRange.of(arms.treated(), range, assumptions);
         ArmMeanRange c = ArmMeanRange.of(arms.control(), range, assumptions);
+        double tLow = radius(t.low(), meanRadius);
+        double cLow = radius(c.low(), meanRadius);
+        // Without pending units both ends are the arm itself: one radius serves both.
+        double tHigh = t.high() == t.low() ? tLow : radius(t.high(), meanRadius);
+        double cHigh = c.high() == c.low() ? cLow : radius(c.high(), meanRadius);
         return new ObservablesBox(Math.max(0, p - pRadius), Math.min(1, p + pRadius),
-                lowEnd(t.low(), range, meanRadius), highEnd(t.high(), range, meanRadius),
-                lowEnd(c.low(), range, meanRadius), highEnd(c.high(), range, meanRadius));
+                lowEnd(t.low(), range, tLow), highEnd(t.high(), range, tHigh),
+                lowEnd(c.low(), range, cLow), highEnd(c.high(), range, cHigh));
     }
 
-    private static double lowEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
-        return arm.isEmpty() ? range.min() : Math.max(range.min(), arm.mean() - radius.applyAsDouble(arm));
+    private static double radius(ArmStatistics arm, ToDoubleFunction<ArmStatistics> radius) {
+        return arm.isEmpty() ? Double.NaN : radius.applyAsDouble(arm);
     }
 
-    private static double highEnd(ArmStatistics arm, OutcomeRange range, ToDoubleFunction<ArmStatistics> radius) {
-        return arm.isEmpty() ? range.max() : Math.min(range.max(), arm.mean() + radius.applyAsDouble(arm));
+    private static double lowEnd(ArmStatistics arm, OutcomeRange range, double radius) {
+        return arm.isEmpty() ? range.min() : Math.max(range.min(), arm.mean() - radius);
+    }
+
+    private static double highEnd(ArmStatistics arm, OutcomeRange range, double radius) {
+        return arm.isEmpty() ? range.max() : Math.min(range.max(), arm.mean() + radius);
     }
 
     /**

@@ -1,9 +1,10 @@
 package dev.bracket.bounds;
 
+import java.util.ArrayList;
 import java.util.Collections;
-import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
+import java.util.TreeMap;
 
 /**
  * Bounds for a study whose units fall into strata (sites, regions, risk groups). Within a
@@ -41,13 +42,14 @@ public final class StratifiedBounds {
 
     /** The study interval and each stratum's own interval. */
     public record Result(IdentifiedInterval overall, Map<String, IdentifiedInterval> perStratum) {
+        /** The strata in name order (kept sorted: reports copy and write them in that order, in linear time). */
         public Result {
-            perStratum = Collections.unmodifiableMap(new LinkedHashMap<>(perStratum));
+            perStratum = Collections.unmodifiableSortedMap(new TreeMap<>(perStratum));
         }
     }
 
     public static Result interval(StudyCells study, OutcomeRange range, AssumptionSet assumptions) {
-        Map<String, IdentifiedInterval> perStratum = new LinkedHashMap<>();
+        Map<String, IdentifiedInterval> perStratum = new TreeMap<>();
         long total = study.pooled().total();
         double lower = 0;
         double upper = 0;
@@ -55,10 +57,10 @@ public final class StratifiedBounds {
         boolean insufficient = total == 0;
         for (Map.Entry<String, Map<String, ObservedArms>> e : study.byStratum().entrySet()) {
             Map<String, ObservedArms> levels = e.getValue();
-            if (study.pooled(e.getKey()).total() == 0) {
+            ObservedArms pooled = study.pooled(e.getKey());
+            if (pooled.total() == 0) {
                 continue; // a stratum with no units has weight zero
             }
-            ObservedArms pooled = study.pooled(e.getKey());
             IdentifiedInterval interval = pooled.hasEmptyArm() && !study.pooled().hasEmptyArm() ? oneArmWorstCase(pooled, range, assumptions)
                     : levels.size() == 1 ? BoundCalculator.interval(levels.values().iterator().next(), range, assumptions)
                     : assumptions.instrument().interval(levels, range, assumptions);
@@ -67,7 +69,7 @@ public final class StratifiedBounds {
                 case REFUTED -> refuted = true;
                 case INSUFFICIENT_DATA -> insufficient = true;
                 case BOUNDED -> {
-                    double w = (double) study.pooled(e.getKey()).total() / total;
+                    double w = (double) pooled.total() / total;
                     lower += w * interval.lower();
                     upper += w * interval.upper();
                 }
@@ -84,8 +86,17 @@ public final class StratifiedBounds {
         if (study.pooled().hasEmptyArm()) {
             return List.of();
         }
-        return study.byStratum().keySet().stream()
-                .filter(s -> study.pooled(s).total() > 0 && study.pooled(s).hasEmptyArm()).toList();
+        List<String> out = null; // asked for by every band: no list unless some stratum is one-armed
+        for (String s : study.byStratum().keySet()) {
+            ObservedArms pooled = study.pooled(s);
+            if (pooled.total() > 0 && pooled.hasEmptyArm()) {
+                if (out == null) {
+                    out = new ArrayList<>();
+                }
+                out.add(s);
+            }
+        }
+        return out == null ? List.of() : List.copyOf(out);
     }
 
     /**

@@ -1,6 +1,7 @@
 package dev.bracket.bounds;
 
 import java.util.Collections;
+import java.util.HashMap;
 import java.util.Map;
 import java.util.TreeMap;
 
@@ -20,21 +21,30 @@ public final class StudyCells {
     /** Sums kept from construction: bands and bounds ask for them many times per report. */
     private final Map<String, ObservedArms> pooledByStratum;
     private final ObservedArms pooled;
+    /** Kept from construction like the sums: every band of every assumption set asks. */
+    private final boolean pending;
+    private final boolean instrument;
 
     private StudyCells(Map<String, Map<String, ObservedArms>> cells) {
         this.cells = cells;
-        Map<String, ObservedArms> byStratum = new TreeMap<>();
+        Map<String, ObservedArms> byStratum = new HashMap<>(); // looked up by name many times per report
         ObservedArms all = ObservedArms.empty();
+        boolean anyPending = false;
+        boolean anyInstrument = false;
         for (Map.Entry<String, Map<String, ObservedArms>> e : cells.entrySet()) { // name order, as the sums always were
             ObservedArms stratum = ObservedArms.empty();
+            anyInstrument |= e.getValue().size() > 1 || !e.getValue().containsKey(NONE);
             for (ObservedArms arms : e.getValue().values()) {
                 stratum = stratum.merge(arms);
+                anyPending |= arms.pending() > 0;
             }
             byStratum.put(e.getKey(), stratum);
             all = all.merge(stratum);
         }
         this.pooledByStratum = Collections.unmodifiableMap(byStratum);
         this.pooled = all;
+        this.pending = anyPending;
+        this.instrument = anyInstrument;
     }
 
     public static StudyCells empty() {
@@ -79,7 +89,7 @@ public final class StudyCells {
 
     /** True when the data name more than one instrument level in some stratum. */
     public boolean hasInstrument() {
-        return cells.values().stream().anyMatch(levels -> levels.size() > 1 || !levels.containsKey(NONE));
+        return instrument;
     }
 
     /** All cells of one stratum added together (instrument levels pooled). */
@@ -89,7 +99,7 @@ public final class StudyCells {
 
     /** True when some cell has exposed units whose outcome has not arrived ({@link ObservedArms#pending()}). */
     public boolean hasPending() {
-        return cells.values().stream().flatMap(levels -> levels.values().stream()).anyMatch(arms -> arms.pending() > 0);
+        return pending;
     }
 
     /** Every cell added together. */

@@ -5,8 +5,10 @@ import dev.bracket.bounds.AssumptionSet;
 import dev.bracket.bounds.BoundStatus;
 import dev.bracket.bounds.IdentifiedInterval;
 
+import java.util.Collections;
 import java.util.List;
 import java.util.Map;
+import java.util.TreeMap;
 
 /**
  * One line of a report: an assumption set, its identified interval for the whole study,
@@ -18,7 +20,8 @@ public record BoundRow(AssumptionSet assumptions, IdentifiedInterval interval, M
                        List<ConfidenceBand> bands) {
 
     public BoundRow {
-        perStratum = Map.copyOf(perStratum);
+        // Sorted by stratum name once here: reports write them in that order.
+        perStratum = perStratum.isEmpty() ? Map.of() : Collections.unmodifiableSortedMap(new TreeMap<>(perStratum));
         bands = List.copyOf(bands);
     }
 

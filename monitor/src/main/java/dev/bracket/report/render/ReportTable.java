@@ -14,7 +14,6 @@ import java.util.LinkedHashSet;
 import java.util.Locale;
 import java.util.Map;
 import java.util.Set;
-import java.util.TreeMap;
 
 /**
  * The human-readable form of a {@link StudyReport}: a fixed-width table (with any confidence bands
@@ -48,7 +47,7 @@ public final class ReportTable {
             for (ConfidenceBand b : row.shownBands()) {
                 appendBand(out, format, b);
             }
-            for (Map.Entry<String, IdentifiedInterval> s : new TreeMap<>(row.perStratum()).entrySet()) {
+            for (Map.Entry<String, IdentifiedInterval> s : row.perStratum().entrySet()) { // sorted by name (BoundRow)
                 appendInterval(out, format, "  stratum " + (s.getKey().isEmpty() ? "(none given)" : s.getKey()), "", s.getValue(), "");
             }
         }

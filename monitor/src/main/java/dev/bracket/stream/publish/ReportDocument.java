@@ -2,8 +2,10 @@ package dev.bracket.stream.publish;
 
 import dev.bracket.report.Cautions;
 import com.fasterxml.jackson.core.JsonGenerator;
+import com.fasterxml.jackson.core.io.SerializedString;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.WindowSpec;
+import dev.bracket.report.render.BoundedCache;
 import dev.bracket.report.render.ReportJson;
 
 import java.io.IOException;
@@ -21,6 +23,9 @@ public final class ReportDocument {
 
     /** Attached to every document: it reaches people through dashboards and alerts. */
     public static final String CAUTION = Cautions.TEXT;
+
+    private static final SerializedString CAUTION_FIELD = new SerializedString("caution");
+    private static final BoundedCache<Instant, String> INSTANTS = new BoundedCache<>(256, Instant::toString);
 
     private ReportDocument() {
     }
@@ -48,17 +53,25 @@ public final class ReportDocument {
             g.writeNullField("windowStart");
             g.writeNullField("windowEnd");
         } else {
-            g.writeStringField("windowStart", Instant.ofEpochMilli(r.start()).toString());
-            g.writeStringField("windowEnd", Instant.ofEpochMilli(r.end()).toString());
+            g.writeStringField("windowStart", text(Instant.ofEpochMilli(r.start())));
+            g.writeStringField("windowEnd", text(Instant.ofEpochMilli(r.end())));
         }
         g.writeNumberField("lateEvents", r.lateEvents());
         ReportJson.lostToFollowUp(g, r.lost(), r.report().pooled());
         g.writeNumberField("revision", revision);
         if (computedAt != null) {
-            g.writeStringField("computedAt", computedAt.toString());
+            g.writeStringField("computedAt", text(computedAt));
         }
         ReportJson.writeFields(g, r.report());
-        g.writeStringField("caution", CAUTION);
+        ReportJson.fixedText(g, CAUTION_FIELD, CAUTION);
         g.writeEndObject();
+    }
+
+    /**
+     * An instant as ISO-8601 text: a publish writes the same few instants (window ends, the time
+     * of computation) into every study's documents, so they are formatted once.
+     */
+    private static String text(Instant instant) {
+        return INSTANTS.get(instant);
     }
 }
