@@ -74,8 +74,9 @@ import java.util.concurrent.ConcurrentHashMap;
  * the arm means come from the observed outcomes alone and the treated share from all units.
  *
  * <p>Thread-safe; its results depend on its settings only (it keeps what it built for earlier bands:
- * boundaries, descriptions and the last study's cell boxes, the latter also keyed on whether the
- * assumptions include {@code missing-at-random}, which changes the boxes of pending outcomes);
+ * boundaries, descriptions, each end's construction per assumption set, and the last study's cell
+ * boxes and stratum-share intervals, the boxes also keyed on whether the assumptions include
+ * {@code missing-at-random}, which changes the boxes of pending outcomes);
  * build one per configured level and reuse it.
  */
 public final class AnytimeBand {
@@ -96,6 +97,9 @@ public final class AnytimeBand {
     /** Route 2's boundaries by number of one-sided bounds per end, and its descriptions by shape. */
     private final Map<Integer, EmpiricalBernsteinBoundary> tailBoundaries = new ConcurrentHashMap<>();
     private final Map<List<Object>, String> separateBases = new ConcurrentHashMap<>();
+    /** Each end's construction by settings (range, assumptions, pending quantities known, one stratum). */
+    private final Map<RouteKey, Routes> routes = new ConcurrentHashMap<>();
+    private static final int MAX_ROUTES = 256;
     private volatile CellBoxes lastBoxes;
 
     /** Bands by settings: building one costs more than a band, and the settings rarely change. */
@@ -161,11 +165,12 @@ public final class AnytimeBand {
     public ConfidenceBand of(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, IdentifiedInterval estimate) {
         boolean levels = cells.byStratum().values().stream().anyMatch(l -> l.size() > 1);
         boolean known = !unknownPendingQuantities(cells, assumptions);
-        Optional<EndQuantities> ends = levels || !known ? Optional.empty() : EndQuantities.of(range, assumptions);
         int shares = BoxProjection.shareCount(cells);
-        EndRoute lowerRoute = levels || ends.isPresent() ? null : EndRoute.of(range, assumptions, false, known, shares == 0);
-        EndRoute upperRoute = lowerRoute == null ? null : EndRoute.of(range, assumptions, true, known, shares == 0);
-        boolean separate = lowerRoute != null && (lowerRoute.separate() || upperRoute.separate());
+        Routes routes = levels ? null : routes(range, assumptions, known, shares == 0);
+        Optional<EndQuantities> ends = levels ? Optional.empty() : routes.ends();
+        boolean separate = routes != null && routes.separate();
+        EndRoute lowerRoute = separate ? routes.lower() : null;
+        EndRoute upperRoute = separate ? routes.upper() : null;
         int sequences = ends.isPresent() ? 2 : 3 * Math.max(1, BoxProjection.cellCount(cells)) + shares;
         String basis = ends.isPresent() ? perEndBasis
                 : separate ? separateBasis(cells, lowerRoute, upperRoute)
@@ -186,26 +191,25 @@ public final class AnytimeBand {
         boolean missingAtRandom = assumptions.contains(Assumption.MISSING_AT_RANDOM);
         if (boxes == null || boxes.cells() != cells || !boxes.range().equals(range) || boxes.boundary() != boundary
                 || boxes.missingAtRandom() != missingAtRandom) {
-            boxes = new CellBoxes(cells, range, boundary, missingAtRandom, boxesOf(cells, range, assumptions, boundary));
+            boxes = new CellBoxes(cells, range, boundary, missingAtRandom, boxesOf(cells, range, assumptions, boundary),
+                    new ConcurrentHashMap<>());
             lastBoxes = boxes;
         }
+        Map<Long, double[]> shareIntervals = boxes.shares();
         return band(BoxProjection.study(cells, range, assumptions, boxes.byCell()::get,
-                (units, all) -> share(units, all, boundary)), basis);
+                (units, all) -> shareIntervals.computeIfAbsent(units, u -> share(u, all, boundary))), basis);
     }
 
     /** The band of a single cell; the same as {@link #of} for {@code StudyCells.single(arms)}, without the bookkeeping. */
     public ConfidenceBand ofCell(ObservedArms arms, OutcomeRange range, AssumptionSet assumptions) {
         boolean known = !unknownPendingQuantities(StudyCells.single(arms), assumptions);
-        Optional<EndQuantities> ends = known ? EndQuantities.of(range, assumptions) : Optional.empty();
-        if (ends.isEmpty()) {
-            EndRoute lowerRoute = EndRoute.of(range, assumptions, false, known, true);
-            EndRoute upperRoute = EndRoute.of(range, assumptions, true, known, true);
-            if (lowerRoute.separate() || upperRoute.separate()) {
-                StudyCells cell = StudyCells.single(arms);
-                String basis = separateBasis(cell, lowerRoute, upperRoute);
-                return arms.hasEmptyArm() ? ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis)
-                        : separately(cell, range, assumptions, lowerRoute, upperRoute, basis);
-            }
+        Routes routes = routes(range, assumptions, known, true);
+        Optional<EndQuantities> ends = routes.ends();
+        if (routes.separate()) {
+            StudyCells cell = StudyCells.single(arms);
+            String basis = separateBasis(cell, routes.lower(), routes.upper());
+            return arms.hasEmptyArm() ? ConfidenceBand.insufficientData(BandMethod.ANYTIME, level, basis)
+                    : separately(cell, range, assumptions, routes.lower(), routes.upper(), basis);
         }
         String basis = ends.isPresent() ? perEndBasis : singleCellBoxBasis;
         if (arms.hasEmptyArm()) {
@@ -330,7 +334,34 @@ public final class AnytimeBand {
      * studies only compute them again).
      */
     private record CellBoxes(StudyCells cells, OutcomeRange range, EmpiricalBernsteinBoundary boundary,
-                             boolean missingAtRandom, Map<ObservedArms, ObservablesBox> byCell) {
+                             boolean missingAtRandom, Map<ObservedArms, ObservablesBox> byCell, Map<Long, double[]> shares) {
+    }
+
+    /**
+     * Which construction each end takes for some settings (route 1's quantities, or route 2's
+     * {@link EndRoute}s), worked out from the assumptions alone by probing them; kept per settings.
+     */
+    private record Routes(Optional<EndQuantities> ends, EndRoute lower, EndRoute upper) {
+        /** Route 2: the ends are not both per-unit means, and going separately gains on at least one. */
+        boolean separate() {
+            return ends.isEmpty() && (lower.separate() || upper.separate());
+        }
+    }
+
+    private record RouteKey(OutcomeRange range, AssumptionSet assumptions, boolean known, boolean oneStratum) {
+    }
+
+    private Routes routes(OutcomeRange range, AssumptionSet assumptions, boolean known, boolean oneStratum) {
+        RouteKey key = new RouteKey(range, assumptions, known, oneStratum);
+        Routes found = routes.get(key);
+        if (found == null) {
+            if (routes.size() >= MAX_ROUTES) {
+                routes.clear();
+            }
+            found = routes.computeIfAbsent(key, k -> new Routes(known ? EndQuantities.of(range, assumptions) : Optional.empty(),
+                    EndRoute.of(range, assumptions, false, known, oneStratum), EndRoute.of(range, assumptions, true, known, oneStratum)));
+        }
+        return found;
     }
 
     private Map<ObservedArms, ObservablesBox> boxesOf(StudyCells cells, OutcomeRange range, AssumptionSet assumptions,
@@ -365,9 +396,13 @@ public final class AnytimeBand {
     }
 
     private static ObservedArms filled(StudyCells cells, EndQuantities.PerUnit quantity, OutcomeRange range, boolean highest) {
-        return cells.byStratum().values().stream().flatMap(levels -> levels.values().stream())
-                .map(arms -> quantity.filled(arms, range, highest))
-                .reduce(ObservedArms.empty(), ObservedArms::merge);
+        ObservedArms pooled = ObservedArms.empty();
+        for (Map<String, ObservedArms> levels : cells.byStratum().values()) {
+            for (ObservedArms arms : levels.values()) {
+                pooled = pooled.merge(quantity.filled(arms, range, highest));
+            }
+        }
+        return pooled;
     }
 
     /** A stratum share's sequence, on the indicators of belonging to the stratum. */
