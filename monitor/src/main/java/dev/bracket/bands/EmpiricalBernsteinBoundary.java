@@ -114,6 +114,9 @@ public final class EmpiricalBernsteinBoundary {
             double a = psi * count / c2;
             double b = lambda * count / scale;
             double c0 = psi * m2 / c2 + thresholds[k];
+            if (c0 >= best * b) {
+                continue; // the root 2 c0 / (b + sqrt(disc)) is at least c0 / b: it cannot beat best
+            }
             double disc = b * b - 4 * a * c0;
             if (disc >= 0) {
                 best = Math.min(best, 2 * c0 / (b + Math.sqrt(disc)));
