@@ -6,6 +6,7 @@ import com.fasterxml.jackson.databind.node.ObjectNode;
 import dev.bracket.config.BracketConfig;
 import dev.bracket.config.InputTopic;
 import dev.bracket.report.render.ReportJson;
+import dev.bracket.bounds.ObservedArms;
 import dev.bracket.report.render.ReportTable;
 import dev.bracket.stream.Replay;
 import dev.bracket.stream.publish.ReportDocument;
@@ -136,9 +137,31 @@ public final class ReplayCommand implements Callable<Integer> {
             out.printf(Locale.ROOT, "== study %s, window %s (%s)%s%n", r.study().id(), r.window().name(), span,
                     r.lateEvents() > 0 ? ", " + r.lateEvents() + " late event(s) left out" : "");
             out.print(ReportTable.render(r.report()));
+            if (r.lost() != null) {
+                out.println(lostLine(r));
+            }
         }
         out.println();
         out.println(ReportDocument.CAUTION);
+    }
+
+    /** Units lost to follow-up per arm, with their share of the arm's units (the JSON's {@code lostToFollowUp}). */
+    private static String lostLine(WindowReport r) {
+        ObservedArms pooled = r.report().pooled();
+        return String.format(Locale.ROOT, "Lost to follow-up (still pending %s after exposure): treated %d (%s), control %d (%s).",
+                horizonText(r.lost().horizon()),
+                r.lost().treated(), percent(r.lost().share(true, pooled.treated())),
+                r.lost().control(), percent(r.lost().share(false, pooled.control())));
+    }
+
+    /** The horizon as a configuration writes it: 10d, or 36h, 90m (ISO-8601 without its prefix). */
+    private static String horizonText(java.time.Duration horizon) {
+        return horizon.toSeconds() % 86_400 == 0 ? horizon.toDays() + "d"
+                : horizon.toString().replaceFirst("^PT", "").toLowerCase(Locale.ROOT);
+    }
+
+    private static String percent(double share) {
+        return Double.isNaN(share) ? "no units" : String.format(Locale.ROOT, "%.1f%% of its units", 100 * share);
     }
 
     private static void printRejected(PrintWriter err, Replay.Result result) {

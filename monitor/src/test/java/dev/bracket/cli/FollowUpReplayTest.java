@@ -65,6 +65,37 @@ class FollowUpReplayTest {
     }
 
     @Test
+    @DisplayName("the text report names the lost units per arm with their shares")
+    void lostInTheTextReport() throws Exception {
+        Path config = dir.resolve("t.yaml");
+        Files.writeString(config, """
+                studies:
+                  - id: registry
+                    outcome: {min: 0, max: 1}
+                    follow-up: 10d
+                    assume: [worst-case]
+                inputs:
+                  - topic: events
+                bands: none
+                """);
+        Path events = dir.resolve("t.jsonl");
+        Files.writeString(events, """
+                {"kind":"exposure","study":"registry","unit":1,"treated":true,"time":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":2,"treated":true,"time":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":3,"treated":false,"time":"2026-01-01T00:00:00Z"}
+                {"study":"registry","unit":1,"treated":true,"outcome":1,"time":"2026-01-05T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
+                {"study":"registry","unit":3,"treated":false,"outcome":0,"time":"2026-01-03T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":4,"treated":false,"time":"2026-01-30T00:00:00Z"}
+                """);
+        CalcCommandTest.Run run = CalcCommandTest.run("replay", "--config", config.toString(), events.toString());
+        assertThat(run.exitCode()).as(run.err()).isZero();
+        // Unit 2 (treated, exposed 01-01, never reported) is lost by the 01-30 watermark: 1 of 2 treated units;
+        // no control unit is lost (unit 3 reported, unit 4 exposed a day before the watermark).
+        assertThat(run.out()).contains(
+                "Lost to follow-up (still pending 10d after exposure): treated 1 (50.0% of its units), control 0 (0.0% of its units).");
+    }
+
+    @Test
     @DisplayName("without a horizon the field is null; a bad horizon names the key")
     void noHorizon() throws Exception {
         Path config = dir.resolve("b.yaml");
