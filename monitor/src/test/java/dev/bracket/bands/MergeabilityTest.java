@@ -61,7 +61,7 @@ class MergeabilityTest {
             }
         }
         BandConfig settings = BandConfig.both(0.9);
-        for (String set : List.of("worst-case", "mtr-positive", "mts-negative,optimizing-selection")) {
+        for (String set : List.of("worst-case", "mtr-positive", "mts-negative,optimizing-selection", "mts-positive", "sorting-on-gains")) {
             AssumptionSet assumptions = AssumptionSet.parse(set);
             List<ConfidenceBand> expected = settings.bands(onePass, RANGE, assumptions);
             if (set.equals("worst-case")) {
