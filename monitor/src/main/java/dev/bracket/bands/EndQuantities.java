@@ -146,7 +146,7 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
         UnobservedMeans below = assumptions.constrain(range, low, high); // mu1 < mu0
         if (above.m10Low() > above.m10High() || above.m01Low() > above.m01High()
                 || below.m10Low() > below.m10High() || below.m01Low() > below.m01High()) {
-            return Optional.empty();
+            return Optional.empty(); // refutable: the ends are not smooth in the means
         }
         double xAbove = upper ? above.m01Low() : above.m01High();
         double xBelow = upper ? below.m01Low() : below.m01High();
@@ -166,7 +166,11 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
         if (y == Kind.OTHER) {
             return Optional.of(new Form(new PerUnit(new Affine(0, -xAbove), new Affine(-1, 0)), 1, 0));
         }
-        return end(range, assumptions, upper).map(q -> new Form(q, 0, 0));
+        // No other arm's mean: the treated term p (mu1 - m01) is E[T (Y - K)] for a constant bound K and 0
+        // for the own mean mu1; the control term (1 - p)(m10 - mu0) is E[(1 - T)(K - Y)], or 0.
+        Affine treated = x == Kind.CONSTANT ? new Affine(1, -xAbove) : ZERO;
+        Affine control = y == Kind.CONSTANT ? new Affine(-1, yAbove) : ZERO;
+        return Optional.of(new Form(new PerUnit(treated, control), 0, 0));
     }
 
     private static Kind kind(double atAbove, double atBelow, double ownAbove, double ownBelow, OutcomeRange range) {
@@ -195,39 +199,6 @@ record EndQuantities(PerUnit lower, PerUnit upper) {
      * which takes a box of the observables).
      */
     static Optional<PerUnit> end(OutcomeRange range, AssumptionSet assumptions, boolean upper) {
-        double low = range.min() + range.width() / 4;
-        double high = range.min() + 3 * range.width() / 4;
-        UnobservedMeans above = assumptions.constrain(range, high, low); // mu1 > mu0
-        UnobservedMeans below = assumptions.constrain(range, low, high); // mu1 < mu0
-        if (above.m10Low() > above.m10High() || above.m01Low() > above.m01High()
-                || below.m10Low() > below.m10High() || below.m01Low() > below.m01High()) {
-            return Optional.empty(); // refutable: the ends are not smooth in the means
-        }
-        // treated term p (mu1 - m01) is E[T (Y - K)] for a constant bound K, 0 for the own mean mu1.
-        Optional<Affine> treated = upper
-                ? term(above.m01Low(), below.m01Low(), high, low, range, 1)
-                : term(above.m01High(), below.m01High(), high, low, range, 1);
-        // control term (1 - p)(m10 - mu0) is E[(1 - T)(K - Y)] for a constant K, 0 for the own mean mu0.
-        Optional<Affine> control = upper
-                ? term(above.m10High(), below.m10High(), low, high, range, -1)
-                : term(above.m10Low(), below.m10Low(), low, high, range, -1);
-        return treated.isPresent() && control.isPresent()
-                ? Optional.of(new PerUnit(treated.get(), control.get())) : Optional.empty();
-    }
-
-    /**
-     * The per-unit term for a counterfactual bound seen as {@code atAbove} and {@code atBelow} at
-     * the two probe points, where the own arm's mean was {@code ownAbove} and {@code ownBelow}:
-     * {@code sign * (y - K)} for a constant K, zero for the own mean, empty otherwise.
-     */
-    private static Optional<Affine> term(double atAbove, double atBelow, double ownAbove, double ownBelow,
-                                         OutcomeRange range, double sign) {
-        if (atAbove == ownAbove && atBelow == ownBelow) {
-            return Optional.of(ZERO);
-        }
-        if (atAbove == atBelow && (atAbove == range.min() || atAbove == range.max())) {
-            return Optional.of(new Affine(sign, -sign * atAbove));
-        }
-        return Optional.empty();
+        return form(range, assumptions, upper).filter(f -> f.treatedMean() == 0 && f.controlMean() == 0).map(Form::quantity);
     }
 }

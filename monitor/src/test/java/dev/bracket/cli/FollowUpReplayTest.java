@@ -22,19 +22,7 @@ class FollowUpReplayTest {
     @Test
     @DisplayName("pending units exposed more than the horizon ago are lost; recent ones and reported ones are not")
     void lostAfterTheHorizon() throws Exception {
-        Path config = dir.resolve("bracket.yaml");
-        Files.writeString(config, """
-                studies:
-                  - id: registry
-                    outcome: {min: 0, max: 1}
-                    follow-up: 10d
-                    assume: [worst-case]
-                inputs:
-                  - topic: events
-                bands: none
-                """);
-        Path events = dir.resolve("events.jsonl");
-        Files.writeString(events, """
+        CalcCommandTest.Run run = replayWithTenDayHorizon(true, """
                 {"kind":"exposure","study":"registry","unit":1,"treated":true,"time":"2026-01-01T00:00:00Z"}
                 {"kind":"exposure","study":"registry","unit":2,"treated":true,"time":"2026-01-01T00:00:00Z"}
                 {"kind":"exposure","study":"registry","unit":3,"treated":false,"time":"2026-01-01T00:00:00Z"}
@@ -44,7 +32,6 @@ class FollowUpReplayTest {
                 {"kind":"exposure","study":"registry","unit":5,"treated":true,"time":"2026-01-29T00:00:00Z"}
                 {"kind":"exposure","study":"registry","unit":6,"treated":false,"time":"2026-01-30T00:00:00Z"}
                 """);
-        CalcCommandTest.Run run = CalcCommandTest.run("replay", "--config", config.toString(), "--json", events.toString());
         assertThat(run.exitCode()).as(run.err()).isZero();
         JsonNode report = JSON.readTree(run.out()).get("reports").get(0);
         // Watermark 2026-01-30: units 2 (treated) and 4 (control), exposed on 01-01 and never reported, are lost;
@@ -67,7 +54,24 @@ class FollowUpReplayTest {
     @Test
     @DisplayName("the text report names the lost units per arm with their shares")
     void lostInTheTextReport() throws Exception {
-        Path config = dir.resolve("t.yaml");
+        CalcCommandTest.Run run = replayWithTenDayHorizon(false, """
+                {"kind":"exposure","study":"registry","unit":1,"treated":true,"time":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":2,"treated":true,"time":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":3,"treated":false,"time":"2026-01-01T00:00:00Z"}
+                {"study":"registry","unit":1,"treated":true,"outcome":1,"time":"2026-01-05T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
+                {"study":"registry","unit":3,"treated":false,"outcome":0,"time":"2026-01-03T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
+                {"kind":"exposure","study":"registry","unit":4,"treated":false,"time":"2026-01-30T00:00:00Z"}
+                """);
+        assertThat(run.exitCode()).as(run.err()).isZero();
+        // Unit 2 (treated, exposed 01-01, never reported) is lost by the 01-30 watermark: 1 of 2 treated units;
+        // no control unit is lost (unit 3 reported, unit 4 exposed a day before the watermark).
+        assertThat(run.out()).contains(
+                "Lost to follow-up (still pending 10d after exposure): treated 1 (50.0% of its units), control 0 (0.0% of its units).");
+    }
+
+    /** {@code replay} (with {@code --json} or the text report) of these events for a study with a 10-day follow-up horizon. */
+    private CalcCommandTest.Run replayWithTenDayHorizon(boolean json, String lines) throws Exception {
+        Path config = dir.resolve("bracket.yaml");
         Files.writeString(config, """
                 studies:
                   - id: registry
@@ -78,21 +82,10 @@ class FollowUpReplayTest {
                   - topic: events
                 bands: none
                 """);
-        Path events = dir.resolve("t.jsonl");
-        Files.writeString(events, """
-                {"kind":"exposure","study":"registry","unit":1,"treated":true,"time":"2026-01-01T00:00:00Z"}
-                {"kind":"exposure","study":"registry","unit":2,"treated":true,"time":"2026-01-01T00:00:00Z"}
-                {"kind":"exposure","study":"registry","unit":3,"treated":false,"time":"2026-01-01T00:00:00Z"}
-                {"study":"registry","unit":1,"treated":true,"outcome":1,"time":"2026-01-05T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
-                {"study":"registry","unit":3,"treated":false,"outcome":0,"time":"2026-01-03T00:00:00Z","exposed":"2026-01-01T00:00:00Z"}
-                {"kind":"exposure","study":"registry","unit":4,"treated":false,"time":"2026-01-30T00:00:00Z"}
-                """);
-        CalcCommandTest.Run run = CalcCommandTest.run("replay", "--config", config.toString(), events.toString());
-        assertThat(run.exitCode()).as(run.err()).isZero();
-        // Unit 2 (treated, exposed 01-01, never reported) is lost by the 01-30 watermark: 1 of 2 treated units;
-        // no control unit is lost (unit 3 reported, unit 4 exposed a day before the watermark).
-        assertThat(run.out()).contains(
-                "Lost to follow-up (still pending 10d after exposure): treated 1 (50.0% of its units), control 0 (0.0% of its units).");
+        Path events = dir.resolve("events.jsonl");
+        Files.writeString(events, lines);
+        return json ? CalcCommandTest.run("replay", "--config", config.toString(), "--json", events.toString())
+                : CalcCommandTest.run("replay", "--config", config.toString(), events.toString());
     }
 
     @Test
