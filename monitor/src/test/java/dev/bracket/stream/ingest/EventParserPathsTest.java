@@ -103,7 +103,7 @@ class EventParserPathsTest {
     @Test
     @DisplayName("usable events of the usual shape (the streaming tests' events) all take the fast path")
     void usualEventsTakeTheFastPath() {
-        FlatEventScanner scanner = new FlatEventScanner(FieldMapping.DEFAULT, new TextCache());
+        FlatEventScanner scanner = new FlatEventScanner(FieldMapping.DEFAULT, STUDIES.stream().map(StudyConfig::id).toList(), new TextCache());
         for (TestEvents.Event e : TestEvents.stream(2_000, 0, 5)) {
             assertThat(scanner.scan(e.value(), new ParsedEvent())).as(new String(e.value(), StandardCharsets.UTF_8)).isTrue();
             assertSame(e.value());
@@ -116,7 +116,7 @@ class EventParserPathsTest {
         String reference = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, false));
         String fast = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, true));
         assertThat(fast).as(input).isEqualTo(reference);
-        return new FlatEventScanner(FieldMapping.DEFAULT, new TextCache()).scan(bytes, new ParsedEvent());
+        return new FlatEventScanner(FieldMapping.DEFAULT, STUDIES.stream().map(StudyConfig::id).toList(), new TextCache()).scan(bytes, new ParsedEvent());
     }
 
     private static String describe(ParsedEvent e) {
