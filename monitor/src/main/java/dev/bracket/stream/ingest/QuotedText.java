@@ -24,6 +24,8 @@ final class QuotedText {
     private final long[] words;
     /** Which bytes of the last word belong to the text. */
     private final long lastMask;
+    /** Which bytes of the first word belong to the text. */
+    private final long firstMask;
     private final boolean plain;
 
     QuotedText(String text) {
@@ -43,6 +45,7 @@ final class QuotedText {
         }
         int rest = bytes.length % 8;
         lastMask = rest == 0 ? -1L : (1L << (8 * rest)) - 1;
+        firstMask = words.length == 1 ? lastMask : -1L;
     }
 
     String text() {
@@ -62,14 +65,18 @@ final class QuotedText {
         if (!plain) {
             return false;
         }
-        int last = words.length - 1;
         if (at + 8 * words.length <= end) {
-            for (int k = 0; k < last; k++) {
+            // Most mismatches show in the first word.
+            if ((((long) LONGS.get(b, at) ^ words[0]) & firstMask) != 0) {
+                return false;
+            }
+            int last = words.length - 1;
+            for (int k = 1; k < last; k++) {
                 if ((long) LONGS.get(b, at + 8 * k) != words[k]) {
                     return false;
                 }
             }
-            return (((long) LONGS.get(b, at + 8 * last) ^ words[last]) & lastMask) == 0;
+            return last == 0 || (((long) LONGS.get(b, at + 8 * last) ^ words[last]) & lastMask) == 0;
         }
         if (at + bytes.length > end) {
             return false;
