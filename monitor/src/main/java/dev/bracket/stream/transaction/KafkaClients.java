@@ -21,9 +21,6 @@ import java.util.Map;
  */
 public final class KafkaClients {
 
-    /** Records one poll of the aggregation consumer hands over, unless {@code kafka:} sets {@code max.poll.records}. */
-    static final int MAX_POLL_RECORDS = 5_000;
-
     private final BracketConfig config;
 
     public KafkaClients(BracketConfig config) {
@@ -47,11 +44,6 @@ public final class KafkaClients {
     public KafkaConsumer<ByteBuffer, ByteBuffer> groupConsumer() {
         Map<String, Object> p = base();
         p.putIfAbsent(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
-        // More records per poll than Kafka's 500: the same fetches (the setting only says how many of
-        // the fetched records one poll hands over), fewer polls and their bookkeeping per record.
-        // The aggregator folds a record in well under a microsecond, so even a full poll is a few
-        // milliseconds, far inside max.poll.interval.ms and the commit interval.
-        p.putIfAbsent(ConsumerConfig.MAX_POLL_RECORDS_CONFIG, MAX_POLL_RECORDS);
         if (!"consumer".equalsIgnoreCase(String.valueOf(p.get(ConsumerConfig.GROUP_PROTOCOL_CONFIG)))) {
             // Moves only the partitions that change owner; the others keep their in-memory panes.
             p.putIfAbsent(ConsumerConfig.PARTITION_ASSIGNMENT_STRATEGY_CONFIG,
