@@ -109,11 +109,7 @@ public final class AggregationBenchmark {
             double[] vsStreams = new double[runs];
             double[] bareCpu = new double[runs];
             double[] monitorCpu = new double[runs];
-            if (only.equals("bare-monitor")) {
-                bareAndMonitor(broker, events, runs);
-                return;
-            }
-            if (!only.equals("all")) {
+            if (!only.equals("all") && !only.equals("bare-monitor")) {
                 for (int r = 0; r < runs; r++) {
                     double rate = switch (only) {
                         case "bare" -> plainConsumer(broker, events, false);
@@ -127,17 +123,18 @@ public final class AggregationBenchmark {
                 }
                 return;
             }
+            boolean all = only.equals("all"); // else only bare and monitor
             double warmBare = plainConsumer(broker, events, false);
-            double warmPlain = plainConsumer(broker, events, true);
-            double warmStreams = streamsPeer(broker, events, "bench-streams-warm", dir.resolve("streams-warm"));
+            double warmPlain = all ? plainConsumer(broker, events, true) : Double.NaN;
+            double warmStreams = all ? streamsPeer(broker, events, "bench-streams-warm", dir.resolve("streams-warm")) : Double.NaN;
             double warmMonitor = monitor(broker, events, "bench-monitor-warm", 1);
             System.out.printf(Locale.ROOT, "warm-up (not counted): bare %,.0f/s; plain %,.0f/s; Kafka Streams %,.0f/s; monitor %,.0f/s%n",
                     warmBare, warmPlain, warmStreams, warmMonitor);
             for (int r = 0; r < runs; r++) {
                 bare[r] = plainConsumer(broker, events, false);
                 bareCpu[r] = threadNanosPerEvent;
-                plain[r] = plainConsumer(broker, events, true);
-                streams[r] = streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r));
+                plain[r] = all ? plainConsumer(broker, events, true) : Double.NaN;
+                streams[r] = all ? streamsPeer(broker, events, "bench-streams-" + r, dir.resolve("streams-" + r)) : Double.NaN;
                 monitor[r] = monitor(broker, events, "bench-monitor-" + r, 1);
                 monitorCpu[r] = threadNanosPerEvent;
                 vsBare[r] = monitor[r] / bare[r];
@@ -149,51 +146,26 @@ public final class AggregationBenchmark {
                 System.out.printf(Locale.ROOT, "  consuming thread's CPU per event: bare %.0f ns, monitor's aggregator %.0f ns%n", bareCpu[r], monitorCpu[r]);
                 System.out.printf(Locale.ROOT, "  monitor's aggregator: %s; machine load average %.1f (this benchmark alone keeps it near 2; well above, other work shared the cores)%n",
                         cpuNote, ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
-                monitor2[r] = monitor(broker, events, "bench-monitor2-" + r, 2);
-                System.out.printf(Locale.ROOT, "  monitor with 2 aggregation members %,.0f events/s (%.2f x one member)%n", monitor2[r], monitor2[r] / monitor[r]);
+                if (all) {
+                    monitor2[r] = monitor(broker, events, "bench-monitor2-" + r, 2);
+                    System.out.printf(Locale.ROOT, "  monitor with 2 aggregation members %,.0f events/s (%.2f x one member)%n", monitor2[r], monitor2[r] / monitor[r]);
+                }
             }
             System.out.println("over " + runs + " runs, median (min-max):");
             System.out.println("  bare consumer           " + Stats.summary(bare, "%,.0f") + " events/s");
-            System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
-            System.out.println("  Kafka Streams EOS       " + Stats.summary(streams, "%,.0f") + " events/s");
             System.out.println("  Bracket monitor         " + Stats.summary(monitor, "%,.0f") + " events/s");
-            System.out.println("  monitor, 2 members      " + Stats.summary(monitor2, "%,.0f") + " events/s");
             System.out.println("  monitor / bare          " + Stats.summary(vsBare, "%.2f") + "   (target >= 0.75: the share of one thread's reading limit)");
-            System.out.println("  thread CPU per event    bare " + Stats.summary(bareCpu, "%.0f") + " ns, monitor " + Stats.summary(monitorCpu, "%.0f") + " ns");
-            System.out.println("  monitor / plain         " + Stats.summary(vsPlain, "%.2f") + "   (target >= 0.80)");
-            System.out.println("  monitor / streams       " + Stats.summary(vsStreams, "%.2f") + "   (target >= 2.50)");
+            System.out.println("  thread CPU per event    bare " + Stats.summary(bareCpu, "%.0f") + " ns, monitor's aggregator " + Stats.summary(monitorCpu, "%.0f") + " ns");
+            if (all) {
+                System.out.println("  plain consumer + parse  " + Stats.summary(plain, "%,.0f") + " events/s");
+                System.out.println("  Kafka Streams EOS       " + Stats.summary(streams, "%,.0f") + " events/s");
+                System.out.println("  monitor, 2 members      " + Stats.summary(monitor2, "%,.0f") + " events/s");
+                System.out.println("  monitor / plain         " + Stats.summary(vsPlain, "%.2f") + "   (target >= 0.80)");
+                System.out.println("  monitor / streams       " + Stats.summary(vsStreams, "%.2f") + "   (target >= 2.50)");
+            }
         } finally {
             Stats.deleteQuietly(dir);
         }
-    }
-
-    /** Only the bare consumer and the monitor, alternately: the pair the hot path is tuned against. */
-    private static void bareAndMonitor(EmbeddedBroker broker, int events, int runs) throws Exception {
-        double warmBare = plainConsumer(broker, events, false);
-        double warmMonitor = monitor(broker, events, "bench-monitor-warm", 1);
-        System.out.printf(Locale.ROOT, "warm-up (not counted): bare %,.0f/s; monitor %,.0f/s%n", warmBare, warmMonitor);
-        double[] bare = new double[runs];
-        double[] monitor = new double[runs];
-        double[] vsBare = new double[runs];
-        double[] bareCpu = new double[runs];
-        double[] monitorCpu = new double[runs];
-        double[] cpuRatio = new double[runs];
-        for (int r = 0; r < runs; r++) {
-            bare[r] = plainConsumer(broker, events, false);
-            bareCpu[r] = threadNanosPerEvent;
-            monitor[r] = monitor(broker, events, "bench-monitor-" + r, 1);
-            monitorCpu[r] = threadNanosPerEvent;
-            vsBare[r] = monitor[r] / bare[r];
-            cpuRatio[r] = bareCpu[r] / monitorCpu[r];
-            System.out.printf(Locale.ROOT, "run %d: bare consumer %,.0f events/s (thread CPU %.0f ns/event); monitor %,.0f/s (aggregator CPU %.0f ns/event);"
-                            + " monitor/bare %.2f; load average %.1f%n",
-                    r + 1, bare[r], bareCpu[r], monitor[r], monitorCpu[r], vsBare[r], ManagementFactory.getOperatingSystemMXBean().getSystemLoadAverage());
-        }
-        System.out.println("over " + runs + " runs, median (min-max):");
-        System.out.println("  bare consumer           " + Stats.summary(bare, "%,.0f") + " events/s, thread CPU " + Stats.summary(bareCpu, "%.0f") + " ns/event");
-        System.out.println("  Bracket monitor         " + Stats.summary(monitor, "%,.0f") + " events/s, aggregator CPU " + Stats.summary(monitorCpu, "%.0f") + " ns/event");
-        System.out.println("  monitor / bare          " + Stats.summary(vsBare, "%.2f") + "   (target >= 0.75)");
-        System.out.println("  bare CPU / monitor CPU  " + Stats.summary(cpuRatio, "%.2f") + "   (per event, consuming thread)");
     }
 
     private static BracketConfig config(EmbeddedBroker broker, String group) {
