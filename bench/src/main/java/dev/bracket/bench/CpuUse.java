@@ -70,6 +70,11 @@ final class CpuUse {
         throw new IllegalStateException("no such thread");
     }
 
+    /** CPU time of the followed thread since the start, in nanoseconds. */
+    long threadNanos() {
+        return THREADS.getThreadCpuTime(threadId) - thread0;
+    }
+
     /** "thread T% of a core, JVM P% of N cores" since the start. */
     String since() {
         double wall = System.nanoTime() - wall0;

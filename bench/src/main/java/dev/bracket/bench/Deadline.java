@@ -26,12 +26,12 @@ final class Deadline {
         return new Deadline(what, limit);
     }
 
-    /** Waits, checking every few milliseconds, until the condition holds or {@code limit} has passed. */
+    /** Waits, checking every millisecond (timings end here), until the condition holds or {@code limit} has passed. */
     static void await(Duration limit, String what, Condition condition) throws Exception {
         Deadline deadline = in(limit, what);
         while (!condition.holds()) {
             deadline.check();
-            TimeUnit.MILLISECONDS.sleep(5);
+            TimeUnit.MILLISECONDS.sleep(1);
         }
     }
 

@@ -72,7 +72,7 @@ public final class EventParser {
         this.fields = fields;
         this.maxBytes = maxBytes;
         this.skewMillis = saturatedMillis(maxClockSkew);
-        this.scanner = new FlatEventScanner(fields, texts);
+        this.scanner = new FlatEventScanner(fields, studies.stream().map(StudyConfig::id).toList(), texts);
         this.studies = studies.toArray(new StudyConfig[0]);
         for (int i = 0; i < this.studies.length; i++) {
             studyIndex.put(this.studies[i].id(), i);
@@ -103,35 +103,47 @@ public final class EventParser {
      *                   it or of the record time are rejected
      */
     public ParsedEvent parse(byte[] bytes, long recordTime, long now) {
-        return parse(bytes, recordTime, now, true);
+        return bytes == null ? parse(null, 0, 0, recordTime, now, true) : parse(bytes, 0, bytes.length, recordTime, now, true);
+    }
+
+    /**
+     * The same for the event in {@code bytes[offset, offset + length)} (a record's value in the
+     * consumer's fetch buffer, read without copying it out).
+     */
+    public ParsedEvent parse(byte[] bytes, int offset, int length, long recordTime, long now) {
+        return parse(bytes, offset, length, recordTime, now, true);
     }
 
     /** @param fast whether to try the fast path first (the tests compare both paths) */
     ParsedEvent parse(byte[] bytes, long recordTime, long now, boolean fast) {
+        return bytes == null ? parse(null, 0, 0, recordTime, now, fast) : parse(bytes, 0, bytes.length, recordTime, now, fast);
+    }
+
+    ParsedEvent parse(byte[] bytes, int offset, int length, long recordTime, long now, boolean fast) {
         try {
-            return read(bytes, recordTime, now, fast);
+            return read(bytes, offset, length, recordTime, now, fast);
         } catch (RuntimeException ex) {
             event.reset();
             return event.reject(RejectReason.UNREADABLE, "reading the event failed (" + firstLine(ex.toString()) + ")");
         }
     }
 
-    private ParsedEvent read(byte[] bytes, long recordTime, long now, boolean fast) {
+    private ParsedEvent read(byte[] bytes, int offset, int length, long recordTime, long now, boolean fast) {
         ParsedEvent e = event;
         e.reset();
-        if (bytes == null || bytes.length == 0) {
+        if (bytes == null || length == 0) {
             return e.reject(RejectReason.BAD_JSON, "empty record (no bytes)");
         }
-        if (bytes.length > maxBytes) {
-            return e.reject(RejectReason.TOO_LARGE, bytes.length + " bytes exceed the limit of " + maxBytes + " (max-event-bytes)");
+        if (length > maxBytes) {
+            return e.reject(RejectReason.TOO_LARGE, length + " bytes exceed the limit of " + maxBytes + " (max-event-bytes)");
         }
         long clock = recordTime >= 0 ? Math.min(recordTime, now) : now;
         long latest = clock > Long.MAX_VALUE - skewMillis ? Long.MAX_VALUE : clock + skewMillis;
-        if (fast && scanner.scan(bytes, e)) {
-            return complete(e, scanner.study, scanner.hasUnit, scanner.hasTreated, scanner.hasOutcome, recordTime, latest);
+        if (fast && scanner.scan(bytes, offset, offset + length, e)) {
+            return complete(e, scanner.study, scanner.studyIndex, scanner.hasUnit, scanner.hasTreated, scanner.hasOutcome, recordTime, latest);
         }
         e.reset();
-        try (JsonParser p = JSON.createParser(bytes)) {
+        try (JsonParser p = JSON.createParser(bytes, offset, length)) {
             return read(p, e, recordTime, latest);
         } catch (JsonProcessingException ex) {
             return e.reject(RejectReason.BAD_JSON, "not valid JSON: " + firstLine(ex.getOriginalMessage()));
@@ -269,15 +281,17 @@ public final class EventParser {
         if (!e.isUsable()) {
             return attribute(e, studyId);
         }
-        return complete(e, studyId, hasUnit, hasTreated, hasOutcome, recordTime, latest);
+        return complete(e, studyId, -1, hasUnit, hasTreated, hasOutcome, recordTime, latest);
     }
 
     /**
      * Checks what was read: required fields present, study configured, outcome in its range, time
      * not after {@code latest}; fills the defaults.
+     *
+     * @param knownIndex the study's position when the reader already recognised its id, else -1
      */
-    private ParsedEvent complete(ParsedEvent e, String studyId, boolean hasUnit, boolean hasTreated, boolean hasOutcome,
-                                 long recordTime, long latest) {
+    private ParsedEvent complete(ParsedEvent e, String studyId, int knownIndex, boolean hasUnit, boolean hasTreated,
+                                 boolean hasOutcome, long recordTime, long latest) {
         if (studyId == null) {
             return missing(e, fields.study());
         }
@@ -290,8 +304,8 @@ public final class EventParser {
         if (!hasOutcome && !e.exposure) {
             return attribute(missing(e, fields.outcome()), studyId);
         }
-        Integer index = studyIndex.get(studyId);
-        if (index == null) {
+        int index = knownIndex >= 0 ? knownIndex : studyIndex.getOrDefault(studyId, -1);
+        if (index < 0) {
             return e.reject(RejectReason.UNKNOWN_STUDY, "study '" + clip(studyId) + "' is not configured");
         }
         StudyConfig study = studies[index];

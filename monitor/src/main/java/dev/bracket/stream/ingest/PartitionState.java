@@ -32,6 +32,10 @@ public final class PartitionState {
     private final WindowSpec[] windows;
     private final long[] paneMillis;
     private final long[] sizeMillis;
+    private final boolean[] cumulative;
+    private final String[] windowNames;
+    /** Per window, the start of the last event's pane. */
+    private final long[] lastPane;
     private final long graceMillis;
     private final BiConsumer<StudyConfig, WindowSpec> onLate;
     private final Map<PaneKey, PaneAccumulator> panes = new HashMap<>();
@@ -56,9 +60,15 @@ public final class PartitionState {
         this.windows = windows.toArray(new WindowSpec[0]);
         this.paneMillis = new long[this.windows.length];
         this.sizeMillis = new long[this.windows.length];
+        this.cumulative = new boolean[this.windows.length];
+        this.windowNames = new String[this.windows.length];
+        this.lastPane = new long[this.windows.length];
         for (int i = 0; i < this.windows.length; i++) {
             paneMillis[i] = this.windows[i].paneMillis();
             sizeMillis[i] = this.windows[i].size().toMillis();
+            cumulative[i] = this.windows[i].kind() == WindowSpec.Kind.CUMULATIVE;
+            windowNames[i] = this.windows[i].name();
+            lastPane[i] = WindowSpec.paneStart(0, paneMillis[i]);
         }
         this.graceMillis = graceMillis;
         this.onLate = onLate;
@@ -80,22 +90,44 @@ public final class PartitionState {
         }
         long t = e.exposedTime() != Long.MIN_VALUE ? e.exposedTime() : e.time();
         String study = e.study().id();
+        String stratum = e.stratum();
+        String level = e.instrument();
+        int cell = (study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode();
         for (int w = 0; w < windows.length; w++) {
-            long pane = WindowSpec.paneStart(t, paneMillis[w]);
-            if (windows[w].kind() != WindowSpec.Kind.CUMULATIVE && isClosed(sizeMillis[w], pane)) {
-                late.merge(new LateKey(study, windows[w].name()), 1L, Long::sum);
+            long pane = paneStart(w, t);
+            if (!cumulative[w] && isClosed(sizeMillis[w], pane)) {
+                late.merge(new LateKey(study, windowNames[w]), 1L, Long::sum);
                 progressDirty = true;
                 onLate.accept(e.study(), windows[w]);
                 continue;
             }
-            fold(pane(study, e.stratum(), e.instrument(), windows[w].name(), pane), e);
+            fold(pane(cell, study, stratum, level, windowNames[w], pane), e);
         }
         Duration horizon = e.study().followUp();
         if (horizon != null && (e.isExposure() || e.exposedTime() != Long.MIN_VALUE)) {
             // Follow-up panes: by exposure-time bucket, never late, never evicted (see FollowUpPanes).
-            fold(pane(study, e.stratum(), e.instrument(), FollowUpPanes.WINDOW,
+            fold(pane(cell, study, stratum, level, FollowUpPanes.WINDOW,
                     WindowSpec.paneStart(t, FollowUpPanes.bucketMillis(horizon))), e);
         }
+    }
+
+    /**
+     * {@link WindowSpec#paneStart} of window {@code w}, remembering the last pane: events come
+     * mostly in time order, and the division it saves is a good part of a fold.
+     */
+    private long paneStart(int w, long t) {
+        long size = paneMillis[w];
+        if (size == 0) {
+            return 0; // the cumulative window
+        }
+        long start = lastPane[w];
+        long into = t - start; // negative when it overflows: then computed below
+        if (t >= start && into >= 0 && into < size) {
+            return start;
+        }
+        start = WindowSpec.paneStart(t, size);
+        lastPane[w] = start;
+        return start;
     }
 
     private static void fold(PaneAccumulator pane, ParsedEvent e) {
@@ -106,9 +138,9 @@ public final class PartitionState {
         }
     }
 
-    private PaneAccumulator pane(String study, String stratum, String level, String window, long paneStart) {
-        int h = ((study.hashCode() * 31 + stratum.hashCode()) * 31 + level.hashCode()) * 31 + window.hashCode();
-        h = h * 31 + Long.hashCode(paneStart);
+    /** @param cell the hash of study, stratum and level, computed once per event for all its panes */
+    private PaneAccumulator pane(int cell, String study, String stratum, String level, String window, long paneStart) {
+        int h = (cell * 31 + window.hashCode()) * 31 + Long.hashCode(paneStart);
         int slot = (h ^ (h >>> 16)) & (CACHE_SLOTS - 1);
         PaneKey k = cachedKeys[slot];
         if (k != null && k.paneStart() == paneStart && k.study() == study && k.stratum() == stratum && k.level() == level

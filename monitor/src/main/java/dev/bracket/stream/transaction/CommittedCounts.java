@@ -25,8 +25,9 @@ final class CommittedCounts {
     private record TopicReason(String topic, RejectReason reason) {
     }
 
-    void accepted(String topic) {
-        accepted.computeIfAbsent(topic, t -> new long[1])[0]++;
+    /** Adds {@code n} accepted events of one topic (once per partition and poll, not per event). */
+    void accepted(String topic, long n) {
+        accepted.computeIfAbsent(topic, t -> new long[1])[0] += n;
     }
 
     void rejected(String topic, RejectReason reason) {

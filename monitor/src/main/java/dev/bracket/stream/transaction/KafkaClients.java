@@ -7,8 +7,10 @@ import org.apache.kafka.clients.consumer.KafkaConsumer;
 import org.apache.kafka.clients.producer.KafkaProducer;
 import org.apache.kafka.clients.producer.ProducerConfig;
 import org.apache.kafka.common.serialization.ByteArrayDeserializer;
+import org.apache.kafka.common.serialization.ByteBufferDeserializer;
 import org.apache.kafka.common.serialization.ByteArraySerializer;
 
+import java.nio.ByteBuffer;
 import java.util.HashMap;
 import java.util.Map;
 
@@ -33,8 +35,13 @@ public final class KafkaClients {
         return Admin.create(new HashMap<>(config.kafka()));
     }
 
-    /** The group member that reads input topics; commits go through the transactional producer. */
-    public KafkaConsumer<byte[], byte[]> groupConsumer() {
+    /**
+     * The group member that reads input topics; commits go through the transactional producer.
+     * Keys and values are views into the fetched bytes ({@link ByteBufferDeserializer} hands them
+     * over without the copy {@link ByteArrayDeserializer} makes of every record), valid until the
+     * next poll.
+     */
+    public KafkaConsumer<ByteBuffer, ByteBuffer> groupConsumer() {
         Map<String, Object> p = base();
         p.putIfAbsent(ConsumerConfig.AUTO_OFFSET_RESET_CONFIG, "earliest");
         if (!"consumer".equalsIgnoreCase(String.valueOf(p.get(ConsumerConfig.GROUP_PROTOCOL_CONFIG)))) {
@@ -45,7 +52,7 @@ public final class KafkaClients {
         p.put(ConsumerConfig.GROUP_ID_CONFIG, config.group());
         p.put(ConsumerConfig.ENABLE_AUTO_COMMIT_CONFIG, false);
         p.put(ConsumerConfig.ISOLATION_LEVEL_CONFIG, "read_committed");
-        return new KafkaConsumer<>(p, new ByteArrayDeserializer(), new ByteArrayDeserializer());
+        return new KafkaConsumer<>(p, new ByteBufferDeserializer(), new ByteBufferDeserializer());
     }
 
     /**

@@ -8,6 +8,7 @@ import org.apache.kafka.common.header.Header;
 import org.apache.kafka.common.header.Headers;
 import org.apache.kafka.common.header.internals.RecordHeaders;
 
+import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.Arrays;
 import java.util.Map;
@@ -65,7 +66,9 @@ public final class RejectedCopies {
         return Math.min(request, BROKER_DEFAULT_LIMIT) - MARGIN;
     }
 
-    ProducerRecord<byte[], byte[]> copy(ConsumerRecord<byte[], byte[]> r, RejectReason reason, String detail) {
+    ProducerRecord<byte[], byte[]> copy(ConsumerRecord<ByteBuffer, ByteBuffer> r, RejectReason reason, String detail) {
+        byte[] key = bytes(r.key());
+        byte[] value = bytes(r.value());
         Headers ours = new RecordHeaders();
         ours.add(REASON_HEADER, utf8(reason.id()));
         ours.add(DETAIL_HEADER, utf8(detail));
@@ -75,11 +78,11 @@ public final class RejectedCopies {
         Header[] original = r.headers().toArray();
         Headers all = new RecordHeaders(original);
         ours.forEach(all::add);
-        if (size(r.key(), r.value(), all) <= limit) {
-            return new ProducerRecord<>(topic, null, r.timestamp(), r.key(), r.value(), all);
+        if (size(key, value, all) <= limit) {
+            return new ProducerRecord<>(topic, null, r.timestamp(), key, value, all);
         }
-        int keyLength = r.key() == null ? 0 : r.key().length;
-        int valueLength = r.value() == null ? 0 : r.value().length;
+        int keyLength = key == null ? 0 : key.length;
+        int valueLength = value == null ? 0 : value.length;
         // The truncation header's digits never get longer than these maxima, so sizing with them is safe.
         ours.add(TRUNCATED_HEADER, utf8(truncation(valueLength, valueLength, keyLength, keyLength, original.length)));
         int room = (int) Math.max(0, limit - size(null, null, ours));
@@ -87,7 +90,7 @@ public final class RejectedCopies {
         int valueKept = Math.min(valueLength, room - keyKept);
         ours.remove(TRUNCATED_HEADER);
         ours.add(TRUNCATED_HEADER, utf8(truncation(valueKept, valueLength, keyKept, keyLength, original.length)));
-        return new ProducerRecord<>(topic, null, r.timestamp(), prefix(r.key(), keyKept), prefix(r.value(), valueKept), ours);
+        return new ProducerRecord<>(topic, null, r.timestamp(), prefix(key, keyKept), prefix(value, valueKept), ours);
     }
 
     private static String truncation(int valueKept, int valueLength, int keyKept, int keyLength, int headersDropped) {
@@ -102,6 +105,16 @@ public final class RejectedCopies {
             n += HEADER_FRAMING + utf8(h.key()).length + (h.value() == null ? 0 : h.value().length);
         }
         return n;
+    }
+
+    /** A copy of the buffer's remaining bytes (its position untouched), or null. */
+    static byte[] bytes(ByteBuffer b) {
+        if (b == null) {
+            return null;
+        }
+        byte[] out = new byte[b.remaining()];
+        b.duplicate().get(out);
+        return out;
     }
 
     private static byte[] prefix(byte[] b, int n) {

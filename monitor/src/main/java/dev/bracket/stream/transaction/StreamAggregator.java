@@ -25,6 +25,7 @@ import org.apache.kafka.common.errors.WakeupException;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
+import java.nio.ByteBuffer;
 import java.time.Duration;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -83,7 +84,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     private static final Backoff RETRY = new Backoff(Duration.ofMillis(500), Duration.ofSeconds(10));
     private int failuresInARow;
     private volatile boolean running = true;
-    private volatile KafkaConsumer<byte[], byte[]> consumer;
+    private volatile KafkaConsumer<ByteBuffer, ByteBuffer> consumer;
     private KafkaProducer<byte[], byte[]> producer;
     private PartialsRestorer restorer;
     private boolean inTransaction;
@@ -163,7 +164,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
                 if (needsReset) {
                     resetToCommitted(consumer.assignment());
                 }
-                ConsumerRecords<byte[], byte[]> records = consumer.poll(Duration.ofMillis(100));
+                ConsumerRecords<ByteBuffer, ByteBuffer> records = consumer.poll(Duration.ofMillis(100));
                 if (needsReset) {
                     continue; // a callback failed: the batch may predate the reset
                 }
@@ -183,7 +184,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         }
     }
 
-    private void process(ConsumerRecords<byte[], byte[]> records) {
+    private void process(ConsumerRecords<ByteBuffer, ByteBuffer> records) {
         long now = System.currentTimeMillis();
         for (TopicPartition tp : records.partitions()) {
             PartitionState state = states.get(tp);
@@ -193,17 +194,18 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             EventParser parser = parsers.get(tp.topic());
             SeenIds seen = seenIds.get(tp);
             long next = -1;
+            long accepted = 0;
             currentPartition = tp;
-            for (ConsumerRecord<byte[], byte[]> r : records.records(tp)) {
+            for (ConsumerRecord<ByteBuffer, ByteBuffer> r : records.records(tp)) {
                 currentOffset = r.offset();
-                ParsedEvent e = parser.parse(r.value(), r.timestamp(), now);
+                ParsedEvent e = parse(parser, r.value(), r.timestamp(), now);
                 if (seen != null) {
                     seen.check(e, state.streamTime());
                 }
                 int study = e.studyIndex();
                 if (e.isUsable()) {
                     state.add(e);
-                    counts.accepted(tp.topic());
+                    accepted++;
                     studyCounts[study][0]++;
                 } else {
                     counts.rejected(tp.topic(), e.rejection());
@@ -220,6 +222,9 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
             if (next >= 0) {
                 pendingOffsets.put(tp, next);
             }
+            if (accepted > 0) {
+                counts.accepted(tp.topic(), accepted);
+            }
             for (int i = 0; i < studyCounts.length; i++) {
                 long[] c = studyCounts[i];
                 if (c[0] + c[1] > 0) {
@@ -234,7 +239,15 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
         }
     }
 
-    private void reject(ConsumerRecord<byte[], byte[]> r, ParsedEvent e) {
+    /** Parses a record's value where the consumer fetched it (a heap buffer), else from a copy. */
+    private static ParsedEvent parse(EventParser parser, ByteBuffer value, long timestamp, long now) {
+        if (value != null && value.hasArray()) {
+            return parser.parse(value.array(), value.arrayOffset() + value.position(), value.remaining(), timestamp, now);
+        }
+        return parser.parse(RejectedCopies.bytes(value), timestamp, now);
+    }
+
+    private void reject(ConsumerRecord<ByteBuffer, ByteBuffer> r, ParsedEvent e) {
         beginIfNeeded();
         ProducerRecord<byte[], byte[]> copy = rejectedCopies.copy(r, e.rejection(), e.detail());
         producer.send(copy, (md, ex) -> {
@@ -510,7 +523,7 @@ public final class StreamAggregator implements Runnable, AutoCloseable {
     /** Stops the loop after a final commit and waits for it (at most {@code timeout}). */
     public void close(Duration timeout) {
         running = false;
-        KafkaConsumer<byte[], byte[]> c = consumer;
+        KafkaConsumer<ByteBuffer, ByteBuffer> c = consumer;
         if (c != null) {
             c.wakeup();
         }

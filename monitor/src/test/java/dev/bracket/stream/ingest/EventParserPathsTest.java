@@ -77,6 +77,30 @@ class EventParserPathsTest {
                 "{\"study\":\"checkout\",\"unit\":\"a\",\"treated\":true,\"outcome\":0.2,\"id\":\"e-1\",\"id\":\"e-1\"}",
                 "{\"a\":1,\"b\":1,\"c\":1,\"d\":1,\"e\":1,\"f\":1,\"g\":1,\"h\":1,\"i\":1,\"j\":1,\"k\":1,\"l\":1,\"m\":1,\"n\":1,"
                         + "\"study\":\"checkout\",\"unit\":\"a\",\"treated\":true,\"outcome\":0.2}",
+                // Whole numbers around the eight-digit steps, and the bytes next to the digits ('/' and ':').
+                "{\"study\":\"checkout\",\"unit\":12345678,\"treated\":1,\"outcome\":1,\"time\":1234567}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":12345678}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":123456789}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":1234567890123456}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":12345678901234567}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":123456789012345678}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":-999999999999999999}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":1234567/901234}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":1234567:901234}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":12345670901234}",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1,\"time\":1735689600000 }",
+                "{\"study\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":10000000000000000,\"time\":5}",
+                // Study ids and keys cut short, or running on, where they are compared eight bytes at a time.
+                "{\"study\":\"checkou\",\"unit\":1,\"treated\":1,\"outcome\":1}",
+                "{\"study\":\"checkoutx\",\"unit\":1,\"treated\":1,\"outcome\":1}",
+                "{\"study\":\"checkout",
+                "{\"studyx\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1}",
+                "{\"stud\":\"checkout\",\"unit\":1,\"treated\":1,\"outcome\":1}",
+                "{\"outcome\":1,\"treated\":1,\"unit\":1,\"study\":\"registry\"}",
+                "{\"study\":\"checkout\",\"unit\":\"a long unit name of more than sixteen bytes\",\"treated\":1,\"outcome\":1}",
+                "{\"study\":\"checkout\",\"unit\":\"a long unit name with a \u0001 control\",\"treated\":1,\"outcome\":1}",
+                "{\"study\":\"checkout\",\"unit\":\"a long unit name \\\"with an escape\",\"treated\":1,\"outcome\":1}",
+                "{\"study\":\"checkout\",\"unit\":\"a long unit name caf\u00e9 and more\",\"treated\":1,\"outcome\":1}",
         };
         for (String input : inputs) {
             assertSame(input.getBytes(StandardCharsets.UTF_8));
@@ -103,20 +127,35 @@ class EventParserPathsTest {
     @Test
     @DisplayName("usable events of the usual shape (the streaming tests' events) all take the fast path")
     void usualEventsTakeTheFastPath() {
-        FlatEventScanner scanner = new FlatEventScanner(FieldMapping.DEFAULT, new TextCache());
+        FlatEventScanner scanner = new FlatEventScanner(FieldMapping.DEFAULT, STUDIES.stream().map(StudyConfig::id).toList(), new TextCache());
         for (TestEvents.Event e : TestEvents.stream(2_000, 0, 5)) {
             assertThat(scanner.scan(e.value(), new ParsedEvent())).as(new String(e.value(), StandardCharsets.UTF_8)).isTrue();
             assertSame(e.value());
         }
     }
 
-    /** Asserts both paths agree on {@code bytes}; says whether the fast path alone could read it. */
+    /**
+     * Asserts both paths agree on {@code bytes}, also when the event lies inside a larger array
+     * (as in the consumer's fetch buffer) between bytes that would continue it; says whether the
+     * fast path alone could read it.
+     */
     private boolean assertSame(byte[] bytes) {
         String input = new String(bytes, StandardCharsets.UTF_8);
         String reference = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, false));
         String fast = describe(parser.parse(bytes, RECORD_TIME, RECORD_TIME, true));
         assertThat(fast).as(input).isEqualTo(reference);
-        return new FlatEventScanner(FieldMapping.DEFAULT, new TextCache()).scan(bytes, new ParsedEvent());
+        byte[] before = surrounding();
+        byte[] after = surrounding();
+        byte[] inside = new byte[before.length + bytes.length + after.length];
+        System.arraycopy(before, 0, inside, 0, before.length);
+        System.arraycopy(bytes, 0, inside, before.length, bytes.length);
+        System.arraycopy(after, 0, inside, before.length + bytes.length, after.length);
+        for (boolean path : new boolean[] {true, false}) {
+            String within = describe(parser.parse(inside, before.length, bytes.length, RECORD_TIME, RECORD_TIME, path));
+            assertThat(within).as("%s between %s and %s", input, new String(before, StandardCharsets.ISO_8859_1),
+                    new String(after, StandardCharsets.ISO_8859_1)).isEqualTo(reference);
+        }
+        return new FlatEventScanner(FieldMapping.DEFAULT, STUDIES.stream().map(StudyConfig::id).toList(), new TextCache()).scan(bytes, new ParsedEvent());
     }
 
     private static String describe(ParsedEvent e) {
@@ -201,6 +240,16 @@ class EventParserPathsTest {
                 yield out;
             }
         };
+    }
+
+    /** Up to 20 bytes that could continue or precede an event: digits, quotes, braces, letters, spaces. */
+    private byte[] surrounding() {
+        byte[] pool = "0123456789\"}{,: e.-truefalsnul\\".getBytes(StandardCharsets.ISO_8859_1);
+        byte[] out = new byte[rnd.nextInt(21)];
+        for (int i = 0; i < out.length; i++) {
+            out[i] = pool[rnd.nextInt(pool.length)];
+        }
+        return out;
     }
 
     private String space() {

@@ -10,6 +10,7 @@ import org.apache.kafka.common.record.TimestampType;
 import org.junit.jupiter.api.DisplayName;
 import org.junit.jupiter.api.Test;
 
+import java.nio.ByteBuffer;
 import java.nio.charset.StandardCharsets;
 import java.util.Arrays;
 import java.util.Map;
@@ -20,11 +21,18 @@ import static org.assertj.core.api.Assertions.assertThat;
 /** Copies for the rejected topic: whole when they fit the producer's limit, cut and marked when they do not. */
 class RejectedCopiesTest {
 
-    private static ConsumerRecord<byte[], byte[]> record(byte[] key, byte[] value) {
+    /** A record as the aggregator's consumer hands it over: key and value as views into a larger fetched buffer. */
+    private static ConsumerRecord<ByteBuffer, ByteBuffer> record(byte[] key, byte[] value) {
         RecordHeaders headers = new RecordHeaders();
         headers.add("trace", "abc".getBytes(StandardCharsets.UTF_8));
         return new ConsumerRecord<>("in", 2, 77, 1_000L, TimestampType.CREATE_TIME, key == null ? -1 : key.length, value.length,
-                key, value, headers, Optional.empty());
+                key == null ? null : view(key), view(value), headers, Optional.empty());
+    }
+
+    private static ByteBuffer view(byte[] b) {
+        byte[] fetched = new byte[b.length + 10];
+        System.arraycopy(b, 0, fetched, 5, b.length);
+        return ByteBuffer.wrap(fetched, 5, b.length).slice();
     }
 
     private static String header(ProducerRecord<byte[], byte[]> r, String name) {
