@@ -67,7 +67,11 @@ public final class EmpiricalBernsteinBoundary {
         }
     }
 
+    private static final double LN2 = Math.log(2);
+
     private final double[] thresholds;
+    /** The grid point with the largest weight. */
+    private final int centre;
 
     /**
      * @param alpha        error probability of the one-sided bound, in (0, 1)
@@ -80,7 +84,8 @@ public final class EmpiricalBernsteinBoundary {
         if (plannedCount < 1) {
             throw new IllegalArgumentException("planned count must be >= 1, was " + plannedCount);
         }
-        this.thresholds = thresholds(alpha, centre(alpha, plannedCount));
+        this.centre = centre(alpha, plannedCount);
+        this.thresholds = thresholds(alpha, centre);
     }
 
     /** {@code lambda_k = 0.5 * 2^(-k/2)}. */
@@ -106,23 +111,30 @@ public final class EmpiricalBernsteinBoundary {
         if (scale <= 0) {
             return 0; // a constant quantity: its mean is known exactly
         }
-        double best = room;
         double c2 = scale * scale;
+        // The minimum over the grid does not depend on the order of the grid points; trying first the
+        // one nearest the best lambda for these data, c sqrt(2 ln(1/alpha) / m2), lets the cheap test
+        // below skip the square root at almost every other point.
+        double guess = m2 > 0 ? scale * Math.sqrt(2 * thresholds[centre] / m2) : LAMBDA[0];
+        int first = Math.max(0, Math.min(GRID - 1, (int) Math.round(2 * Math.log(0.5 / guess) / LN2)));
+        double best = root(first, count, m2, scale, c2, room);
         for (int k = 0; k < GRID; k++) {
-            double lambda = LAMBDA[k];
-            double psi = PSI[k];
-            double a = psi * count / c2;
-            double b = lambda * count / scale;
-            double c0 = psi * m2 / c2 + thresholds[k];
-            if (c0 >= best * b) {
-                continue; // the root 2 c0 / (b + sqrt(disc)) is at least c0 / b: it cannot beat best
-            }
-            double disc = b * b - 4 * a * c0;
-            if (disc >= 0) {
-                best = Math.min(best, 2 * c0 / (b + Math.sqrt(disc)));
+            if (k != first) {
+                best = root(k, count, m2, scale, c2, best);
             }
         }
         return best;
+    }
+
+    /** The smaller root at grid point k, if it is below {@code best}; otherwise {@code best}. */
+    private double root(int k, long count, double m2, double scale, double c2, double best) {
+        double b = LAMBDA[k] * count / scale;
+        double c0 = PSI[k] * m2 / c2 + thresholds[k];
+        if (c0 >= best * b) {
+            return best; // the root 2 c0 / (b + sqrt(disc)) is at least c0 / b: it cannot beat best
+        }
+        double disc = b * b - 4 * (PSI[k] * count / c2) * c0;
+        return disc >= 0 ? Math.min(best, 2 * c0 / (b + Math.sqrt(disc))) : best;
     }
 
     /** {@code ln(1 / (alpha w_k))} for every grid point. */
