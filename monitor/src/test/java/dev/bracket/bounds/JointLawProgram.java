@@ -1,15 +1,9 @@
 package dev.bracket.bounds;
 
-import org.apache.commons.math3.optim.MaxIter;
-import org.apache.commons.math3.optim.PointValuePair;
 import org.apache.commons.math3.optim.linear.LinearConstraint;
-import org.apache.commons.math3.optim.linear.LinearConstraintSet;
 import org.apache.commons.math3.optim.linear.LinearObjectiveFunction;
 import org.apache.commons.math3.optim.linear.NoFeasibleSolutionException;
-import org.apache.commons.math3.optim.linear.NonNegativeConstraint;
-import org.apache.commons.math3.optim.linear.PivotSelectionRule;
 import org.apache.commons.math3.optim.linear.Relationship;
-import org.apache.commons.math3.optim.linear.SimplexSolver;
 import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
 
 import java.util.ArrayList;
@@ -20,8 +14,8 @@ import java.util.Set;
 /**
  * The identified set of the ATE computed the long way, as a linear program over joint laws
  * {@code q(y1, y0, t, r)} of the two potential outcomes, treatment and response (whether the
- * unit's outcome has arrived) on a finite outcome grid, solved by Commons Math 3.6.1's
- * {@link SimplexSolver}. Independent of the engine: the assumptions are written here from their
+ * unit's outcome has arrived) on a finite outcome grid, solved by Commons Math 3.6.1's older
+ * simplex solver ({@link OlderSimplex}). Independent of the engine: the assumptions are written here from their
  * meaning, not from the engine's table of constraints.
  *
  * <p>Variables {@code q(t, r, i, j) >= 0} = P(Y1 = y_i, Y0 = y_j, T = t, R = r). The observed
@@ -92,30 +86,9 @@ final class JointLawProgram {
         }
     }
 
-    /**
-     * Solved by the older {@code org.apache.commons.math3.optimization.linear.SimplexSolver}: the newer
-     * {@code optim.linear} one of 3.6.1 stopped at a non-optimal vertex on laws with pending units
-     * (smallest case seen here: minimise {@code -0.5 x1 + 0.5 x2} subject to {@code x0 + x1 + x2 + x3 = 0.2},
-     * x &gt;= 0, answered 0 instead of -0.1; found by this test, not looked up in the library's tracker).
-     */
-    @SuppressWarnings("deprecation")
+    /** Solved by {@link OlderSimplex}, an implementation other than the engine's. */
     private static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal) {
-        List<org.apache.commons.math3.optimization.linear.LinearConstraint> old = new ArrayList<>();
-        for (LinearConstraint c : constraints) {
-            old.add(new org.apache.commons.math3.optimization.linear.LinearConstraint(c.getCoefficients(),
-                    org.apache.commons.math3.optimization.linear.Relationship.valueOf(c.getRelationship().name()), c.getValue()));
-        }
-        org.apache.commons.math3.optimization.linear.SimplexSolver solver =
-                new org.apache.commons.math3.optimization.linear.SimplexSolver(TOLERANCE, 10);
-        solver.setMaxIterations(100_000);
-        try {
-            return solver.optimize(new org.apache.commons.math3.optimization.linear.LinearObjectiveFunction(
-                            objective.getCoefficients(), objective.getConstantTerm()), old,
-                    goal == GoalType.MINIMIZE ? org.apache.commons.math3.optimization.GoalType.MINIMIZE
-                            : org.apache.commons.math3.optimization.GoalType.MAXIMIZE, true).getValue();
-        } catch (org.apache.commons.math3.optimization.linear.NoFeasibleSolutionException e) {
-            throw new NoFeasibleSolutionException();
-        }
+        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE);
     }
 
     /** The linear form {@code E[f(Y_s) 1{T = t}]} (over both response values), f(y) = sign * y. */

@@ -1,14 +1,9 @@
 package dev.bracket.bounds;
 
-import org.apache.commons.math3.optim.MaxIter;
 import org.apache.commons.math3.optim.linear.LinearConstraint;
-import org.apache.commons.math3.optim.linear.LinearConstraintSet;
 import org.apache.commons.math3.optim.linear.LinearObjectiveFunction;
 import org.apache.commons.math3.optim.linear.NoFeasibleSolutionException;
-import org.apache.commons.math3.optim.linear.NonNegativeConstraint;
-import org.apache.commons.math3.optim.linear.PivotSelectionRule;
 import org.apache.commons.math3.optim.linear.Relationship;
-import org.apache.commons.math3.optim.linear.SimplexSolver;
 import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
 
 import java.util.ArrayList;
@@ -30,7 +25,7 @@ import java.util.Set;
  *
  * Every cell of every level is an equation here (the engine instead uses shares and
  * cross-multiplied means), variables are laid out outcome-major (the engine: treatments-major),
- * and the objective is in outcome units. Solved with Commons Math 3.6.1's {@link SimplexSolver}.
+ * and the objective is in outcome units. Solved with Commons Math 3.6.1's older simplex solver ({@link OlderSimplex}).
  */
 final class PotentialTreatmentsProgram {
 
@@ -87,9 +82,9 @@ final class PotentialTreatmentsProgram {
         }
     }
 
+    /** Solved by {@link OlderSimplex}, an implementation other than the engine's. */
     private static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal) {
-        return new SimplexSolver(TOLERANCE).optimize(new MaxIter(100_000), objective, new LinearConstraintSet(constraints), goal,
-                new NonNegativeConstraint(true), PivotSelectionRule.DANTZIG).getValue();
+        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE);
     }
 
     private List<LinearConstraint> constraints(Set<Assumption> assumptions, Direction better) {
