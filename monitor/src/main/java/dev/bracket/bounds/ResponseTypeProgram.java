@@ -22,7 +22,8 @@ import java.util.stream.IntStream;
  * The ATE of a binary outcome under an independent instrument, minimised and maximised over the
  * laws q of response types ({@link ResponseTypes}) that agree with the data: the linear programs
  * of Balke &amp; Pearl (1997), JASA 92(439), §3 (there for a binary instrument; the same programs
- * for any number of levels), solved with Commons Math's {@link SimplexSolver}. On the unit scale
+ * for any number of levels), solved with two of Commons Math's simplex implementations (see
+ * {@link #solve}). On the unit scale
  * ({@code min} = 0, {@code max} = 1) the objective is {@code ATE = sum_type q (Y1 - Y0)}.
  *
  * <p>At each level z the data are given as a box of observables ({@link ObservablesBox}): a
@@ -105,22 +106,69 @@ final class ResponseTypeProgram {
     }
 
     /**
+     * The optimum as the more extreme of two simplex implementations. Commons Math 3.6.1's
+     * {@code optim.linear} solver was seen to stop at a vertex that is not optimal (minimise
+     * {@code -0.5 x1 + 0.5 x2} subject to {@code x0 + x1 + x2 + x3 = 0.2}, x &gt;= 0: it answers 0,
+     * the optimum is -0.1, with either pivot rule), which here would make a sharp bound too narrow.
+     * Every value either solver returns is the objective at a feasible law, so it can only fall
+     * short of the optimum, never pass it: taking the lower of two minima (the higher of two
+     * maxima) is exact as soon as one of them is, and the older {@code optimization.linear}
+     * implementation solves that program correctly. The program is infeasible only if both say so.
+     */
+    private double solve(LinearObjectiveFunction objective, GoalType goal) {
+        Double newer = feasibleOrNull(() -> solveNewer(objective, goal));
+        Double older = feasibleOrNull(() -> solveOlder(objective, goal));
+        if (newer == null && older == null) {
+            throw new NoFeasibleSolutionException();
+        }
+        if (newer == null || older == null) {
+            return newer == null ? older : newer;
+        }
+        return goal == GoalType.MINIMIZE ? Math.min(newer, older) : Math.max(newer, older);
+    }
+
+    private static Double feasibleOrNull(java.util.function.DoubleSupplier solver) {
+        try {
+            return solver.getAsDouble();
+        } catch (NoFeasibleSolutionException | org.apache.commons.math3.optimization.linear.NoFeasibleSolutionException e) {
+            return null;
+        }
+    }
+
+    /**
      * Dantzig's rule first; Commons Math breaks its ties by Bland's rule. On these highly
      * degenerate programs (many empty cells, pairs of constraints that pin a mean) Bland's rule
      * alone was seen to cycle, while Dantzig's was not; should Dantzig's ever run out of
      * iterations, Bland's is tried before giving up.
      */
-    private double solve(LinearObjectiveFunction objective, GoalType goal) {
+    private double solveNewer(LinearObjectiveFunction objective, GoalType goal) {
         try {
-            return solve(objective, goal, PivotSelectionRule.DANTZIG);
+            return solveNewer(objective, goal, PivotSelectionRule.DANTZIG);
         } catch (TooManyIterationsException e) {
-            return solve(objective, goal, PivotSelectionRule.BLAND);
+            return solveNewer(objective, goal, PivotSelectionRule.BLAND);
         }
     }
 
-    private double solve(LinearObjectiveFunction objective, GoalType goal, PivotSelectionRule rule) {
+    private double solveNewer(LinearObjectiveFunction objective, GoalType goal, PivotSelectionRule rule) {
         return new SimplexSolver(EPSILON).optimize(new MaxIter(MAX_ITERATIONS), objective, new LinearConstraintSet(constraints), goal,
                 new NonNegativeConstraint(true), rule).getValue();
+    }
+
+    /** The same program by the older implementation (deprecated in Commons Math, kept for the reason above). */
+    @SuppressWarnings("deprecation")
+    private double solveOlder(LinearObjectiveFunction objective, GoalType goal) {
+        List<org.apache.commons.math3.optimization.linear.LinearConstraint> old = new ArrayList<>(constraints.size());
+        for (LinearConstraint c : constraints) {
+            old.add(new org.apache.commons.math3.optimization.linear.LinearConstraint(c.getCoefficients(),
+                    org.apache.commons.math3.optimization.linear.Relationship.valueOf(c.getRelationship().name()), c.getValue()));
+        }
+        org.apache.commons.math3.optimization.linear.SimplexSolver solver =
+                new org.apache.commons.math3.optimization.linear.SimplexSolver(EPSILON, 10);
+        solver.setMaxIterations(MAX_ITERATIONS);
+        return solver.optimize(new org.apache.commons.math3.optimization.linear.LinearObjectiveFunction(
+                        objective.getCoefficients(), objective.getConstantTerm()), old,
+                goal == GoalType.MINIMIZE ? org.apache.commons.math3.optimization.GoalType.MINIMIZE
+                        : org.apache.commons.math3.optimization.GoalType.MAXIMIZE, true).getValue();
     }
 
     /** Pointwise assumptions: whether a type may have mass at all. */
