@@ -105,6 +105,7 @@ public final class AnytimeBand {
     /** Bands by settings: building one costs more than a band, and the settings rarely change. */
     private static final Map<List<Object>, AnytimeBand> SHARED = new ConcurrentHashMap<>();
     private static final int MAX_SHARED = 16;
+    private static volatile AnytimeBand lastShared;
 
     /**
      * @param level        confidence level 1 - alpha, in (0, 1)
@@ -132,6 +133,10 @@ public final class AnytimeBand {
 
     /** The band for these settings, built once and then reused (see the constructor). */
     public static AnytimeBand shared(double level, long plannedCount, VarianceBasis variance) {
+        AnytimeBand last = lastShared;
+        if (last != null && last.level == level && last.plannedCount == plannedCount && last.variance == variance) {
+            return last; // the usual case: one setting for every row of every report
+        }
         List<Object> key = List.of(level, plannedCount, variance);
         AnytimeBand band = SHARED.get(key);
         if (band == null) {
@@ -140,6 +145,7 @@ public final class AnytimeBand {
             }
             band = SHARED.computeIfAbsent(key, k -> new AnytimeBand(level, plannedCount, variance));
         }
+        lastShared = band;
         return band;
     }
 
