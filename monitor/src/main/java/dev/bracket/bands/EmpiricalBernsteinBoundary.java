@@ -111,29 +111,46 @@ public final class EmpiricalBernsteinBoundary {
         if (scale <= 0) {
             return 0; // a constant quantity: its mean is known exactly
         }
-        double c2 = scale * scale;
+        // Per-call ratios, so that the pass over the grid multiplies and adds only.
+        double perScale = count / scale;
+        double perScale2 = perScale / scale;
+        double m2PerScale2 = m2 / (scale * scale);
         // The minimum over the grid does not depend on the order of the grid points; trying first the
         // one nearest the best lambda for these data, c sqrt(2 ln(1/alpha) / m2), lets the cheap test
         // below skip the square root at almost every other point.
         double guess = m2 > 0 ? scale * Math.sqrt(2 * thresholds[centre] / m2) : LAMBDA[0];
         int first = Math.max(0, Math.min(GRID - 1, (int) Math.round(2 * Math.log(0.5 / guess) / LN2)));
-        double best = root(first, count, m2, scale, c2, room);
-        for (int k = 0; k < GRID; k++) {
-            if (k != first) {
-                best = root(k, count, m2, scale, c2, best);
+        double best = root(first, perScale, perScale2, m2PerScale2, room);
+        // Every root is at least c0 / b = (psi M2 / c^2 + threshold) / (lambda t / c). Towards smaller
+        // lambda (larger k) beyond the centre, threshold / lambda only grows; towards larger lambda
+        // (smaller k), psi(lambda) / lambda only grows (psi is convex with psi(0) = 0). Once either
+        // part alone reaches best, no grid point further on can beat it.
+        for (int k = first + 1; k < GRID; k++) {
+            if (k >= centre && thresholds[k] >= best * LAMBDA[k] * perScale) {
+                break;
             }
+            best = root(k, perScale, perScale2, m2PerScale2, best);
+        }
+        for (int k = first - 1; k >= 0; k--) {
+            if (PSI[k] * m2PerScale2 >= best * LAMBDA[k] * perScale) {
+                break;
+            }
+            best = root(k, perScale, perScale2, m2PerScale2, best);
         }
         return best;
     }
 
-    /** The smaller root at grid point k, if it is below {@code best}; otherwise {@code best}. */
-    private double root(int k, long count, double m2, double scale, double c2, double best) {
-        double b = LAMBDA[k] * count / scale;
-        double c0 = PSI[k] * m2 / c2 + thresholds[k];
+    /**
+     * The smaller root at grid point k of {@code psi t / c^2 d^2 - lambda t / c d + psi M2 / c^2 +
+     * threshold}, if it is below {@code best}; otherwise {@code best}.
+     */
+    private double root(int k, double perScale, double perScale2, double m2PerScale2, double best) {
+        double b = LAMBDA[k] * perScale;
+        double c0 = PSI[k] * m2PerScale2 + thresholds[k];
         if (c0 >= best * b) {
             return best; // the root 2 c0 / (b + sqrt(disc)) is at least c0 / b: it cannot beat best
         }
-        double disc = b * b - 4 * (PSI[k] * count / c2) * c0;
+        double disc = b * b - 4 * (PSI[k] * perScale2) * c0;
         return disc >= 0 ? Math.min(best, 2 * c0 / (b + Math.sqrt(disc))) : best;
     }
 
