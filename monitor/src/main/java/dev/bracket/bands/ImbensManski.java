@@ -48,6 +48,7 @@ public final class ImbensManski {
     /** Tables of a few levels (a deployment uses one or two); cleared if callers keep asking for new ones. */
     private static final Map<Double, Table> TABLES = new ConcurrentHashMap<>();
     private static final int MAX_TABLES = 16;
+    private static volatile Table lastTable;
 
     private ImbensManski() {
     }
@@ -71,13 +72,18 @@ public final class ImbensManski {
         if (!(scaledWidth >= 0)) {
             throw new IllegalArgumentException("scaled width must be >= 0, was " + scaledWidth);
         }
-        Table table = TABLES.get(level);
+        Table table = lastTable;
+        if (table != null && table.level == level) {
+            return table.criticalValue(scaledWidth); // the usual case: one level for every band
+        }
+        table = TABLES.get(level);
         if (table == null) {
             if (TABLES.size() >= MAX_TABLES) {
                 TABLES.clear();
             }
             table = TABLES.computeIfAbsent(level, Table::new);
         }
+        lastTable = table;
         return table.criticalValue(scaledWidth);
     }
 
