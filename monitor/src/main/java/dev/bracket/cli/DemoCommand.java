@@ -80,6 +80,10 @@ public final class DemoCommand implements Callable<Integer> {
             description = "HTTP port of the page, JSON API and /metrics; 0 picks a free one (default: ${DEFAULT-VALUE}).")
     int httpPort;
 
+    /** The earlier name of --http-port, still accepted so that older scripts keep working (--http-port wins when both are given). */
+    @Option(names = "--port", hidden = true, paramLabel = "PORT")
+    Integer earlierPortName;
+
     /** What a demo run simulates: its events, its truth, its description and the study's assumption rows. */
     record Simulation(EventFeed feed, TrueEffects truth, String description, String assumptions) {
     }
@@ -98,6 +102,12 @@ public final class DemoCommand implements Callable<Integer> {
 
     @Override
     public Integer call() throws Exception {
+        if (earlierPortName != null) {
+            spec.commandLine().getErr().println("demo: --port is now called --http-port; please use that name");
+            if (!spec.commandLine().getParseResult().hasMatchedOption("--http-port")) {
+                httpPort = earlierPortName;
+            }
+        }
         Simulation scenario = simulation();
         if (!(rate > 0) || Double.isInfinite(rate)) {
             throw new InputError("--rate must be a number of events per second above 0, was " + rate);

@@ -55,6 +55,11 @@ class DemoCommandTest {
         assertThat(port.code()).isEqualTo(2);
         assertThat(port.err()).contains("--http-port must be a TCP port");
 
+        // The earlier name of --http-port still works, and says what it is called now.
+        Run earlierName = run("demo", "--port", "70000");
+        assertThat(earlierName.code()).isEqualTo(2);
+        assertThat(earlierName.err()).contains("--port is now called --http-port").contains("--http-port must be a TCP port");
+
         Run rate = run("demo", "--rate", "0");
         assertThat(rate.code()).isEqualTo(2);
         assertThat(rate.err()).contains("--rate");
