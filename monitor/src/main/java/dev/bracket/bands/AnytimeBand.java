@@ -304,11 +304,12 @@ public final class AnytimeBand {
     }
 
     /**
-     * One end of route 2. Without a per-unit quantity: every cell's box reaches from the arm means'
-     * one-sided bounds (lower end: mu1 at least its bound, mu0 at most its bound; the upper end
-     * the other way) to the range ends, with a two-sided interval for p only if the end moves with
-     * it, plus the stratum shares; the error {@code alpha / 2} is split evenly over these bounds'
-     * tails (Bonferroni). Since the end is monotone in the means, the far sides cost nothing.
+     * One end of route 2: by {@link #formEnd} when it has a {@link EndQuantities.Form}; otherwise
+     * every cell's box reaches from the arm means' one-sided bounds (lower end: mu1 at least its
+     * bound, mu0 at most its bound; the upper end the other way) to the range ends, with a
+     * two-sided interval for p only if the end moves with it, plus the stratum shares; the error
+     * {@code alpha / 2} is split evenly over these bounds' tails (Bonferroni). Since the end is
+     * monotone in the means, the far sides cost nothing.
      */
     private OptionalDouble end(StudyCells cells, OutcomeRange range, AssumptionSet assumptions, EndRoute route, boolean upper) {
         if (route.form().isPresent()) {
