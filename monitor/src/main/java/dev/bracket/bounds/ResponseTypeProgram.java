@@ -106,18 +106,16 @@ final class ResponseTypeProgram {
     }
 
     /**
-     * The optimum as the more extreme of two simplex implementations. Commons Math 3.6.1's
-     * {@code optim.linear} solver was seen to stop at a vertex that is not optimal (minimise
-     * {@code -0.5 x1 + 0.5 x2} subject to {@code x0 + x1 + x2 + x3 = 0.2}, x &gt;= 0: it answers 0,
-     * the optimum is -0.1, with either pivot rule), which here would make a sharp bound too narrow.
-     * Every value either solver returns is the objective at a feasible law, so it can only fall
-     * short of the optimum, never pass it: taking the lower of two minima (the higher of two
-     * maxima) is exact as soon as one of them is, and the older {@code optimization.linear}
-     * implementation solves that program correctly. The program is infeasible only if both say so.
+     * The optimum as the more extreme of two simplex implementations, the newer {@code optim.linear}
+     * one and {@link OlderSimplex} (the newer one stops short of the optimum on some programs,
+     * which here would make a sharp bound too narrow). Every value either solver returns is the
+     * objective at a feasible law, so it can only fall short of the optimum, never pass it: the
+     * lower of two minima (the higher of two maxima) is exact as soon as one of them is. The
+     * program is infeasible only if both say so.
      */
     private double solve(LinearObjectiveFunction objective, GoalType goal) {
         Double newer = feasibleOrNull(() -> solveNewer(objective, goal));
-        Double older = feasibleOrNull(() -> solveOlder(objective, goal));
+        Double older = feasibleOrNull(() -> OlderSimplex.solve(objective, constraints, goal, EPSILON, MAX_ITERATIONS));
         if (newer == null && older == null) {
             throw new NoFeasibleSolutionException();
         }
@@ -130,7 +128,7 @@ final class ResponseTypeProgram {
     private static Double feasibleOrNull(java.util.function.DoubleSupplier solver) {
         try {
             return solver.getAsDouble();
-        } catch (NoFeasibleSolutionException | org.apache.commons.math3.optimization.linear.NoFeasibleSolutionException e) {
+        } catch (NoFeasibleSolutionException e) {
             return null;
         }
     }
@@ -152,23 +150,6 @@ final class ResponseTypeProgram {
     private double solveNewer(LinearObjectiveFunction objective, GoalType goal, PivotSelectionRule rule) {
         return new SimplexSolver(EPSILON).optimize(new MaxIter(MAX_ITERATIONS), objective, new LinearConstraintSet(constraints), goal,
                 new NonNegativeConstraint(true), rule).getValue();
-    }
-
-    /** The same program by the older implementation (deprecated in Commons Math, kept for the reason above). */
-    @SuppressWarnings("deprecation")
-    private double solveOlder(LinearObjectiveFunction objective, GoalType goal) {
-        List<org.apache.commons.math3.optimization.linear.LinearConstraint> old = new ArrayList<>(constraints.size());
-        for (LinearConstraint c : constraints) {
-            old.add(new org.apache.commons.math3.optimization.linear.LinearConstraint(c.getCoefficients(),
-                    org.apache.commons.math3.optimization.linear.Relationship.valueOf(c.getRelationship().name()), c.getValue()));
-        }
-        org.apache.commons.math3.optimization.linear.SimplexSolver solver =
-                new org.apache.commons.math3.optimization.linear.SimplexSolver(EPSILON, 10);
-        solver.setMaxIterations(MAX_ITERATIONS);
-        return solver.optimize(new org.apache.commons.math3.optimization.linear.LinearObjectiveFunction(
-                        objective.getCoefficients(), objective.getConstantTerm()), old,
-                goal == GoalType.MINIMIZE ? org.apache.commons.math3.optimization.GoalType.MINIMIZE
-                        : org.apache.commons.math3.optimization.GoalType.MAXIMIZE, true).getValue();
     }
 
     /** Pointwise assumptions: whether a type may have mass at all. */

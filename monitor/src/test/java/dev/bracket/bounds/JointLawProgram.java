@@ -88,7 +88,7 @@ final class JointLawProgram {
 
     /** Solved by {@link OlderSimplex}, an implementation other than the engine's. */
     private static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal) {
-        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE);
+        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE, 100_000);
     }
 
     /** The linear form {@code E[f(Y_s) 1{T = t}]} (over both response values), f(y) = sign * y. */

@@ -84,7 +84,7 @@ final class PotentialTreatmentsProgram {
 
     /** Solved by {@link OlderSimplex}, an implementation other than the engine's. */
     private static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal) {
-        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE);
+        return OlderSimplex.solve(objective, constraints, goal, TOLERANCE, 100_000);
     }
 
     private List<LinearConstraint> constraints(Set<Assumption> assumptions, Direction better) {

@@ -40,6 +40,6 @@ class SimplexImplementationsTest {
     @Test
     @DisplayName("the older implementation, which the engine also runs, finds the optimum -0.1")
     void olderImplementationFindsTheOptimum() {
-        assertEquals(-0.1, OlderSimplex.solve(OBJECTIVE, MASS, GoalType.MINIMIZE, ResponseTypeProgram.EPSILON), 1e-12);
+        assertEquals(-0.1, OlderSimplex.solve(OBJECTIVE, MASS, GoalType.MINIMIZE, ResponseTypeProgram.EPSILON, 1_000), 1e-12);
     }
 }

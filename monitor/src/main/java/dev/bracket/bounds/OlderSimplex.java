@@ -9,13 +9,12 @@ import java.util.ArrayList;
 import java.util.List;
 
 /**
- * The reference linear programs of the tests are solved by Commons Math's older
- * {@code org.apache.commons.math3.optimization.linear.SimplexSolver}, not by the newer
- * {@code optim.linear} one the engine uses, so that a fault of one implementation cannot hide in
- * both sides of a comparison: the newer solver of 3.6.1 stopped at a non-optimal vertex on a law
- * with pending units (smallest case seen: minimise {@code -0.5 x1 + 0.5 x2} subject to
- * {@code x0 + x1 + x2 + x3 = 0.2}, x &gt;= 0, answered 0 instead of -0.1; found by these tests,
- * not looked up in the library's tracker).
+ * Commons Math's older simplex implementation ({@code org.apache.commons.math3.optimization.linear},
+ * deprecated there) behind the newer {@code optim.linear} types. Kept because the newer solver of
+ * 3.6.1 stops at a vertex that is not optimal on some programs (minimise {@code -0.5 x1 + 0.5 x2}
+ * subject to {@code x0 + x1 + x2 + x3 = 0.2}, x &gt;= 0: it answers 0, the optimum is -0.1), while
+ * the older one solves them: {@link ResponseTypeProgram} runs both, and the tests' reference
+ * programs use this one so that a fault of the engine's solver cannot hide on both sides.
  */
 final class OlderSimplex {
 
@@ -24,7 +23,8 @@ final class OlderSimplex {
 
     /** The optimum of {@code objective} over x &gt;= 0 and {@code constraints}; NoFeasibleSolutionException when none. */
     @SuppressWarnings("deprecation")
-    static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal, double tolerance) {
+    static double solve(LinearObjectiveFunction objective, List<LinearConstraint> constraints, GoalType goal, double tolerance,
+                        int maxIterations) {
         List<org.apache.commons.math3.optimization.linear.LinearConstraint> old = new ArrayList<>();
         for (LinearConstraint c : constraints) {
             old.add(new org.apache.commons.math3.optimization.linear.LinearConstraint(c.getCoefficients(),
@@ -32,7 +32,7 @@ final class OlderSimplex {
         }
         org.apache.commons.math3.optimization.linear.SimplexSolver solver =
                 new org.apache.commons.math3.optimization.linear.SimplexSolver(tolerance, 10);
-        solver.setMaxIterations(100_000);
+        solver.setMaxIterations(maxIterations);
         try {
             return solver.optimize(new org.apache.commons.math3.optimization.linear.LinearObjectiveFunction(
                             objective.getCoefficients(), objective.getConstantTerm()), old,
