@@ -89,7 +89,8 @@ class EmpiricalBernsteinBoundaryTest {
         }
     }
 
-    private static double plainSearch(double alpha, long planned, long count, double m2, double scale, double room) {
+    /** The least root over the whole grid and {@code room}, written from the class's documentation (see above). */
+    static double plainSearch(double alpha, long planned, long count, double m2, double scale, double room) {
         int grid = 48;
         double bestLambda = Math.sqrt(32 * Math.log(1 / alpha) / planned);
         int k0 = Math.max(0, Math.min(grid - 1, (int) Math.round(2 * Math.log(0.5 / bestLambda) / Math.log(2))));

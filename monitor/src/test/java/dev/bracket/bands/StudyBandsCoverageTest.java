@@ -257,31 +257,12 @@ class StudyBandsCoverageTest {
      * around the k0 nearest {@code sqrt(32 ln(1/oneSided) / plannedCount)} (the best lambda for a law of variance 1/16). A mean at distance d is
      * rejected when {@code lambda d - psi (variance + d^2) >= ln(1 / (oneSided w_k)) / count} for some
      * k; the bound is the smallest such d over k, here with the true variance where the band has
-     * the observed one.
+     * the observed one (the plain search of {@code EmpiricalBernsteinBoundaryTest}, with M2 = count
+     * times the variance, on the unit scale).
      */
     private static BiFunction<Long, Double, Double> mixture(double oneSided) {
-        int grid = 48;
-        double best = Math.sqrt(32 * Math.log(1 / oneSided) / AnytimeBand.DEFAULT_PLANNED_COUNT);
-        int k0 = Math.max(0, Math.min(grid - 1, (int) Math.round(2 * Math.log(0.5 / best) / Math.log(2))));
-        double total = 0;
-        for (int k = 0; k < grid; k++) {
-            total += 1 / Math.pow(1 + Math.abs(k - k0), 2);
-        }
-        double norm = total;
-        return (count, variance) -> {
-            double d = 1;
-            for (int k = 0; k < grid; k++) {
-                double lambda = Math.pow(2, -1 - k / 2.0);
-                double psi = -Math.log1p(-lambda) - lambda;
-                double threshold = Math.log(norm * Math.pow(1 + Math.abs(k - k0), 2) / oneSided) / count;
-                // smaller root of psi d^2 - lambda d + psi variance + threshold = 0
-                double disc = lambda * lambda - 4 * psi * (psi * variance + threshold);
-                if (disc >= 0) {
-                    d = Math.min(d, (lambda - Math.sqrt(disc)) / (2 * psi));
-                }
-            }
-            return d;
-        };
+        return (count, variance) -> EmpiricalBernsteinBoundaryTest.plainSearch(oneSided, AnytimeBand.DEFAULT_PLANNED_COUNT,
+                count, variance * count, 1, 1);
     }
 
     /**
